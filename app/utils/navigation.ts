@@ -1,0 +1,16 @@
+import type { Role } from '#shared/utils/roles'
+
+export type NavItem = { to: string; label: string; roles: Role[] }
+
+export const NAV_ITEMS: NavItem[] = [
+  { to: '/floor', label: 'Floor', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  { to: '/lots', label: 'Lots', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  { to: '/units', label: 'Units', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  { to: '/stations', label: 'Stations', roles: ['admin', 'engineer'] },
+  { to: '/admin/users', label: 'Users', roles: ['admin'] },
+  { to: '/portal', label: 'Certificates', roles: ['customer'] },
+]
+
+export function navFor(role: Role | undefined): NavItem[] {
+  return role ? NAV_ITEMS.filter((i) => i.roles.includes(role)) : []
+}

@@ -1,0 +1,35 @@
+import { fileURLToPath } from 'node:url'
+
+const fontDir = fileURLToPath(new URL('./node_modules/@fontsource/roboto-mono/files', import.meta.url))
+
+export default defineNuxtConfig({
+  compatibilityDate: '2025-07-15',
+  devtools: { enabled: false },
+  telemetry: false,
+  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils'],
+  css: ['~/assets/css/main.css'],
+  tailwindcss: { cssPath: false, configPath: 'tailwind.config.ts', viewer: false },
+  app: {
+    head: {
+      title: 'Tercet',
+      htmlAttrs: { lang: 'en' },
+      meta: [{ name: 'viewport', content: 'width=device-width, initial-scale=1' }],
+      link: [{ rel: 'icon', type: 'image/svg+xml', href: '/favicon.svg' }],
+    },
+  },
+  runtimeConfig: {
+    db: { host: '127.0.0.1', port: 3307, user: 'tercet', password: '', database: 'tercet' },
+    migrateOnStart: false,
+  },
+  nitro: {
+    serverAssets: [{ baseName: 'fonts', dir: fontDir, pattern: 'roboto-mono-latin-{400,700}-normal.woff' }],
+  },
+  typescript: { strict: true },
+  hooks: {
+    // API errors become problem+json first; Nuxt's own handler still renders page errors.
+    'nitro:config'(config) {
+      const existing = config.errorHandler ? [config.errorHandler].flat() : []
+      config.errorHandler = [fileURLToPath(new URL('./server/error-handler.ts', import.meta.url)), ...existing]
+    },
+  },
+})

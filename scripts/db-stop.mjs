@@ -1,0 +1,2 @@
+import { stopMariadb } from './lib/mariadb.mjs'
+stopMariadb()

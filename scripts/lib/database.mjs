@@ -1,0 +1,16 @@
+import { resolve } from 'node:path'
+import { root, dbSettings, serverEnv } from './env.mjs'
+import { startMariadb, ensureDatabase } from './mariadb.mjs'
+import { runOrFail } from './run.mjs'
+
+/** Starts MariaDB, creates the database and its user, migrates, and seeds the demo when empty. */
+export async function prepareDatabase(env, database, { recreate = false, seed = true, tokenFile } = {}) {
+  const db = dbSettings(env, database)
+  await startMariadb(db.port)
+  ensureDatabase(db, { recreate })
+  const args = [resolve(root, 'scripts/db-setup.ts')]
+  if (seed) args.push('--seed-demo')
+  if (tokenFile) args.push(`--tokens=${tokenFile}`)
+  runOrFail(resolve(root, 'node_modules/.bin/jiti'), args, { cwd: root, env: serverEnv(env, db) })
+  return db
+}

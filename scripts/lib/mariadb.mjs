@@ -1,0 +1,85 @@
+// Runs a project-local MariaDB bound to loopback, with its own data folder, socket and pid file.
+import { existsSync, mkdirSync, readFileSync } from 'node:fs'
+import { resolve } from 'node:path'
+import { spawn, spawnSync } from 'node:child_process'
+import net from 'node:net'
+import { dataDir } from './env.mjs'
+import { ensureDebianPackage } from './deps.mjs'
+import { log, fail, runOrFail } from './run.mjs'
+
+const base = resolve(dataDir, 'mariadb')
+const datadir = resolve(base, 'data')
+export const socket = resolve(base, 'mysqld.sock')
+const pidFile = resolve(base, 'mysqld.pid')
+const errLog = resolve(base, 'mysqld.err')
+
+function admin(args, opts = {}) {
+  return spawnSync('mariadb-admin', ['--no-defaults', `--socket=${socket}`, '-uroot', ...args], { encoding: 'utf8', ...opts })
+}
+
+export function isRunning() {
+  return existsSync(socket) && admin(['ping']).status === 0
+}
+
+function portTaken(port) {
+  return new Promise((done) => {
+    const s = net.connect({ host: '127.0.0.1', port }, () => { s.destroy(); done(true) })
+    s.on('error', () => done(false))
+  })
+}
+
+export async function startMariadb(port) {
+  ensureDebianPackage('mariadbd', 'mariadb-server')
+  if (isRunning()) return
+  if (await portTaken(port)) fail(`port ${port} on 127.0.0.1 is already in use; set TERCET_DB_PORT to a free port (e.g. TERCET_DB_PORT=3317 npm start).`)
+  mkdirSync(base, { recursive: true })
+  if (!existsSync(resolve(datadir, 'mysql'))) {
+    log('initialising the MariaDB data folder (.data/mariadb)…')
+    runOrFail('mariadb-install-db', ['--no-defaults', '--user=root', `--datadir=${datadir}`,
+      '--auth-root-authentication-method=socket', '--skip-test-db'], { stdio: ['ignore', 'ignore', 'inherit'] })
+  }
+  log(`starting MariaDB on 127.0.0.1:${port}…`)
+  const child = spawn('mariadbd', ['--no-defaults', '--user=root', `--datadir=${datadir}`, '--bind-address=127.0.0.1',
+    `--port=${port}`, `--socket=${socket}`, `--pid-file=${pidFile}`, `--log-error=${errLog}`, '--skip-name-resolve',
+    '--innodb-buffer-pool-size=512M', '--innodb-flush-log-at-trx-commit=2', '--max-connections=300',
+    '--character-set-server=utf8mb4', '--collation-server=utf8mb4_unicode_ci'],
+  { detached: true, stdio: 'ignore' })
+  child.unref()
+  for (let i = 0; i < 120; i++) {
+    if (isRunning()) return
+    await new Promise((r) => setTimeout(r, 250))
+  }
+  const tail = existsSync(errLog) ? readFileSync(errLog, 'utf8').split('\n').slice(-15).join('\n') : ''
+  fail(`MariaDB did not start within 30 s. Last lines of .data/mariadb/mysqld.err:\n${tail}`)
+}
+
+export function stopMariadb() {
+  if (!isRunning()) { log('MariaDB is not running.'); return }
+  admin(['shutdown'])
+  log('MariaDB stopped.')
+}
+
+function sql(statement) {
+  const r = spawnSync('mariadb', ['--no-defaults', `--socket=${socket}`, '-uroot', '-e', statement], { encoding: 'utf8' })
+  if (r.status !== 0) fail(`MariaDB statement failed: ${r.stderr}`)
+  return r.stdout
+}
+
+const ident = (s) => { if (!/^[a-z_][a-z0-9_]*$/.test(s)) fail(`bad identifier ${s}`); return s }
+const quote = (s) => `'${String(s).replace(/\\/g, '\\\\').replace(/'/g, "\\'")}'`
+
+/** Creates (or, with recreate, drops and creates) a database and grants the application user on it. */
+export function ensureDatabase({ database, user, password }, { recreate = false } = {}) {
+  const db = ident(database)
+  const u = quote(user)
+  sql([
+    recreate ? `DROP DATABASE IF EXISTS \`${db}\`;` : '',
+    `CREATE DATABASE IF NOT EXISTS \`${db}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;`,
+    `CREATE USER IF NOT EXISTS ${u}@'127.0.0.1' IDENTIFIED BY ${quote(password)};`,
+    `ALTER USER ${u}@'127.0.0.1' IDENTIFIED BY ${quote(password)};`,
+    `GRANT ALL PRIVILEGES ON \`${db}\`.* TO ${u}@'127.0.0.1';`,
+    // bench and test databases share the prefix; the app user may create and drop them
+    `GRANT ALL PRIVILEGES ON \`${db.split('_')[0]}\\_%\`.* TO ${u}@'127.0.0.1';`,
+    'FLUSH PRIVILEGES;',
+  ].join(' '))
+}

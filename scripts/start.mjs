@@ -1,0 +1,40 @@
+// npm start: install what is missing, bring up MariaDB, migrate and seed, build when needed, serve.
+import net from 'node:net'
+import { readFileSync } from 'node:fs'
+import { resolve } from 'node:path'
+import { ensureNodeModules } from './lib/deps.mjs'
+import { loadEnv, root, serverEnv } from './lib/env.mjs'
+import { log, fail, spawnChild } from './lib/run.mjs'
+
+ensureNodeModules()
+const { prepareDatabase } = await import('./lib/database.mjs')
+const { buildIfChanged } = await import('./lib/build.mjs')
+
+const env = loadEnv()
+const port = Number(env.PORT || 3000)
+const host = env.HOST || '127.0.0.1'
+
+const free = await new Promise((done) => {
+  const srv = net.createServer().once('error', () => done(false)).once('listening', () => srv.close(() => done(true)))
+  srv.listen(port, host)
+})
+if (!free) fail(`port ${port} on ${host} is already in use; set PORT to a free port (e.g. PORT=3100 npm start).`)
+
+const db = await prepareDatabase(env, env.TERCET_DB_NAME || 'tercet')
+buildIfChanged()
+
+const signIns = JSON.parse(readFileSync(resolve(root, 'fixtures/demo-sign-ins.json'), 'utf8'))
+const server = spawnChild(process.execPath, [resolve(root, '.output/server/index.mjs')], {
+  cwd: root,
+  env: { ...serverEnv(env, db), PORT: String(port), HOST: host, NODE_ENV: 'production' },
+})
+setTimeout(() => {
+  log(`Tercet is serving at http://${host}:${port}`)
+  log(`demo sign-ins, password "${signIns.password}": ${signIns.accounts.join(', ')}`)
+  log('station tokens for the demo stations: .data/demo-station-tokens.json')
+  log('Ctrl-C stops the server; "npm run db:stop" stops MariaDB.')
+}, 1500)
+const stop = () => server.kill('SIGTERM')
+process.on('SIGINT', stop)
+process.on('SIGTERM', stop)
+server.on('exit', (code) => process.exit(code ?? 0))

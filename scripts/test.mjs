@@ -1,0 +1,31 @@
+// npm test: the same bring-up as npm start on a fresh tercet_test database, then the whole vitest suite.
+import { resolve } from 'node:path'
+import { spawnSync } from 'node:child_process'
+import { existsSync, readFileSync, rmSync } from 'node:fs'
+import { ensureNodeModules, ensureDebianPackage } from './lib/deps.mjs'
+import { loadEnv, root, serverEnv } from './lib/env.mjs'
+import { log } from './lib/run.mjs'
+
+ensureNodeModules()
+ensureDebianPackage('chromium', 'chromium')
+const { prepareDatabase } = await import('./lib/database.mjs')
+const { buildIfChanged } = await import('./lib/build.mjs')
+
+const env = loadEnv()
+const tokenFile = resolve(root, '.data/test-station-tokens.json')
+const db = await prepareDatabase(env, 'tercet_test', { recreate: true, seed: true, tokenFile })
+buildIfChanged()
+
+log('running the test suite…')
+const report = resolve(root, '.data/vitest-report.json')
+rmSync(report, { force: true })
+const r = spawnSync(resolve(root, 'node_modules/.bin/vitest'), ['run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...process.argv.slice(2)], {
+  cwd: root,
+  stdio: 'inherit',
+  env: { ...serverEnv(env, db), TERCET_TEST_TOKENS: tokenFile, NODE_ENV: 'test' },
+})
+if (existsSync(report)) {
+  const j = JSON.parse(readFileSync(report, 'utf8'))
+  process.stdout.write(`\ntests: ${j.numPassedTests} passed, ${j.numFailedTests} failed\n`)
+}
+process.exit(r.status ?? 1)

@@ -1,0 +1,4 @@
+export default defineEventHandler(async () => {
+  await useDb().raw('SELECT 1')
+  return { status: 'ok' }
+})

@@ -1,0 +1,3 @@
+import { listUsers } from '../../database/repositories/users'
+
+export default defineEventHandler(async () => ({ users: await listUsers(useDb()) }))

@@ -1,0 +1,35 @@
+import knex, { type Knex } from 'knex'
+
+export type DbConnection = { host: string; port: number; user: string; password: string; database: string }
+
+/** One pool per process; UTC throughout, DATETIME(3) read back as Date. */
+export function createKnex(conn: DbConnection, pool = { min: 0, max: 20 }): Knex {
+  return knex({
+    client: 'mysql2',
+    connection: {
+      ...conn,
+      timezone: 'Z',
+      dateStrings: false,
+      supportBigNumbers: true,
+      bigNumberStrings: false,
+      charset: 'utf8mb4',
+    },
+    pool: {
+      ...pool,
+      afterCreate: (c: any, done: (err: Error | null, c: unknown) => void) => {
+        c.query("SET time_zone = '+00:00'", (err: Error | null) => done(err, c))
+      },
+    },
+    acquireConnectionTimeout: 10_000,
+  })
+}
+
+export function connectionFromEnv(env: NodeJS.ProcessEnv = process.env): DbConnection {
+  return {
+    host: env.NUXT_DB_HOST || '127.0.0.1',
+    port: Number(env.NUXT_DB_PORT || env.TERCET_DB_PORT || 3307),
+    user: env.NUXT_DB_USER || 'tercet',
+    password: env.NUXT_DB_PASSWORD || '',
+    database: env.NUXT_DB_DATABASE || 'tercet',
+  }
+}

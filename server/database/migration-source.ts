@@ -1,0 +1,27 @@
+import type { Knex } from 'knex'
+import * as m001 from './migrations/20261201_001_identity'
+import * as m002 from './migrations/20261201_002_catalogue'
+import * as m003 from './migrations/20261201_003_stations'
+import * as m004 from './migrations/20261201_004_results'
+import * as m005 from './migrations/20261201_005_aggregates'
+import * as m006 from './migrations/20261201_006_shipping'
+import * as m007 from './migrations/20261201_007_alerts_audit'
+
+type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
+
+// Imported statically so the same list works bundled in the server, under jiti and in vitest.
+const migrations: Record<string, Migration> = {
+  '20261201_001_identity': m001,
+  '20261201_002_catalogue': m002,
+  '20261201_003_stations': m003,
+  '20261201_004_results': m004,
+  '20261201_005_aggregates': m005,
+  '20261201_006_shipping': m006,
+  '20261201_007_alerts_audit': m007,
+}
+
+export const migrationSource: Knex.MigrationSource<string> = {
+  getMigrations: async () => Object.keys(migrations).sort(),
+  getMigrationName: (name) => name,
+  getMigration: async (name) => migrations[name]!,
+}

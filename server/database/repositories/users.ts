@@ -1,0 +1,68 @@
+import type { Knex } from 'knex'
+import type { Role } from '../../../shared/utils/roles'
+
+export type UserRecord = {
+  id: number
+  email: string
+  name: string
+  role: Role
+  customerId: number | null
+  customerName: string | null
+  disabled: boolean
+  lastSignInAt: Date | null
+  createdAt: Date
+}
+
+const COLUMNS = ['u.id', 'u.email', 'u.name', 'u.role', 'u.customer_id', 'c.name as customer_name', 'u.disabled', 'u.last_sign_in_at', 'u.created_at']
+
+function toUser(r: any): UserRecord {
+  return {
+    id: r.id, email: r.email, name: r.name, role: r.role, customerId: r.customer_id ?? null,
+    customerName: r.customer_name ?? null, disabled: !!r.disabled, lastSignInAt: r.last_sign_in_at ?? null, createdAt: r.created_at,
+  }
+}
+
+function base(db: Knex) {
+  return db('users as u').leftJoin('customers as c', 'c.id', 'u.customer_id').select(COLUMNS)
+}
+
+export async function listUsers(db: Knex): Promise<UserRecord[]> {
+  return (await base(db).orderBy('u.role').orderBy('u.email')).map(toUser)
+}
+
+export async function findUserById(db: Knex, id: number): Promise<UserRecord | undefined> {
+  const r = await base(db).where('u.id', id).first()
+  return r ? toUser(r) : undefined
+}
+
+/** Includes the password hash: only for sign-in. */
+export async function findUserForSignIn(db: Knex, email: string): Promise<(UserRecord & { passwordHash: string }) | undefined> {
+  const r = await base(db).select('u.password_hash').where('u.email', email.toLowerCase()).first()
+  return r ? { ...toUser(r), passwordHash: r.password_hash } : undefined
+}
+
+export async function insertUser(db: Knex, u: { email: string; name: string; role: Role; customerId: number | null; passwordHash: string }): Promise<number> {
+  const [id] = await db('users').insert({
+    email: u.email.toLowerCase(), name: u.name, role: u.role, customer_id: u.customerId, password_hash: u.passwordHash,
+  })
+  return id!
+}
+
+export async function updateUser(db: Knex, id: number, patch: Partial<{ name: string; role: Role; customerId: number | null; disabled: boolean; passwordHash: string }>): Promise<void> {
+  const row: Record<string, unknown> = { updated_at: db.fn.now(3) }
+  if (patch.name !== undefined) row.name = patch.name
+  if (patch.role !== undefined) row.role = patch.role
+  if (patch.customerId !== undefined) row.customer_id = patch.customerId
+  if (patch.disabled !== undefined) row.disabled = patch.disabled
+  if (patch.passwordHash !== undefined) row.password_hash = patch.passwordHash
+  await db('users').where({ id }).update(row)
+}
+
+export async function touchSignIn(db: Knex, id: number): Promise<void> {
+  await db('users').where({ id }).update({ last_sign_in_at: db.fn.now(3) })
+}
+
+export async function countUsers(db: Knex): Promise<number> {
+  const r = await db('users').count<{ n: number }[]>({ n: '*' })
+  return Number(r[0]!.n)
+}

@@ -1,0 +1,35 @@
+import type { NitroErrorHandler } from 'nitropack'
+import { getRequestURL, setResponseHeader, setResponseStatus, send } from 'h3'
+import { problemTitle } from './utils/problem'
+
+const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ER_CON_COUNT_ERROR', 'ETIMEDOUT', 'ER_LOCK_WAIT_TIMEOUT'])
+
+function classify(error: any): { status: number; detail: string; data: Record<string, unknown> } {
+  const cause = error?.cause ?? error
+  const code = cause?.code ?? error?.code
+  if (code === 'ER_DUP_ENTRY') return { status: 409, detail: 'A record with the same key already exists.', data: {} }
+  if (UNAVAILABLE.has(code) || /Timeout acquiring a connection/.test(String(cause?.message ?? ''))) {
+    return { status: 503, detail: 'The database is unavailable; retry later.', data: { headers: { 'Retry-After': '5' } } }
+  }
+  const status = Number(error?.statusCode ?? error?.status ?? 500)
+  if (status >= 500 && !error?.data) return { status: 500, detail: 'An unexpected error occurred.', data: {} }
+  const detail = status === 404 && !error?.message ? 'No such resource.' : String(error?.message || error?.statusMessage || problemTitle(status))
+  return { status, detail, data: (error?.data && typeof error.data === 'object') ? error.data : {} }
+}
+
+/** API errors become RFC 9457 problem+json; page errors fall through to Nuxt's own handler. */
+const handler: NitroErrorHandler = async (error, event) => {
+  const url = getRequestURL(event)
+  if (!url.pathname.startsWith('/api/')) return
+  const { status, detail, data } = classify(error)
+  if (status === 500) console.error(error)
+  const { headers, ...rest } = data as { headers?: Record<string, string> }
+  for (const [k, v] of Object.entries(headers ?? {})) setResponseHeader(event, k, v)
+  setResponseStatus(event, status, problemTitle(status))
+  setResponseHeader(event, 'Content-Type', 'application/problem+json')
+  setResponseHeader(event, 'Cache-Control', 'no-store')
+  const body = { type: status === 500 ? 'about:blank' : `https://tercet.invalid/problems/${status}`, title: problemTitle(status), status, detail, ...rest }
+  await send(event, JSON.stringify(body))
+}
+
+export default handler

@@ -1,0 +1,3 @@
+export default defineNitroPlugin((nitro) => {
+  nitro.hooks.hook('close', async () => { await closeDb() })
+})

@@ -1,0 +1,51 @@
+import type { Knex } from 'knex'
+import type { Role } from '../../shared/utils/roles'
+import { findUserById, insertUser, updateUser, type UserRecord } from '../database/repositories/users'
+import { writeAudit } from '../database/repositories/audit'
+
+export type NewUser = { email: string; name: string; role: Role; customerId?: number | null; password: string }
+export type UserChange = Partial<{ name: string; role: Role; customerId: number | null; disabled: boolean; password: string }>
+type Hasher = (plain: string) => Promise<string>
+
+export class UserRuleError extends Error {
+  constructor(message: string, public pointer: string) { super(message) }
+}
+
+function checkCustomerLink(role: Role, customerId: number | null | undefined): void {
+  if (role === 'customer' && !customerId) throw new UserRuleError('A customer user must belong to a customer.', '/customerId')
+  if (role !== 'customer' && customerId) throw new UserRuleError('Only customer users belong to a customer.', '/customerId')
+}
+
+function publicView(u: UserRecord | undefined) {
+  return u && { id: u.id, email: u.email, name: u.name, role: u.role, customerId: u.customerId, disabled: u.disabled }
+}
+
+export async function createUser(db: Knex, actorId: number, input: NewUser, hash: Hasher): Promise<UserRecord> {
+  checkCustomerLink(input.role, input.customerId)
+  const passwordHash = await hash(input.password)
+  return db.transaction(async (trx) => {
+    const id = await insertUser(trx, { email: input.email, name: input.name, role: input.role, customerId: input.customerId ?? null, passwordHash })
+    const user = (await findUserById(trx, id))!
+    await writeAudit(trx, { userId: actorId, action: 'create', entity: 'user', entityId: id, after: publicView(user) })
+    return user
+  })
+}
+
+export async function changeUser(db: Knex, actorId: number, id: number, change: UserChange, hash: Hasher): Promise<UserRecord | undefined> {
+  const passwordHash = change.password ? await hash(change.password) : undefined
+  return db.transaction(async (trx) => {
+    const before = await findUserById(trx, id)
+    if (!before) return undefined
+    const role = change.role ?? before.role
+    const customerId = change.customerId !== undefined ? change.customerId : (role === 'customer' ? before.customerId : null)
+    checkCustomerLink(role, customerId)
+    if (id === actorId && (change.disabled === true || (change.role && change.role !== 'admin'))) {
+      throw new UserRuleError('You cannot disable your own account or remove your own admin role.', change.disabled ? '/disabled' : '/role')
+    }
+    await updateUser(trx, id, { name: change.name, role: change.role, customerId, disabled: change.disabled, passwordHash })
+    const after = await findUserById(trx, id)
+    const action = change.role && change.role !== before.role ? 'role_change' : change.disabled !== undefined && change.disabled !== before.disabled ? (change.disabled ? 'disable' : 'enable') : 'update'
+    await writeAudit(trx, { userId: actorId, action, entity: 'user', entityId: id, before: publicView(before), after: { ...publicView(after), passwordChanged: !!passwordHash } })
+    return after
+  })
+}

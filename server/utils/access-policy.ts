@@ -1,0 +1,52 @@
+import type { Role } from '../../shared/utils/roles'
+
+export type Caller = Role | 'station'
+export type Rule = { method: string; path: string; allow: 'public' | Caller[] }
+
+const STAFF: Caller[] = ['admin', 'quality', 'engineer', 'operator']
+const ENGINEERING: Caller[] = ['admin', 'quality', 'engineer']
+
+/**
+ * Every API route and who may call it. A route not listed here answers 404 to everyone:
+ * access is denied by default, and the route × role test fails for a handler missing from this list.
+ */
+export const API_POLICY: Rule[] = [
+  { method: 'GET', path: '/api/health', allow: 'public' },
+  { method: 'POST', path: '/api/auth/login', allow: 'public' },
+  { method: 'GET', path: '/api/_auth/session', allow: 'public' },
+  { method: 'DELETE', path: '/api/_auth/session', allow: 'public' },
+  { method: 'GET', path: '/api/me', allow: [...STAFF, 'customer'] },
+
+  { method: 'GET', path: '/api/users', allow: ['admin'] },
+  { method: 'POST', path: '/api/users', allow: ['admin'] },
+  { method: 'PATCH', path: '/api/users/:id', allow: ['admin'] },
+  { method: 'GET', path: '/api/customers', allow: ['admin', 'quality'] },
+
+  { method: 'GET', path: '/api/lots', allow: STAFF },
+]
+
+export { STAFF as STAFF_CALLERS, ENGINEERING as ENGINEERING_CALLERS }
+
+type Compiled = Rule & { re: RegExp }
+let compiled: Compiled[] | undefined
+
+function compile(): Compiled[] {
+  return API_POLICY.map((r) => ({
+    ...r,
+    re: new RegExp('^' + r.path.replace(/[.*+?^${}()|[\]\\]/g, '\\$&').replace(/:[a-zA-Z]+/g, '[^/]+') + '/?$'),
+  }))
+}
+
+/** The rule for a request; literal segments win over parameters. */
+export function findRule(method: string, pathname: string): Rule | undefined {
+  compiled ??= compile()
+  const m = method === 'HEAD' ? 'GET' : method
+  const hits = compiled.filter((r) => r.method === m && r.re.test(pathname))
+  hits.sort((a, b) => (a.path.split(':').length - b.path.split(':').length))
+  return hits[0]
+}
+
+export function pathKnown(pathname: string): boolean {
+  compiled ??= compile()
+  return compiled.some((r) => r.re.test(pathname))
+}

@@ -1,0 +1,66 @@
+import type { H3Event } from 'h3'
+import type { Role } from '../../shared/utils/roles'
+import { findActiveTokensByHint } from '../database/repositories/station-tokens'
+import { findUserById, type UserRecord } from '../database/repositories/users'
+import { hashToken, hashesEqual, tokenHint, tokenLooksValid } from './station-token'
+import { problem } from './problem'
+
+export type StationPrincipal = { id: number; name: string; tokenId: number }
+
+declare module 'h3' {
+  interface H3EventContext {
+    user?: UserRecord
+    station?: StationPrincipal
+  }
+}
+
+/** The signed-in user as the access middleware loaded it (fresh from the database, not the cookie). */
+export function requireUser(event: H3Event): UserRecord {
+  if (!event.context.user) throw problem(401, 'Sign in to use this resource.')
+  return event.context.user
+}
+
+export function requireStation(event: H3Event): StationPrincipal {
+  if (!event.context.station) throw problem(401, 'A valid station token is required.')
+  return event.context.station
+}
+
+/** Extra role check inside a handler, for actions narrower than the route's own rule. */
+export function requireRole(event: H3Event, ...roles: Role[]): UserRecord {
+  const user = requireUser(event)
+  if (!roles.includes(user.role)) throw problem(403, `This action needs the role ${roles.join(' or ')}.`)
+  return user
+}
+
+/** A customer user sees only its own customer's data; staff see all. */
+export function customerScope(user: UserRecord): number | null {
+  return user.role === 'customer' ? user.customerId ?? -1 : null
+}
+
+export async function authenticateStation(event: H3Event): Promise<StationPrincipal | undefined> {
+  const header = getHeader(event, 'authorization')
+  if (!header) return undefined
+  const m = header.match(/^Bearer\s+(\S+)$/i)
+  if (!m || !tokenLooksValid(m[1]!)) throw problem(401, 'The Authorization header must be "Bearer <station token>".')
+  const token = m[1]!
+  const hash = hashToken(token)
+  const candidates = await findActiveTokensByHint(useDb(), tokenHint(token))
+  const hit = candidates.find((c) => hashesEqual(c.tokenHash, hash))
+  if (!hit) throw problem(401, 'The station token is unknown or has been revoked.')
+  return { id: hit.stationId, name: hit.stationName, tokenId: hit.tokenId }
+}
+
+const userCache = new Map<number, { at: number; user: UserRecord | undefined }>()
+
+/** Reads the session's user from the database, so disabling or re-roling takes effect at once (2 s cache). */
+export async function loadSessionUser(id: number): Promise<UserRecord | undefined> {
+  const hit = userCache.get(id)
+  if (hit && Date.now() - hit.at < 2000) return hit.user
+  const user = await findUserById(useDb(), id)
+  userCache.set(id, { at: Date.now(), user })
+  return user
+}
+
+export function forgetSessionUser(id: number): void {
+  userCache.delete(id)
+}

@@ -1,0 +1,110 @@
+import Ajv2020 from 'ajv/dist/2020.js'
+import type { AnySchemaObject, ErrorObject } from 'ajv/dist/2020.js'
+import addFormats from 'ajv-formats'
+import runSchemaJson from '../../shared/schemas/run.schema.json'
+import runBatchSchemaJson from '../../shared/schemas/run-batch.schema.json'
+
+export interface ValidationError {
+  /** JSON Pointer (RFC 6901) into the request body; "" is the body itself. */
+  pointer: string
+  message: string
+}
+
+export type ValidationResult<T> = { ok: true; value: T } | { ok: false; errors: ValidationError[] }
+
+export type Validator<T> = (body: unknown) => ValidationResult<T>
+
+export interface StationMeasurement {
+  name: string
+  value: number
+  unit: string
+  uncertainty?: number
+  offsetHz?: number
+  harmonic?: number
+}
+
+export interface StationTrace {
+  name: string
+  points: [number, number][]
+}
+
+export interface StationRun {
+  id: string
+  serial: string
+  partNumber: string
+  lot: string
+  /** Filled with "final" by the validator when the station leaves it out. */
+  step: string
+  startedAt: string
+  finishedAt: string
+  operator?: string
+  software: { sequence: string; version: string }
+  conditions: { temperatureC: number; supplyV: number }
+  stationVerdict: 'pass' | 'fail'
+  reference: { frequencyHz: number; phaseNoise?: { offsetHz: number; value: number }[] }
+  measurements: StationMeasurement[]
+  traces?: StationTrace[]
+}
+
+export interface StationRunBatch {
+  runs: StationRun[]
+}
+
+export const runSchema: AnySchemaObject = runSchemaJson as AnySchemaObject
+export const runBatchSchema: AnySchemaObject = runBatchSchemaJson as AnySchemaObject
+
+// useDefaults writes schema defaults (the run's step) into the validated body in place.
+const ajv = new Ajv2020({ strict: true, allErrors: true, useDefaults: true })
+addFormats(ajv)
+ajv.addSchema(runSchema)
+
+function escapePointerToken(token: string): string {
+  return token.replace(/~/g, '~0').replace(/\//g, '~1')
+}
+
+function toValidationError(e: ErrorObject): ValidationError {
+  const params = e.params as Record<string, unknown>
+  switch (e.keyword) {
+    case 'required':
+      return { pointer: `${e.instancePath}/${escapePointerToken(String(params.missingProperty))}`, message: 'is required' }
+    case 'additionalProperties':
+      return { pointer: `${e.instancePath}/${escapePointerToken(String(params.additionalProperty))}`, message: 'is not an allowed property' }
+    case 'format':
+      return { pointer: e.instancePath, message: `must be a valid ${String(params.format)}` }
+    case 'const':
+      return { pointer: e.instancePath, message: `must be ${JSON.stringify(params.allowedValue)}` }
+    case 'enum':
+      return { pointer: e.instancePath, message: `must be one of ${(params.allowedValues as unknown[]).map((v) => JSON.stringify(v)).join(', ')}` }
+    default:
+      return { pointer: e.instancePath, message: e.message ?? `fails ${e.keyword}` }
+  }
+}
+
+function mapErrors(errors: readonly ErrorObject[] | null | undefined): ValidationError[] {
+  const out: ValidationError[] = []
+  const seen = new Set<string>()
+  for (const e of errors ?? []) {
+    // "must match then schema" only repeats the error reported by the then-branch itself.
+    if (e.keyword === 'if') continue
+    const mapped = toValidationError(e)
+    const key = `${mapped.pointer}\u0000${mapped.message}`
+    if (seen.has(key)) continue
+    seen.add(key)
+    out.push(mapped)
+  }
+  return out
+}
+
+/** Compiles a JSON Schema (draft 2020-12, strict) into a validator with pointer/message errors. */
+export function compileSchema<T>(schema: AnySchemaObject): Validator<T> {
+  // Schemas are shared by $id on one instance so that they can $ref each other; compiling a known $id again reuses it.
+  const known = typeof schema.$id === 'string' ? ajv.getSchema(schema.$id) : undefined
+  const validate = known ?? ajv.compile(schema)
+  return (body: unknown) => {
+    if (validate(body)) return { ok: true, value: body as T }
+    return { ok: false, errors: mapErrors(validate.errors) }
+  }
+}
+
+export const validateRun: Validator<StationRun> = compileSchema<StationRun>(runSchema)
+export const validateRunBatch: Validator<StationRunBatch> = compileSchema<StationRunBatch>(runBatchSchema)

@@ -1,0 +1,35 @@
+export const ROLES = ['admin', 'quality', 'engineer', 'operator', 'customer'] as const
+export type Role = (typeof ROLES)[number]
+
+export const STAFF: Role[] = ['admin', 'quality', 'engineer', 'operator']
+export const ROLE_LABELS: Record<Role, string> = {
+  admin: 'Administrator',
+  quality: 'Quality engineer',
+  engineer: 'Test engineer',
+  operator: 'Floor operator',
+  customer: 'Customer',
+}
+
+/** Where each role lands after signing in. */
+export const LANDING: Record<Role, string> = {
+  admin: '/admin/users',
+  quality: '/lots',
+  engineer: '/lots',
+  operator: '/floor',
+  customer: '/portal',
+}
+
+/** Pages by path prefix and the roles that may open them; anything not listed is staff-only. */
+export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
+  { prefix: '/admin', roles: ['admin'] },
+  { prefix: '/portal', roles: ['customer'] },
+  { prefix: '/floor', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  { prefix: '/stations', roles: ['admin', 'engineer'] },
+  { prefix: '/specs', roles: ['admin', 'quality', 'engineer'] },
+  { prefix: '/', roles: ['admin', 'quality', 'engineer', 'operator'] },
+]
+
+export function canOpenPage(role: Role, path: string): boolean {
+  const entry = PAGE_ACCESS.find((p) => path === p.prefix || path.startsWith(p.prefix === '/' ? '/' : p.prefix + '/') || (p.prefix !== '/' && path === p.prefix))
+  return !!entry && entry.roles.includes(role)
+}

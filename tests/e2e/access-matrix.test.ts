@@ -1,0 +1,76 @@
+import { beforeAll, describe, expect, it } from 'vitest'
+import { call, signIn, ROLE_ACCOUNTS } from '../support/http'
+import { apiRoutesFromFiles } from '../support/route-files'
+import { API_POLICY } from '../../server/utils/access-policy'
+
+type Who = 'admin' | 'quality' | 'engineer' | 'operator' | 'customer'
+const ALL: Who[] = ['admin', 'quality', 'engineer', 'operator', 'customer']
+const STAFF: Who[] = ['admin', 'quality', 'engineer', 'operator']
+
+/**
+ * The expected access of every API route, written out independently of the server's policy table.
+ * `sample` is a concrete path to call; a body-less call to an allowed write must stop at validation.
+ */
+const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
+  { route: 'GET /api/health', allow: 'public' },
+  { route: 'POST /api/auth/login', allow: 'public' },
+  { route: 'GET /api/me', allow: ALL },
+  { route: 'GET /api/users', allow: ['admin'] },
+  { route: 'POST /api/users', allow: ['admin'] },
+  { route: 'PATCH /api/users/:id', sample: '/api/users/999999', allow: ['admin'] },
+  { route: 'GET /api/customers', allow: ['admin', 'quality'] },
+  { route: 'GET /api/lots', allow: STAFF },
+]
+
+const cookies: Partial<Record<Who, string>> = {}
+
+beforeAll(async () => {
+  for (const who of ALL) cookies[who] = await signIn(ROLE_ACCOUNTS[who])
+})
+
+describe('route × role matrix', () => {
+  it('lists every API handler file, and the server has a rule for each', () => {
+    const files = apiRoutesFromFiles()
+    const inMatrix = MATRIX.map((m) => m.route).sort()
+    expect(files).toEqual(inMatrix)
+    for (const route of files) {
+      const [method, path] = route.split(' ')
+      expect(API_POLICY.some((r) => r.method === method && r.path === path), `${route} has no access rule`).toBe(true)
+    }
+  })
+
+  for (const entry of MATRIX) {
+    const [method, path] = entry.route.split(' ') as [string, string]
+    const target = entry.sample ?? path
+    it(`${entry.route}`, async () => {
+      const anonymous = await call(method, target, { body: method === 'GET' ? undefined : {} })
+      if (entry.allow === 'public') {
+        expect(anonymous.status).not.toBe(401)
+        expect(anonymous.status).not.toBe(403)
+        return
+      }
+      expect(anonymous.status).toBe(401)
+      for (const who of ALL) {
+        const r = await call(method, target, { cookie: cookies[who], body: method === 'GET' ? undefined : {} })
+        if (entry.allow.includes(who)) expect([401, 403], `${who} should be allowed`).not.toContain(r.status)
+        else expect(r.status, `${who} should be refused`).toBe(403)
+      }
+    })
+  }
+})
+
+describe('problem responses', () => {
+  it('an unknown API route is a 404 problem+json', async () => {
+    const r = await call('GET', '/api/no-such-thing', { cookie: cookies.admin })
+    expect(r.status).toBe(404)
+    expect(r.headers.get('content-type')).toContain('application/problem+json')
+    expect(r.body).toMatchObject({ status: 404, title: expect.any(String), type: expect.any(String), detail: expect.any(String) })
+  })
+
+  it('a forbidden call is a 403 problem+json', async () => {
+    const r = await call('GET', '/api/users', { cookie: cookies.operator })
+    expect(r.status).toBe(403)
+    expect(r.headers.get('content-type')).toContain('application/problem+json')
+    expect(r.body.status).toBe(403)
+  })
+})

@@ -1,0 +1,49 @@
+// Starts the built server once for the e2e and browser projects, against the test database.
+import { spawn, type ChildProcess } from 'node:child_process'
+import { existsSync } from 'node:fs'
+import net from 'node:net'
+import { resolve } from 'node:path'
+import type { TestProject } from 'vitest/node'
+
+declare module 'vitest' {
+  export interface ProvidedContext { baseUrl: string }
+}
+
+function freePort(): Promise<number> {
+  return new Promise((done, fail) => {
+    const srv = net.createServer().once('error', fail).listen(0, '127.0.0.1', () => {
+      const port = (srv.address() as net.AddressInfo).port
+      srv.close(() => done(port))
+    })
+  })
+}
+
+let child: ChildProcess | undefined
+
+export async function setup(project: TestProject) {
+  const entry = resolve(process.cwd(), '.output/server/index.mjs')
+  if (!existsSync(entry)) throw new Error('No build found: run the suite with "npm test", which builds first.')
+  const port = await freePort()
+  child = spawn(process.execPath, [entry], {
+    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', NODE_ENV: 'production', TERCET_TRUST_PROXY: '1' },
+    stdio: ['ignore', 'inherit', 'inherit'],
+  })
+  let exited: number | null = null
+  child.on('exit', (code) => { exited = code ?? -1 })
+  const baseUrl = `http://127.0.0.1:${port}`
+  const deadline = Date.now() + 30_000
+  for (;;) {
+    try {
+      const r = await fetch(`${baseUrl}/api/health`)
+      if (r.ok) break
+    } catch { /* not listening yet */ }
+    if (exited !== null) throw new Error(`The test server exited with code ${exited} before becoming healthy.`)
+    if (Date.now() > deadline) throw new Error('The test server did not become healthy within 30 s.')
+    await new Promise((r) => setTimeout(r, 200))
+  }
+  project.provide('baseUrl', baseUrl)
+}
+
+export async function teardown() {
+  child?.kill('SIGTERM')
+}
