@@ -22,9 +22,12 @@ export default defineNuxtConfig({
     migrateOnStart: false,
   },
   nitro: {
+    ...(process.env.TERCET_OUTPUT_DIR ? { output: { dir: process.env.TERCET_OUTPUT_DIR } } : {}),
     serverAssets: [{ baseName: 'fonts', dir: fontDir, pattern: 'roboto-mono-latin-{400,700}-normal.woff' }],
   },
   typescript: { strict: true },
+  // separate build folders let two checkouts' builds and test servers run side by side
+  ...(process.env.TERCET_BUILD_DIR ? { buildDir: process.env.TERCET_BUILD_DIR } : {}),
   hooks: {
     // API errors become problem+json first; Nuxt's own handler still renders page errors.
     'nitro:config'(config) {

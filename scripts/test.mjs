@@ -12,12 +12,13 @@ const { prepareDatabase } = await import('./lib/database.mjs')
 const { buildIfChanged } = await import('./lib/build.mjs')
 
 const env = loadEnv()
-const tokenFile = resolve(root, '.data/test-station-tokens.json')
-const db = await prepareDatabase(env, 'tercet_test', { recreate: true, seed: true, tokenFile })
+const testDb = env.TERCET_TEST_DB || 'tercet_test'
+const tokenFile = resolve(root, `.data/${testDb}-station-tokens.json`)
+const db = await prepareDatabase(env, testDb, { recreate: true, seed: true, tokenFile })
 buildIfChanged()
 
 log('running the test suite…')
-const report = resolve(root, '.data/vitest-report.json')
+const report = resolve(root, `.data/${testDb}-vitest-report.json`)
 rmSync(report, { force: true })
 const r = spawnSync(resolve(root, 'node_modules/.bin/vitest'), ['run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...process.argv.slice(2)], {
   cwd: root,

@@ -5,7 +5,8 @@ import { root } from './env.mjs'
 import { log, runOrFail } from './run.mjs'
 
 const SOURCES = ['app', 'server', 'shared', 'public', 'fixtures', 'nuxt.config.ts', 'tailwind.config.ts', 'package-lock.json']
-const stamp = resolve(root, '.output/.source-hash')
+const outputDir = resolve(root, process.env.TERCET_OUTPUT_DIR || '.output')
+const stamp = resolve(outputDir, '.source-hash')
 
 function walk(path, out) {
   const st = statSync(path)
@@ -22,7 +23,7 @@ function sourceHash() {
 /** Builds the server only when a source file changed since the last build. */
 export function buildIfChanged() {
   const hash = sourceHash()
-  if (existsSync(resolve(root, '.output/server/index.mjs')) && existsSync(stamp) && readFileSync(stamp, 'utf8') === hash) {
+  if (existsSync(resolve(outputDir, 'server/index.mjs')) && existsSync(stamp) && readFileSync(stamp, 'utf8') === hash) {
     log('build is up to date')
     return
   }

@@ -44,7 +44,8 @@ export function histogram(values: readonly number[], options: HistogramOptions):
   if (!Number.isFinite(lo) || !Number.isFinite(hi) || hi < lo) throw new RangeError('histogram range must be finite with max ≥ min')
   const nBins = hi === lo ? 1 : bins
   const width = (hi - lo) / nBins
-  const edges = Array.from({ length: nBins + 1 }, (_, i) => (i === nBins ? hi : lo + i * width))
+  // (hi − lo)·i/n rather than i·width keeps decimal edges such as 0.3 exact where they can be.
+  const edges = Array.from({ length: nBins + 1 }, (_, i) => (i === nBins ? hi : lo + ((hi - lo) * i) / nBins))
   const counts = new Array<number>(nBins).fill(0)
   let underflow = 0
   let overflow = 0

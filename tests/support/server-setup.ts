@@ -21,7 +21,7 @@ function freePort(): Promise<number> {
 let child: ChildProcess | undefined
 
 export async function setup(project: TestProject) {
-  const entry = resolve(process.cwd(), '.output/server/index.mjs')
+  const entry = resolve(process.cwd(), process.env.TERCET_OUTPUT_DIR || '.output', 'server/index.mjs')
   if (!existsSync(entry)) throw new Error('No build found: run the suite with "npm test", which builds first.')
   const port = await freePort()
   child = spawn(process.execPath, [entry], {

@@ -1,0 +1,42 @@
+// Short-lived in-process caches for what every posted run reads: products, approved limits, calibration dates.
+// Writers in this process invalidate them at once; the TTL bounds staleness from other processes.
+const TTL_MS = 10_000
+
+type Entry<T> = { at: number; value: T }
+
+export class TtlCache<K, V> {
+  private map = new Map<K, Entry<V>>()
+  constructor(private ttl = TTL_MS) {}
+  async get(key: K, load: () => Promise<V>): Promise<V> {
+    const hit = this.map.get(key)
+    if (hit && Date.now() - hit.at < this.ttl) return hit.value
+    const value = await load()
+    this.map.set(key, { at: Date.now(), value })
+    return value
+  }
+  delete(key: K): void { this.map.delete(key) }
+  clear(): void { this.map.clear() }
+}
+
+export const productCache = new TtlCache<string, unknown>()
+export const specCache = new TtlCache<number, unknown>()
+export const calibrationCache = new TtlCache<number, unknown>()
+export const lotCache = new TtlCache<string, unknown>(60_000)
+
+/** Call after a spec revision is approved (or limits in force change) for a product. */
+export function invalidateSpecCache(productId?: number): void {
+  if (productId === undefined) specCache.clear()
+  else specCache.delete(productId)
+  productCache.clear()
+}
+
+/** Call after a station's instruments or calibration dates change. */
+export function invalidateStationCache(stationId?: number): void {
+  if (stationId === undefined) calibrationCache.clear()
+  else calibrationCache.delete(stationId)
+}
+
+/** Call after a lot changes product or is removed; lot ids never change otherwise. */
+export function invalidateLotCache(): void {
+  lotCache.clear()
+}
