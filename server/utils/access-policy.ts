@@ -23,6 +23,19 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/customers', allow: ['admin', 'quality'] },
 
   { method: 'GET', path: '/api/lots', allow: STAFF },
+
+  { method: 'GET', path: '/api/stations', allow: ['admin', 'engineer'] },
+  { method: 'POST', path: '/api/stations', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/stations/:id', allow: ['admin', 'engineer'] },
+  { method: 'POST', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
+  { method: 'DELETE', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
+  { method: 'PUT', path: '/api/stations/:id/instruments', allow: ['admin', 'engineer'] },
+
+  { method: 'POST', path: '/api/v1/runs', allow: ['station'] },
+  { method: 'POST', path: '/api/v1/runs/batch', allow: ['station'] },
+  { method: 'GET', path: '/api/v1/schema/run.json', allow: 'public' },
+  { method: 'GET', path: '/api/products', allow: [...STAFF, 'station'] },
+  { method: 'GET', path: '/api/products/:partNumber/spec', allow: [...STAFF, 'station'] },
 ]
 
 export { STAFF as STAFF_CALLERS, ENGINEERING as ENGINEERING_CALLERS }

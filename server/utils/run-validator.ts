@@ -50,8 +50,16 @@ export interface StationRunBatch {
   runs: StationRun[]
 }
 
-export const runSchema: AnySchemaObject = runSchemaJson as AnySchemaObject
-export const runBatchSchema: AnySchemaObject = runBatchSchemaJson as AnySchemaObject
+// Some loaders (jiti) hand a JSON import over with the object repeated under `default`.
+function jsonModule(m: unknown): AnySchemaObject {
+  const o = m as { default?: AnySchemaObject }
+  if (!o.default || typeof o.default !== 'object' || !('$schema' in o.default)) return o as AnySchemaObject
+  const { default: _wrapped, ...schema } = o.default as AnySchemaObject & { default?: unknown }
+  return schema as AnySchemaObject
+}
+
+export const runSchema: AnySchemaObject = jsonModule(runSchemaJson)
+export const runBatchSchema: AnySchemaObject = jsonModule(runBatchSchemaJson)
 
 // useDefaults writes schema defaults (the run's step) into the validated body in place.
 const ajv = new Ajv2020({ strict: true, allErrors: true, useDefaults: true })
@@ -96,7 +104,8 @@ function mapErrors(errors: readonly ErrorObject[] | null | undefined): Validatio
 }
 
 /** Compiles a JSON Schema (draft 2020-12, strict) into a validator with pointer/message errors. */
-export function compileSchema<T>(schema: AnySchemaObject): Validator<T> {
+export function compileSchema<T>(schemaModule: AnySchemaObject): Validator<T> {
+  const schema = jsonModule(schemaModule)
   // Schemas are shared by $id on one instance so that they can $ref each other; compiling a known $id again reuses it.
   const known = typeof schema.$id === 'string' ? ajv.getSchema(schema.$id) : undefined
   const validate = known ?? ajv.compile(schema)

@@ -1,6 +1,51 @@
 import type { Knex } from 'knex'
+import { DEMO_LOTS, DEMO_PRODUCTS, DEMO_STATIONS, type DemoProduct } from '../../../fixtures/demo-catalogue'
+import { generateRun, mulberry32, type GeneratedRun } from '../../../fixtures/run-generator'
+import { ingestRun } from '../../services/ingest/ingest-run'
+import { validateRun } from '../../utils/run-validator'
 
-/** Test-run history for the demo lots; filled in through the ingest service. */
-export async function seedDemoHistory(_db: Knex): Promise<number> {
-  return 0
+const HOUR = 3_600_000
+
+/** What the station's own sequencer would say: simple acceptance against the catalogue limits. */
+function stationJudgement(product: DemoProduct, run: GeneratedRun): 'pass' | 'fail' {
+  for (const m of run.measurements) {
+    const q = m.offsetHz ?? m.harmonic ?? 0
+    const l = product.limits.find((x) => x.step === run.step && x.name === m.name && (x.qualifier ?? 0) === q)
+    if (l && ((l.lsl !== undefined && m.value < l.lsl) || (l.usl !== undefined && m.value > l.usl))) return 'fail'
+  }
+  return 'pass'
+}
+
+/** Test history for the demo lots, posted through the same ingest service the stations use. */
+export async function seedDemoHistory(db: Knex, now = new Date()): Promise<number> {
+  const rand = mulberry32(20261201)
+  const stations = await db('stations').select('id', 'name')
+  const stationByName = new Map(stations.map((s: any) => [s.name, { id: s.id, name: s.name }]))
+  let count = 0
+  for (const lot of DEMO_LOTS) {
+    const product = DEMO_PRODUCTS.find((p) => p.partNumber === lot.partNumber)!
+    const lines = DEMO_STATIONS.filter((s) => s.partNumber === lot.partNumber).map((s) => stationByName.get(s.name)!)
+    const span = 17 * 24 * HOUR
+    const start = now.getTime() - 18 * 24 * HOUR
+    for (let u = 0; u < lot.units; u++) {
+      const serial = `${lot.code.slice(0, 2)}${lot.code.slice(3, 7)}-${String(u + 1).padStart(4, '0')}`
+      const station = lines[u % lines.length]!
+      let t = start + (span * u) / lot.units
+      for (const step of product.steps) {
+        const post = async (failRate: number) => {
+          const run = generateRun({ product, lot: lot.code, serial, step, startedAt: new Date(t), rand, progress: u / lot.units, drift: lot.drift, failRate, withTrace: step === 'final' })
+          run.stationVerdict = stationJudgement(product, run)
+          const v = validateRun(run)
+          if (!v.ok) throw new Error(`generated run is invalid: ${JSON.stringify(v.errors)}`)
+          const r = await ingestRun(db, station, v.value, now)
+          count++
+          t += 20 * 60_000
+          return r.status === 201 ? r.run.verdict : 'pass'
+        }
+        const verdict = await post(step === 'final' ? 0.05 : 0.02)
+        if (verdict === 'fail') await post(0)
+      }
+    }
+  }
+  return count
 }

@@ -1,0 +1,57 @@
+import type { Knex } from 'knex'
+
+export type ProductInfo = {
+  id: number; partNumber: string; name: string; multiplier: number; inputHz: number; outputHz: number
+  steps: string[]; jitterBand: [number, number]
+}
+
+export type SpecLimit = {
+  step: string; name: string; qualifier: number; lsl: number | null; usl: number | null; target: number | null
+  unit: string; required: boolean; rule: 'simple' | 'guarded'; defaultUncertainty: number | null; key: boolean
+}
+
+export type RevisionInForce = { id: number; revision: number; effectiveAt: Date; status: string; limits: SpecLimit[] }
+
+function parseSteps(v: unknown): string[] {
+  return Array.isArray(v) ? v : JSON.parse(String(v))
+}
+
+function toProduct(r: any): ProductInfo {
+  return {
+    id: r.id, partNumber: r.part_number, name: r.name, multiplier: r.multiplier, inputHz: r.input_hz, outputHz: r.output_hz,
+    steps: parseSteps(r.steps), jitterBand: [r.jitter_band_lo_hz, r.jitter_band_hi_hz],
+  }
+}
+
+export async function findProductByPart(db: Knex, partNumber: string): Promise<ProductInfo | undefined> {
+  const r = await db('products').where({ part_number: partNumber }).first()
+  return r ? toProduct(r) : undefined
+}
+
+export async function listProducts(db: Knex): Promise<ProductInfo[]> {
+  return (await db('products').orderBy('part_number')).map(toProduct)
+}
+
+export function toLimit(l: any): SpecLimit {
+  return {
+    step: l.step, name: l.name, qualifier: l.qualifier, lsl: l.lsl, usl: l.usl, target: l.target, unit: l.unit,
+    required: !!l.required, rule: l.rule, defaultUncertainty: l.default_uncertainty, key: !!l.key_characteristic,
+  }
+}
+
+/** Approved and superseded revisions of a product, newest effective first, each with its limits. */
+export async function listEffectiveRevisions(db: Knex, productId: number): Promise<RevisionInForce[]> {
+  const revs = await db('spec_revisions').where({ product_id: productId }).whereIn('status', ['approved', 'superseded'])
+    .whereNotNull('effective_at').orderBy('effective_at', 'desc').orderBy('revision', 'desc')
+  if (!revs.length) return []
+  const limits = await db('spec_limits').whereIn('revision_id', revs.map((r: any) => r.id)).orderBy('id')
+  return revs.map((r: any) => ({
+    id: r.id, revision: r.revision, effectiveAt: r.effective_at, status: r.status,
+    limits: limits.filter((l: any) => l.revision_id === r.id).map(toLimit),
+  }))
+}
+
+/** The revision in force at time t: the latest effective one not after t. */
+export function revisionAt(revisions: RevisionInForce[], t: Date): RevisionInForce | undefined {
+  return revisions.find((r) => r.effectiveAt.getTime() <= t.getTime())
+}

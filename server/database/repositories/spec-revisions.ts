@@ -1,0 +1,130 @@
+import type { Knex } from 'knex'
+import type { SpecLimitRow } from '../../../shared/utils/spec-limits'
+
+export type RevisionStatus = 'draft' | 'approved' | 'superseded'
+export type Person = { id: number; name: string } | null
+
+export type RevisionRecord = {
+  id: number; productId: number; partNumber: string; revision: number; status: RevisionStatus
+  effectiveAt: Date | null; author: Person; approvedBy: Person; approvedAt: Date | null; note: string | null; createdAt: Date
+  limitCount: number
+}
+
+const EFFECTIVE: RevisionStatus[] = ['approved', 'superseded']
+
+function person(id: number | null, name: string | null): Person {
+  return id == null ? null : { id, name: name ?? '' }
+}
+
+function toRevision(r: any): RevisionRecord {
+  return {
+    id: r.id, productId: r.product_id, partNumber: r.part_number, revision: r.revision, status: r.status,
+    effectiveAt: r.effective_at ?? null, author: person(r.author_id, r.author_name), approvedBy: person(r.approved_by, r.approver_name),
+    approvedAt: r.approved_at ?? null, note: r.note ?? null, createdAt: r.created_at, limitCount: Number(r.limit_count ?? 0),
+  }
+}
+
+function base(db: Knex) {
+  return db('spec_revisions as r').join('products as p', 'p.id', 'r.product_id')
+    .leftJoin('users as a', 'a.id', 'r.author_id').leftJoin('users as q', 'q.id', 'r.approved_by')
+    .select('r.*', 'p.part_number', 'a.name as author_name', 'q.name as approver_name',
+      db('spec_limits as l').count('*').whereRaw('l.revision_id = r.id').as('limit_count'))
+}
+
+export async function listRevisionsOfProduct(db: Knex, productId: number): Promise<RevisionRecord[]> {
+  return (await base(db).where('r.product_id', productId).orderBy('r.revision', 'desc')).map(toRevision)
+}
+
+export async function listAllRevisions(db: Knex): Promise<RevisionRecord[]> {
+  return (await base(db).orderBy('p.part_number').orderBy('r.revision', 'desc')).map(toRevision)
+}
+
+export async function findRevision(db: Knex, id: number): Promise<RevisionRecord | undefined> {
+  const r = await base(db).where('r.id', id).first()
+  return r ? toRevision(r) : undefined
+}
+
+/** Locks the revision row for the rest of the transaction and returns its product and status. */
+export async function lockRevision(trx: Knex, id: number): Promise<{ id: number; productId: number; status: RevisionStatus; authorId: number | null; revision: number } | undefined> {
+  const r = await trx('spec_revisions').where({ id }).forUpdate().first('id', 'product_id', 'status', 'author_id', 'revision')
+  return r ? { id: r.id, productId: r.product_id, status: r.status, authorId: r.author_id, revision: r.revision } : undefined
+}
+
+export async function findDraftOf(db: Knex, productId: number): Promise<{ id: number; revision: number } | undefined> {
+  return db('spec_revisions').where({ product_id: productId, status: 'draft' }).orderBy('revision', 'desc').first('id', 'revision')
+}
+
+/** The revision in force at `at` (the latest effective one not after it), else the earliest one still to take effect. */
+export async function findSourceRevision(db: Knex, productId: number, at: Date): Promise<{ id: number; revision: number } | undefined> {
+  const inForce = await db('spec_revisions').where({ product_id: productId }).whereIn('status', EFFECTIVE).where('effective_at', '<=', at)
+    .orderBy('effective_at', 'desc').orderBy('revision', 'desc').first('id', 'revision')
+  if (inForce) return inForce
+  return db('spec_revisions').where({ product_id: productId }).whereIn('status', EFFECTIVE).orderBy('effective_at').first('id', 'revision')
+}
+
+export async function latestEffectiveAt(db: Knex, productId: number): Promise<{ revision: number; effectiveAt: Date } | undefined> {
+  const r = await db('spec_revisions').where({ product_id: productId }).whereIn('status', EFFECTIVE).orderBy('effective_at', 'desc').first('revision', 'effective_at')
+  return r ? { revision: r.revision, effectiveAt: r.effective_at } : undefined
+}
+
+export async function nextRevisionNumber(trx: Knex, productId: number): Promise<number> {
+  const r = await trx('spec_revisions').where({ product_id: productId }).max<{ n: number | null }[]>({ n: 'revision' })
+  return Number(r[0]?.n ?? 0) + 1
+}
+
+export async function insertRevision(trx: Knex, r: { productId: number; revision: number; authorId: number; note: string | null }): Promise<number> {
+  const [id] = await trx('spec_revisions').insert({ product_id: r.productId, revision: r.revision, status: 'draft', author_id: r.authorId, note: r.note })
+  return id!
+}
+
+function toLimitRow(l: any): SpecLimitRow {
+  return {
+    step: l.step, name: l.name, qualifier: l.qualifier, lsl: l.lsl, usl: l.usl, target: l.target, unit: l.unit,
+    required: !!l.required, rule: l.rule, defaultUncertainty: l.default_uncertainty, key: !!l.key_characteristic,
+  }
+}
+
+export async function listLimitsOf(db: Knex, revisionId: number): Promise<SpecLimitRow[]> {
+  return (await db('spec_limits').where({ revision_id: revisionId }).orderBy('id')).map(toLimitRow)
+}
+
+export async function listLimitsOfMany(db: Knex, revisionIds: number[]): Promise<Map<number, SpecLimitRow[]>> {
+  const out = new Map<number, SpecLimitRow[]>(revisionIds.map((id) => [id, []]))
+  if (!revisionIds.length) return out
+  for (const l of await db('spec_limits').whereIn('revision_id', revisionIds).orderBy('id')) out.get(l.revision_id)!.push(toLimitRow(l))
+  return out
+}
+
+/** Replaces every limit of a revision, keeping the given order. */
+export async function replaceLimits(trx: Knex, revisionId: number, limits: readonly SpecLimitRow[]): Promise<void> {
+  await trx('spec_limits').where({ revision_id: revisionId }).delete()
+  if (!limits.length) return
+  await trx('spec_limits').insert(limits.map((l) => ({
+    revision_id: revisionId, step: l.step, name: l.name, qualifier: l.qualifier, lsl: l.lsl, usl: l.usl, target: l.target, unit: l.unit,
+    required: l.required, rule: l.rule, default_uncertainty: l.defaultUncertainty, key_characteristic: l.key,
+  })))
+}
+
+export async function markApproved(trx: Knex, id: number, a: { approvedBy: number; approvedAt: Date; effectiveAt: Date; note?: string }): Promise<void> {
+  const row: Record<string, unknown> = { status: 'approved', approved_by: a.approvedBy, approved_at: a.approvedAt, effective_at: a.effectiveAt }
+  if (a.note !== undefined) row.note = a.note
+  await trx('spec_revisions').where({ id, status: 'draft' }).update(row)
+}
+
+/** Marks every other approved revision of the product superseded; returns their ids and numbers. */
+export async function supersedeApproved(trx: Knex, productId: number, exceptId: number): Promise<{ id: number; revision: number }[]> {
+  const rows = await trx('spec_revisions').where({ product_id: productId, status: 'approved' }).whereNot('id', exceptId).forUpdate().select('id', 'revision')
+  if (rows.length) await trx('spec_revisions').whereIn('id', rows.map((r: any) => r.id)).update({ status: 'superseded' })
+  return rows
+}
+
+/** Steps used by limits of the product's drafts, approved revisions and the listed others, with the revision numbers. */
+export async function stepsInUse(db: Knex, productId: number, alsoRevisionIds: number[] = []): Promise<Map<string, number[]>> {
+  const rows = await db('spec_limits as l').join('spec_revisions as r', 'r.id', 'l.revision_id')
+    .where('r.product_id', productId)
+    .where((w) => { w.whereIn('r.status', ['draft', 'approved']); if (alsoRevisionIds.length) w.orWhereIn('r.id', alsoRevisionIds) })
+    .distinct('l.step', 'r.revision')
+  const out = new Map<string, number[]>()
+  for (const r of rows) out.set(r.step, [...(out.get(r.step) ?? []), r.revision])
+  return out
+}

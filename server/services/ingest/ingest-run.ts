@@ -1,0 +1,164 @@
+import type { Knex } from 'knex'
+import type { StationRun } from '../../utils/run-validator'
+import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
+import { findRunHashByUuid, insertMeasurements, insertRun, insertTraces, loadRunsWithMeasurements } from '../../database/repositories/runs'
+import { calibrationCache, lotCache, productCache, specCache } from './caches'
+import { bodyHash } from './canonical'
+import { judgeRun, RunRejected } from './judge-run'
+import { updateParamStats, updateStepStats } from './aggregates'
+import { measurementView, qualifierFields, runViewFromRows, type RunView } from './run-view'
+
+export { RunRejected }
+
+export type IngestOutcome =
+  | { status: 201 | 200; run: RunView }
+  | { status: 409; detail: string }
+
+export type StationRef = { id: number; name: string }
+
+const FUTURE_SLACK_MS = 5 * 60_000
+
+function productFor(db: Knex, partNumber: string) {
+  return productCache.get(partNumber, () => findProductByPart(db, partNumber)) as Promise<ProductInfo | undefined>
+}
+
+function revisionsFor(db: Knex, productId: number) {
+  return specCache.get(productId, () => listEffectiveRevisions(db, productId)) as Promise<RevisionInForce[]>
+}
+
+/** Earliest calibration due date among the station's instruments (null: none recorded). */
+function earliestCalibration(db: Knex, stationId: number) {
+  return calibrationCache.get(stationId, async () => {
+    const r = await db('instruments').where({ station_id: stationId }).min<{ due: Date | null }[]>({ due: 'calibration_due' })
+    return r[0]?.due ? new Date(r[0].due) : null
+  }) as Promise<Date | null>
+}
+
+async function lotFor(db: Knex, code: string, product: ProductInfo): Promise<number> {
+  const lot = await lotCache.get(code, async () => {
+    let row = await db('lots').where({ code }).first('id', 'product_id')
+    if (!row) {
+      await db.raw('INSERT IGNORE INTO lots (product_id, code) VALUES (?, ?)', [product.id, code])
+      row = await db('lots').where({ code }).first('id', 'product_id')
+    }
+    return { id: row.id as number, productId: row.product_id as number }
+  }) as { id: number; productId: number }
+  if (lot.productId !== product.id) {
+    throw new RunRejected(`Lot ${code} belongs to another part number.`, [{ pointer: '/lot', message: 'lot belongs to another part' }])
+  }
+  return lot.id
+}
+
+async function unitFor(trx: Knex, product: ProductInfo, lotId: number, run: StationRun): Promise<number> {
+  let unit = await trx('units').where({ product_id: product.id, serial: run.serial }).first('id', 'lot_id')
+  if (!unit) {
+    await trx.raw('INSERT IGNORE INTO units (product_id, lot_id, serial) VALUES (?, ?, ?)', [product.id, lotId, run.serial])
+    unit = await trx('units').where({ product_id: product.id, serial: run.serial }).first('id', 'lot_id')
+  }
+  if (unit.lot_id !== lotId) {
+    throw new RunRejected(`Serial ${run.serial} is recorded in another lot.`, [{ pointer: '/lot', message: 'the serial belongs to another lot' }])
+  }
+  return unit.id
+}
+
+export async function loadRunView(db: Knex, runId: number): Promise<RunView> {
+  const [hit] = await loadRunsWithMeasurements(db, [runId])
+  return runViewFromRows(hit!.run, hit!.measurements)
+}
+
+async function replay(db: Knex, uuid: string, hash: string): Promise<IngestOutcome | undefined> {
+  const existing = await findRunHashByUuid(db, uuid)
+  if (!existing) return undefined
+  if (existing.bodyHash !== hash) return { status: 409, detail: `Run ${uuid} was already stored with a different body.` }
+  return { status: 200, run: await loadRunView(db, existing.id) }
+}
+
+function checkTimes(run: StationRun, now: Date): { startedAt: Date; finishedAt: Date } {
+  const startedAt = new Date(run.startedAt)
+  const finishedAt = new Date(run.finishedAt)
+  if (finishedAt < startedAt) throw new RunRejected('finishedAt is before startedAt.', [{ pointer: '/finishedAt', message: 'must not be before startedAt' }])
+  if (finishedAt.getTime() > now.getTime() + FUTURE_SLACK_MS) throw new RunRejected('finishedAt lies more than 5 minutes in the future.', [{ pointer: '/finishedAt', message: 'in the future' }])
+  return { startedAt, finishedAt }
+}
+
+const RETRYABLE = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT'])
+
+/**
+ * Stores one validated run: judged against the revision in force at its start, with the unit, attempt,
+ * measurements, traces and lot aggregates written in one transaction. Same id and body again → 200.
+ */
+export async function ingestRun(db: Knex, station: StationRef, run: StationRun, now = new Date()): Promise<IngestOutcome> {
+  const hash = bodyHash(run)
+  const earlier = await replay(db, run.id, hash)
+  if (earlier) return earlier
+
+  const { startedAt, finishedAt } = checkTimes(run, now)
+  const product = await productFor(db, run.partNumber)
+  if (!product) throw new RunRejected(`Unknown part number ${run.partNumber}.`, [{ pointer: '/partNumber', message: 'unknown part number' }])
+  const revision = revisionAt(await revisionsFor(db, product.id), startedAt)
+  if (!revision) throw new RunRejected(`No approved specification of ${product.partNumber} was in force at ${startedAt.toISOString()}.`, [{ pointer: '/startedAt', message: 'no approved specification in force' }])
+  const judged = judgeRun(run, product, revision)
+  const lotId = await lotFor(db, run.lot, product)
+  const due = await earliestCalibration(db, station.id)
+  const calibrationLapsed = due !== null && due.getTime() < finishedAt.getTime()
+
+  for (let tries = 0; ; tries++) {
+    try {
+      const attempt = await db.transaction(async (trx) => {
+        const unitId = await unitFor(trx, product, lotId, run)
+        const prev = await trx('unit_steps').where({ unit_id: unitId, step: run.step }).forUpdate().first('attempts', 'latest_verdict')
+        const attempt = (prev?.attempts ?? 0) + 1
+        const runId = await insertRun(trx, {
+          uuid: run.id, bodyHash: hash, unitId, lotId, stationId: station.id, revisionId: revision.id, step: run.step, attempt,
+          startedAt, finishedAt, operator: run.operator ?? null, softwareSequence: run.software?.sequence ?? null,
+          softwareVersion: run.software?.version ?? null, temperatureC: run.conditions?.temperatureC ?? null,
+          supplyV: run.conditions?.supplyV ?? null, stationVerdict: run.stationVerdict ?? null, serverVerdict: judged.verdict,
+          verdictDisagrees: !!run.stationVerdict && run.stationVerdict !== judged.verdict, missingRequired: judged.missingRequired,
+          calibrationLapsed, measurementIssue: judged.measurementIssue, reference: run.reference ?? null,
+        })
+        const ctx = { lotId, stationId: station.id, step: run.step, attempt, startedAt }
+        await insertMeasurements(trx, runId, { ...ctx, firstAttempt: attempt === 1 }, judged.measurements)
+        await insertTraces(trx, runId, run.traces ?? [])
+        if (prev) {
+          await trx('unit_steps').where({ unit_id: unitId, step: run.step }).update({ attempts: attempt, latest_verdict: judged.verdict, latest_run_id: runId })
+        } else {
+          await trx('unit_steps').insert({ unit_id: unitId, step: run.step, attempts: 1, first_verdict: judged.verdict, latest_verdict: judged.verdict, latest_run_id: runId })
+        }
+        await updateStepStats(trx, ctx, judged.verdict, prev?.latest_verdict ?? null)
+        await updateParamStats(trx, ctx, judged.measurements)
+        return attempt
+      })
+      touchStation(db, station.id, now)
+      return {
+        status: 201,
+        run: {
+          id: run.id, serial: run.serial, partNumber: product.partNumber, lot: run.lot, step: run.step, attempt, station: station.name,
+          startedAt: startedAt.toISOString(), finishedAt: finishedAt.toISOString(), verdict: judged.verdict,
+          stationVerdict: run.stationVerdict ?? null, verdictDisagrees: !!run.stationVerdict && run.stationVerdict !== judged.verdict,
+          incomplete: judged.missingRequired.length > 0,
+          missingRequired: judged.missingRequired.map((m) => ({ name: m.name, ...qualifierFields(m.name, m.qualifier) })),
+          calibrationLapsed, measurementIssue: judged.measurementIssue, revision: revision.revision,
+          measurements: judged.measurements.map(measurementView),
+        },
+      }
+    } catch (e: any) {
+      if (e?.code === 'ER_DUP_ENTRY') {
+        // a concurrent post of the same id, or of the same unit's first attempt at this step
+        const again = await replay(db, run.id, hash)
+        if (again) return again
+        if (tries < 3) continue
+      }
+      if (RETRYABLE.has(e?.code) && tries < 3) continue
+      throw e
+    }
+  }
+}
+
+const lastTouch = new Map<number, number>()
+/** last_seen_at moves at most every 5 s per station, outside the run's transaction. */
+function touchStation(db: Knex, stationId: number, now: Date): void {
+  const prev = lastTouch.get(stationId) ?? 0
+  if (now.getTime() - prev < 5000) return
+  lastTouch.set(stationId, now.getTime())
+  db('stations').where({ id: stationId }).update({ last_seen_at: now }).catch(() => lastTouch.delete(stationId))
+}

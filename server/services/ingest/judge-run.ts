@@ -1,0 +1,104 @@
+// Pure judgement of one posted run against the revision in force: no database, no clock.
+import { judge, hasLimit } from '../../../shared/utils/decision'
+import { rmsJitterSeconds, type PhaseNoisePointTuple } from '../../../shared/utils/jitter'
+import { expectedUnit, qualifierKey } from '../../../shared/utils/measurement-names'
+import { multiplicationCheck } from '../../../shared/utils/multiplication-check'
+import { ppmError } from '../../../shared/utils/rf'
+import type { ProductInfo, RevisionInForce, SpecLimit } from '../../database/repositories/spec-lookup'
+import type { StationRun } from '../../utils/run-validator'
+
+export type AppliedLimit = { lsl: number | null; usl: number | null; target: number | null; rule: 'simple' | 'guarded'; guardBand: number }
+
+export type JudgedMeasurement = {
+  name: string; qualifier: number; value: number; unit: string; uncertainty: number | null
+  limit: AppliedLimit | null; verdict: 'pass' | 'fail' | 'info'; zone: 'inside' | 'guard' | 'outside' | null
+  derived: boolean; excessDb: number | null; outOfSpec: boolean
+}
+
+export type RunJudgement = {
+  measurements: JudgedMeasurement[]
+  verdict: 'pass' | 'fail'
+  missingRequired: { name: string; qualifier: number }[]
+  measurementIssue: boolean
+}
+
+export class RunRejected extends Error {
+  constructor(message: string, public errors: { pointer: string; message: string }[] = []) { super(message) }
+}
+
+const key = (name: string, q: number) => `${name}@${q}`
+
+function applyLimit(m: Omit<JudgedMeasurement, 'limit' | 'verdict' | 'zone' | 'outOfSpec'>, limit: SpecLimit | undefined): JudgedMeasurement {
+  if (!limit || !hasLimit(limit)) return { ...m, limit: null, verdict: 'info', zone: null, outOfSpec: false }
+  const j = judge(m.value, { lsl: limit.lsl, usl: limit.usl, rule: limit.rule, defaultUncertainty: limit.defaultUncertainty }, m.uncertainty)
+  const outOfSpec = (limit.lsl != null && m.value < limit.lsl) || (limit.usl != null && m.value > limit.usl) || !Number.isFinite(m.value)
+  return {
+    ...m, limit: { lsl: limit.lsl, usl: limit.usl, target: limit.target, rule: limit.rule, guardBand: j.guardBand },
+    verdict: j.verdict, zone: j.zone, outOfSpec,
+  }
+}
+
+function jitterPoints(run: StationRun, posted: JudgedMeasurement[]): PhaseNoisePointTuple[] {
+  const sweep = run.traces?.find((t) => t.name === 'phase_noise_sweep')
+  if (sweep && sweep.points.length >= 2) return sweep.points.map(([f, l]) => [f, l] as const)
+  return posted.filter((m) => m.name === 'phase_noise').map((m) => [m.qualifier, m.value] as const)
+}
+
+/** Judges every measurement, adds the derived ones, and finds what the spec requires but the run lacks. */
+export function judgeRun(run: StationRun, product: ProductInfo, revision: RevisionInForce | undefined): RunJudgement {
+  if (!product.steps.includes(run.step)) {
+    throw new RunRejected(`Step "${run.step}" is not a test step of ${product.partNumber} (${product.steps.join(', ')}).`, [{ pointer: '/step', message: 'unknown step for this part' }])
+  }
+  const limits = new Map<string, SpecLimit>()
+  for (const l of revision?.limits ?? []) if (l.step === run.step) limits.set(key(l.name, l.qualifier), l)
+
+  const errors: { pointer: string; message: string }[] = []
+  const seen = new Set<string>()
+  const base: Omit<JudgedMeasurement, 'limit' | 'verdict' | 'zone' | 'outOfSpec'>[] = []
+  run.measurements.forEach((m, i) => {
+    const q = qualifierKey(m.name, { offsetHz: m.offsetHz, harmonic: m.harmonic }) ?? 0
+    const k = key(m.name, q)
+    const unit = expectedUnit(m.name) ?? limits.get(k)?.unit
+    if (unit && unit !== m.unit) errors.push({ pointer: `/measurements/${i}/unit`, message: `${m.name} is specified in ${unit}, not ${m.unit}` })
+    if (seen.has(k)) errors.push({ pointer: `/measurements/${i}`, message: `${m.name} appears twice with the same qualifier` })
+    seen.add(k)
+    base.push({ name: m.name, qualifier: q, value: m.value, unit: m.unit, uncertainty: m.uncertainty ?? null, derived: false, excessDb: null })
+  })
+  if (errors.length) throw new RunRejected('Some measurements do not match the specification.', errors)
+
+  let measurementIssue = false
+  if (run.reference?.phaseNoise?.length) {
+    const pn = base.filter((m) => m.name === 'phase_noise')
+    let rows
+    try {
+      rows = multiplicationCheck(run.reference.phaseNoise, product.multiplier, pn.map((m) => ({ offsetHz: m.qualifier, value: m.value, uncertainty: m.uncertainty })))
+    } catch (e) {
+      throw new RunRejected('The reference phase noise cannot be used.', [{ pointer: '/reference/phaseNoise', message: (e as Error).message }])
+    }
+    rows.forEach((r, i) => {
+      pn[i]!.excessDb = r.excessDb
+      if (r.implausible) measurementIssue = true
+    })
+  }
+
+  const judged = base.map((m) => applyLimit(m, limits.get(key(m.name, m.qualifier))))
+  const derived: JudgedMeasurement[] = []
+  const freq = judged.find((m) => m.name === 'output_frequency')
+  if (freq && !seen.has(key('frequency_error', 0))) {
+    const u = freq.uncertainty != null ? (freq.uncertainty / product.outputHz) * 1e6 : null
+    derived.push(applyLimit({ name: 'frequency_error', qualifier: 0, value: ppmError(freq.value, product.outputHz), unit: 'ppm', uncertainty: u, derived: true, excessDb: null }, limits.get(key('frequency_error', 0))))
+  }
+  const points = jitterPoints(run, judged)
+  if (points.length >= 2 && !seen.has(key('integrated_jitter', 0))) {
+    try {
+      const j = rmsJitterSeconds(points, product.jitterBand[0], product.jitterBand[1], product.outputHz)
+      if (j.complete) derived.push(applyLimit({ name: 'integrated_jitter', qualifier: 0, value: j.jitterS, unit: 's', uncertainty: null, derived: true, excessDb: null }, limits.get(key('integrated_jitter', 0))))
+    } catch { /* the points do not cover the band: no jitter is derived */ }
+  }
+
+  const all = [...judged, ...derived]
+  const present = new Set(all.map((m) => key(m.name, m.qualifier)))
+  const missingRequired = [...limits.values()].filter((l) => l.required && !present.has(key(l.name, l.qualifier))).map((l) => ({ name: l.name, qualifier: l.qualifier }))
+  const verdict = missingRequired.length || all.some((m) => m.verdict === 'fail') ? 'fail' : 'pass'
+  return { measurements: all, verdict, missingRequired, measurementIssue }
+}

@@ -1,0 +1,124 @@
+import type { Knex } from 'knex'
+import { calibrationState, dueInstant, worstCalibration, type CalibrationState } from '../../shared/utils/calibration'
+import { writeAudit } from '../database/repositories/audit'
+import { insertToken, revokeTokens } from '../database/repositories/station-tokens'
+import {
+  activeTokenHints, findStation, insertStation, listInstruments, listStations, listTokens, lockStation, replaceInstruments,
+  type InstrumentRow, type StationRow, type TokenRow,
+} from '../database/repositories/stations'
+import { generateStationToken } from '../utils/station-token'
+
+export type NewStation = { name: string; location?: string | null; description?: string | null }
+export type InstrumentListInput = { instruments: { kind: string; model: string; serial: string; calibrationDue: string }[] }
+
+export type InstrumentView = { id: number; kind: string; model: string; serial: string; calibrationDue: Date; state: CalibrationState }
+export type StationView = StationRow & { instruments: InstrumentView[]; calibrationState: CalibrationState | null }
+export type StationDetail = StationView & { tokens: TokenRow[] }
+
+/** A station write refused for a reason the schema cannot express; `pointer` names the field. */
+export class StationRuleError extends Error {
+  constructor(public status: 400 | 409, message: string, public pointer: string) { super(message) }
+}
+
+function view(s: StationRow, instruments: InstrumentRow[], now: Date): StationView {
+  const list = instruments.filter((i) => i.stationId === s.id).map((i) => ({
+    id: i.id, kind: i.kind, model: i.model, serial: i.serial, calibrationDue: i.calibrationDue, state: calibrationState(i.calibrationDue, now),
+  }))
+  return { ...s, instruments: list, calibrationState: worstCalibration(list.map((i) => i.state)) }
+}
+
+function instrumentAudit(list: { kind: string; model: string; serial: string; calibrationDue: Date }[]) {
+  return list.map((i) => ({ kind: i.kind, model: i.model, serial: i.serial, calibrationDue: i.calibrationDue.toISOString() }))
+}
+
+function blankToNull(v: string | null | undefined): string | null {
+  const t = v?.trim()
+  return t ? t : null
+}
+
+export async function stationList(db: Knex, now = new Date()): Promise<StationView[]> {
+  const stations = await listStations(db, now)
+  const instruments = await listInstruments(db, stations.map((s) => s.id))
+  return stations.map((s) => view(s, instruments, now))
+}
+
+async function stationView(db: Knex, id: number, now = new Date()): Promise<StationView | undefined> {
+  const s = await findStation(db, id, now)
+  return s && view(s, await listInstruments(db, [id]), now)
+}
+
+export async function stationDetail(db: Knex, id: number, now = new Date()): Promise<StationDetail | undefined> {
+  const station = await stationView(db, id, now)
+  return station && { ...station, tokens: await listTokens(db, id) }
+}
+
+/** Creates the station with its first token; the token is returned here and nowhere else. */
+export async function createStation(db: Knex, actorId: number | null, input: NewStation): Promise<{ station: StationView; token: string }> {
+  const name = input.name.trim()
+  if (!name) throw new StationRuleError(400, 'The station name must not be blank.', '/name')
+  const t = generateStationToken()
+  try {
+    return await db.transaction(async (trx) => {
+      const id = await insertStation(trx, { name, location: blankToNull(input.location), description: blankToNull(input.description) })
+      await insertToken(trx, { stationId: id, tokenHash: t.hash, hint: t.hint, createdBy: actorId })
+      const created = (await stationView(trx, id))!
+      await writeAudit(trx, {
+        userId: actorId, action: 'create', entity: 'station', entityId: id,
+        after: { name: created.name, location: created.location, description: created.description, tokenHint: t.hint },
+      })
+      return { station: created, token: t.token }
+    })
+  } catch (e) {
+    if ((e as any)?.code === 'ER_DUP_ENTRY') throw new StationRuleError(409, `A station named "${name}" already exists.`, '/name')
+    throw e
+  }
+}
+
+/** Revokes every active token and issues a new one; undefined for an unknown station. */
+export async function rotateStationToken(db: Knex, actorId: number | null, stationId: number): Promise<{ token: string; hint: string } | undefined> {
+  const t = generateStationToken()
+  return db.transaction(async (trx) => {
+    if (!(await lockStation(trx, stationId))) return undefined
+    const revoked = await activeTokenHints(trx, stationId)
+    await revokeTokens(trx, stationId)
+    await insertToken(trx, { stationId, tokenHash: t.hash, hint: t.hint, createdBy: actorId })
+    await writeAudit(trx, { userId: actorId, action: 'token_rotate', entity: 'station', entityId: stationId, before: { activeTokenHints: revoked }, after: { activeTokenHints: [t.hint] } })
+    return { token: t.token, hint: t.hint }
+  })
+}
+
+/** Revokes every active token: the station can no longer post until a new token is issued. */
+export async function revokeStationTokens(db: Knex, actorId: number | null, stationId: number): Promise<{ revoked: number } | undefined> {
+  return db.transaction(async (trx) => {
+    if (!(await lockStation(trx, stationId))) return undefined
+    const hints = await activeTokenHints(trx, stationId)
+    const revoked = await revokeTokens(trx, stationId)
+    await writeAudit(trx, { userId: actorId, action: 'token_revoke', entity: 'station', entityId: stationId, before: { activeTokenHints: hints }, after: { activeTokenHints: [] } })
+    return { revoked }
+  })
+}
+
+/** Replaces the station's instrument list; undefined for an unknown station. */
+export async function replaceStationInstruments(db: Knex, actorId: number | null, stationId: number, input: InstrumentListInput): Promise<StationView | undefined> {
+  const seen = new Map<string, number>()
+  const list = input.instruments.map((i, n) => {
+    const row = { kind: i.kind.trim(), model: i.model.trim(), serial: i.serial.trim(), calibrationDue: dueInstant(i.calibrationDue) }
+    for (const f of ['kind', 'model', 'serial'] as const) {
+      if (!row[f]) throw new StationRuleError(400, `Instrument ${n + 1} has a blank ${f}.`, `/instruments/${n}/${f}`)
+    }
+    const key = `${row.model.toLowerCase()}\u0000${row.serial.toLowerCase()}`
+    if (seen.has(key)) throw new StationRuleError(400, `Instrument ${n + 1} repeats model and serial of instrument ${seen.get(key)! + 1}.`, `/instruments/${n}/serial`)
+    seen.set(key, n)
+    return row
+  })
+  return db.transaction(async (trx) => {
+    if (!(await lockStation(trx, stationId))) return undefined
+    const before = await listInstruments(trx, [stationId])
+    await replaceInstruments(trx, stationId, list)
+    await writeAudit(trx, {
+      userId: actorId, action: 'instruments_update', entity: 'station', entityId: stationId,
+      before: instrumentAudit(before), after: instrumentAudit(list),
+    })
+    return stationView(trx, stationId)
+  })
+}
