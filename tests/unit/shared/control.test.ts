@@ -20,7 +20,8 @@ const rulesAt = (hits: number[][]) => hits.flatMap((h, i) => h.map((rule) => `${
 
 describe('span-2 constants', () => {
   it('are the exact values behind the printed table constants', () => {
-    // Exact d3 = √(2 − 4/π) = 0.8525025 and D4 = 3.2665319 (check-values §2.1); tables print 0.853, 3.267, E2 2.660.
+    // The range of two N(0,1) draws is |N(0,2)|: sd √(2 − 4/π) = 0.8525025, so D4 = 1 + 3d3/d2 = 3.2665319.
+    // Control-chart constant tables print 0.853, 3.267 and E2 = 2.660.
     expect(D3_N2).toBeCloseTo(0.8525025, 7)
     expect(D4_N2).toBeCloseTo(3.2665319, 7)
     expect(Math.abs(D3_N2 - 0.853)).toBeLessThan(half(3))
@@ -40,7 +41,7 @@ describe('individualsLimits', () => {
     expect(Math.abs(r.centre + (3 * r.mrBar) / 1.128 - 55.8041)).toBeLessThan(half(4))
     expect(Math.abs(r.centre - (3 * r.mrBar) / 1.128 - 45.8159)).toBeLessThan(half(4))
     expect(r.ucl - r.centre).toBeCloseTo(E2_N2 * r.mrBar, 12)
-    // MR chart UCL with the table D4: 3.267 · MR̄ = 6.1347 (check-values §2.4a); the exact D4 gives 6.1338.
+    // MR chart UCL with the table D4: 3.267 · MR̄ = 6.1347 (recomputed; NIST's own figure not seen). Exact D4 gives 6.1338.
     expect(Math.abs(r.mrUcl - 6.1347)).toBeLessThan(1e-3)
     // Published: no point out of control.
     expect(NIST_FLOW_RATE.every((x) => x < r.ucl && x > r.lcl)).toBe(true)
@@ -54,7 +55,7 @@ describe('individualsLimits', () => {
     expect(Math.abs(r.mrBar - 2.59)).toBeLessThan(half(2))
     expect(Math.abs(r.ucl - 105.99)).toBeLessThan(0.015)
     expect(Math.abs(r.lcl - 92.21)).toBeLessThan(0.015)
-    // Reference sheet's unrounded values with d2 = 1.128 (check-values §2.4b): 99.095, 2.5895, 105.982, 92.208.
+    // Unrounded inputs with the table d2 = 1.128 give 99.095, 2.5895, 105.982, 92.208 (independent recomputation).
     expect(r.centre).toBeCloseTo(99.095, 10)
     expect(Math.abs(r.mrBar - 2.5895)).toBeLessThan(half(4))
     expect(Math.abs(r.centre + (3 * r.mrBar) / 1.128 - 105.982)).toBeLessThan(half(3))

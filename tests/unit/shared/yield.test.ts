@@ -14,7 +14,8 @@ describe('wilsonInterval', () => {
   })
 
   it('Newcombe (1998a) Table II Wilson score intervals', () => {
-    // Table values recalled in check-values §3.3 (from memory there, reproduced by its own computation).
+    // Newcombe (1998a), Statistics in Medicine 17, 857–872, Wilson column: values from memory, each matched by an
+    // independent recomputation.
     const cases: [number, number, number, number][] = [
       [81, 263, 0.2553, 0.3662],
       [15, 148, 0.0624, 0.1605],
