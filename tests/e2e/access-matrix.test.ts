@@ -20,6 +20,12 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'PATCH /api/users/:id', sample: '/api/users/999999', allow: ['admin'] },
   { route: 'GET /api/customers', allow: ['admin', 'quality'] },
   { route: 'GET /api/lots', allow: STAFF },
+  { route: 'GET /api/stations', allow: ['admin', 'engineer'] },
+  { route: 'POST /api/stations', allow: ['admin', 'engineer'] },
+  { route: 'GET /api/stations/:id', sample: '/api/stations/999999', allow: ['admin', 'engineer'] },
+  { route: 'POST /api/stations/:id/token', sample: '/api/stations/999999/token', allow: ['admin', 'engineer'] },
+  { route: 'DELETE /api/stations/:id/token', sample: '/api/stations/999999/token', allow: ['admin', 'engineer'] },
+  { route: 'PUT /api/stations/:id/instruments', sample: '/api/stations/999999/instruments', allow: ['admin', 'engineer'] },
 ]
 
 const cookies: Partial<Record<Who, string>> = {}
