@@ -6,6 +6,8 @@ import * as m004 from './migrations/20261201_004_results'
 import * as m005 from './migrations/20261201_005_aggregates'
 import * as m006 from './migrations/20261201_006_shipping'
 import * as m007 from './migrations/20261201_007_alerts_audit'
+import * as m008 from './migrations/20261201_008_imports'
+import * as m009 from './migrations/20261201_009_control_baselines'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -18,6 +20,8 @@ const migrations: Record<string, Migration> = {
   '20261201_005_aggregates': m005,
   '20261201_006_shipping': m006,
   '20261201_007_alerts_audit': m007,
+  '20261201_008_imports': m008,
+  '20261201_009_control_baselines': m009,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

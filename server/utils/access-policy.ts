@@ -23,6 +23,7 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/customers', allow: ['admin', 'quality'] },
 
   { method: 'GET', path: '/api/lots', allow: STAFF },
+  { method: 'GET', path: '/api/units/:serial', allow: STAFF },
 
   { method: 'GET', path: '/api/stations', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/stations', allow: ['admin', 'engineer'] },
@@ -31,11 +32,38 @@ export const API_POLICY: Rule[] = [
   { method: 'DELETE', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'PUT', path: '/api/stations/:id/instruments', allow: ['admin', 'engineer'] },
 
+  { method: 'GET', path: '/api/lots/:code/summary', allow: STAFF },
+  { method: 'GET', path: '/api/lots/:code/parameters/:name', allow: STAFF },
+  { method: 'PUT', path: '/api/lots/:code/parameters/:name/baseline', allow: ['admin', 'engineer'] },
+  { method: 'DELETE', path: '/api/lots/:code/parameters/:name/baseline', allow: ['admin', 'engineer'] },
+
   { method: 'POST', path: '/api/v1/runs', allow: ['station'] },
   { method: 'POST', path: '/api/v1/runs/batch', allow: ['station'] },
   { method: 'GET', path: '/api/v1/schema/run.json', allow: 'public' },
   { method: 'GET', path: '/api/products', allow: [...STAFF, 'station'] },
   { method: 'GET', path: '/api/products/:partNumber/spec', allow: [...STAFF, 'station'] },
+
+  { method: 'POST', path: '/api/products', allow: ['admin', 'engineer'] },
+  { method: 'PATCH', path: '/api/products/:partNumber', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/products/:partNumber/revisions', allow: ENGINEERING },
+  { method: 'POST', path: '/api/products/:partNumber/revisions', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/specs', allow: ENGINEERING },
+  { method: 'GET', path: '/api/revisions/:id', allow: ENGINEERING },
+  { method: 'PUT', path: '/api/revisions/:id/limits', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/revisions/:id/limits.csv', allow: ENGINEERING },
+  { method: 'POST', path: '/api/revisions/:id/limits/import', allow: ['admin', 'engineer'] },
+  { method: 'POST', path: '/api/revisions/:id/approve', allow: ['quality'] },
+  { method: 'GET', path: '/api/revisions/:id/compare/:other', allow: ENGINEERING },
+
+  { method: 'GET', path: '/api/lots/:code', allow: STAFF },
+  { method: 'GET', path: '/api/lots/:code/units', allow: STAFF },
+  { method: 'GET', path: '/api/lots/:code/units.csv', allow: STAFF },
+  { method: 'POST', path: '/api/lots/:code/hold', allow: ['engineer', 'quality'] },
+  { method: 'POST', path: '/api/lots/:code/resume', allow: ['engineer', 'quality'] },
+  { method: 'POST', path: '/api/lots/:code/release', allow: ['quality'] },
+  { method: 'POST', path: '/api/lots/:code/ship', allow: ['quality'] },
+
+  { method: 'GET', path: '/api/audit', allow: ['admin', 'quality'] },
 ]
 
 export { STAFF as STAFF_CALLERS, ENGINEERING as ENGINEERING_CALLERS }

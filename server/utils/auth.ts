@@ -47,7 +47,17 @@ export async function authenticateStation(event: H3Event): Promise<StationPrinci
   const candidates = await findActiveTokensByHint(useDb(), tokenHint(token))
   const hit = candidates.find((c) => hashesEqual(c.tokenHash, hash))
   if (!hit) throw problem(401, 'The station token is unknown or has been revoked.')
+  noteTokenUse(hit.tokenId)
   return { id: hit.stationId, name: hit.stationName, tokenId: hit.tokenId }
+}
+
+const tokenTouched = new Map<number, number>()
+/** last_used_at moves at most once a minute per token, off the request's path. */
+function noteTokenUse(tokenId: number): void {
+  const now = Date.now()
+  if (now - (tokenTouched.get(tokenId) ?? 0) < 60_000) return
+  tokenTouched.set(tokenId, now)
+  useDb()('station_tokens').where({ id: tokenId }).update({ last_used_at: new Date(now) }).catch(() => tokenTouched.delete(tokenId))
 }
 
 const userCache = new Map<number, { at: number; user: UserRecord | undefined }>()

@@ -136,12 +136,24 @@ export function capabilityFromValues(valuesInTestOrder: readonly number[], limit
   const sigmaOverall = n >= 2 ? stdDev(m) : null
   const mr = movingRangeSum(valuesInTestOrder)
   const sigmaWithin = mr.count > 0 ? sigmaFromMovingRange(mr.sum, mr.count) : null
+  let outOfSpecCount = 0
+  for (const x of valuesInTestOrder) if ((lsl !== null && x < lsl) || (usl !== null && x > usl)) outOfSpecCount++
+  return capabilityFromStats({ n, mean, sigmaWithin, sigmaOverall, outOfSpecCount, lsl, usl })
+}
+
+export type CapabilityStats = {
+  n: number; mean: number | null; sigmaWithin: number | null; sigmaOverall: number | null; outOfSpecCount: number
+} & SpecLimits
+
+/** The same summary from sufficient statistics (n, mean, both sigmas, out-of-spec count), e.g. kept as running aggregates. */
+export function capabilityFromStats(stats: CapabilityStats): CapabilitySummary {
+  const lsl = limit(stats.lsl)
+  const usl = limit(stats.usl)
+  const { n, mean, sigmaWithin, sigmaOverall, outOfSpecCount } = stats
   const indices =
     mean === null
       ? capabilityIndices({ mean: NaN, sigmaWithin: null, sigmaOverall: null, lsl, usl })
       : capabilityIndices({ mean, sigmaWithin, sigmaOverall, lsl, usl, n })
-  let outOfSpecCount = 0
-  for (const x of valuesInTestOrder) if ((lsl !== null && x < lsl) || (usl !== null && x > usl)) outOfSpecCount++
   const hasLimits = lsl !== null || usl !== null
   return {
     n,

@@ -66,3 +66,25 @@ export function driftPer1000(ysInTestOrder: readonly number[], confidence = 0.95
     confidence,
   )
 }
+
+export type CentredSums = {
+  n: number
+  /** Σ(x − x̄)² and Σ(x − x̄)(y − c) with x̄ the exact mean of x, c any centring constant */
+  sxx: number
+  sxy: number
+  /** Σ(y − c) and Σ(y − c)², to correct for c ≠ ȳ */
+  sy: number
+  syy: number
+}
+
+/** The slope and its interval from sums a database can compute in one pass (same model as linearRegression). */
+export function slopeFromCentredSums(s: CentredSums, confidence = 0.95): Pick<RegressionResult, 'n' | 'slope' | 'slopeStdErr' | 'slopeInterval'> | null {
+  if (s.n < 2 || !(s.sxx > 0)) return null
+  const slope = s.sxy / s.sxx
+  if (s.n < 3) return { n: s.n, slope, slopeStdErr: null, slopeInterval: null }
+  const syy = s.syy - (s.sy * s.sy) / s.n
+  const sse = Math.max(0, syy - slope * s.sxy)
+  const slopeStdErr = Math.sqrt(sse / (s.n - 2) / s.sxx)
+  const t = studentTQuantile(1 - (1 - confidence) / 2, s.n - 2)
+  return { n: s.n, slope, slopeStdErr, slopeInterval: [slope - t * slopeStdErr, slope + t * slopeStdErr] }
+}

@@ -112,3 +112,22 @@ describe('driftPer1000', () => {
     expect(driftPer1000([1])).toBeNull()
   })
 })
+
+describe('slopeFromCentredSums', () => {
+  it('equals the two-pass regression on the same data, whatever the y centring constant', async () => {
+    const { mulberry32 } = await import('../helpers/prng')
+    const { slopeFromCentredSums, driftPer1000 } = await import('../../../shared/utils/regression')
+    const rand = mulberry32(77)
+    const ys = Array.from({ length: 400 }, (_, i) => 375e6 + 0.02 * i + 30 * (rand() - 0.5))
+    const n = ys.length
+    const xbar = (n - 1) / 2 / 1000
+    const c = 375e6 + 3
+    let sxx = 0, sxy = 0, sy = 0, syy = 0
+    ys.forEach((y, i) => { const dx = i / 1000 - xbar; sxx += dx * dx; sxy += dx * (y - c); sy += y - c; syy += (y - c) ** 2 })
+    const fromSums = slopeFromCentredSums({ n, sxx, sxy, sy, syy })!
+    const direct = driftPer1000(ys)!
+    expect(fromSums.slope).toBeCloseTo(direct.slope, 6)
+    expect(fromSums.slopeStdErr!).toBeCloseTo(direct.slopeStdErr!, 6)
+    expect(fromSums.slopeInterval![0]).toBeCloseTo(direct.slopeInterval![0], 6)
+  })
+})

@@ -1,0 +1,55 @@
+import type { Knex } from 'knex'
+
+export type LotHeader = {
+  id: number; code: string; status: string; plannedQty: number | null; createdAt: Date
+  productId: number; partNumber: string; productName: string; steps: string[]
+}
+
+export async function findLotByCode(db: Knex, code: string): Promise<LotHeader | undefined> {
+  const r = await db('lots as l').join('products as p', 'p.id', 'l.product_id').where('l.code', code)
+    .first('l.id', 'l.code', 'l.status', 'l.planned_qty', 'l.created_at', 'p.id as product_id', 'p.part_number', 'p.name as product_name', 'p.steps')
+  if (!r) return undefined
+  return {
+    id: r.id, code: r.code, status: r.status, plannedQty: r.planned_qty, createdAt: r.created_at, productId: r.product_id,
+    partNumber: r.part_number, productName: r.product_name, steps: typeof r.steps === 'string' ? JSON.parse(r.steps) : r.steps,
+  }
+}
+
+export type StepStatsRow = { step: string; runs: number; units: number; firstPass: number; latestPass: number }
+
+export async function stepStats(db: Knex, lotId: number): Promise<StepStatsRow[]> {
+  const rows = await db('lot_step_stats').where({ lot_id: lotId }).groupBy('step')
+    .select('step').sum({ runs: 'runs', units: 'units', first_pass: 'first_pass', latest_pass: 'latest_pass' })
+  return rows.map((r: any) => ({ step: r.step, runs: Number(r.runs), units: Number(r.units), firstPass: Number(r.first_pass), latestPass: Number(r.latest_pass) }))
+}
+
+export type ParamStatsRow = {
+  step: string; name: string; qualifier: number; stationId: number; unit: string; n: number; shift: number; sumD: number; sumSqD: number
+  min: number; max: number; mrSum: number; mrN: number; mrStale: boolean; outOfSpec: number; failAll: number
+}
+
+/** One row per (step, name, qualifier, station): the caller merges the stations. */
+export async function paramStats(db: Knex, lotId: number): Promise<ParamStatsRow[]> {
+  const rows = await db('lot_param_stats').where({ lot_id: lotId })
+  return rows.map((r: any) => ({
+    step: r.step, name: r.name, qualifier: r.qualifier, stationId: r.station_id, unit: r.unit, n: r.n, shift: r.shift,
+    sumD: r.sum_d, sumSqD: r.sumsq_d, min: r.min_value, max: r.max_value, mrSum: r.mr_sum, mrN: r.mr_n,
+    mrStale: !!r.mr_stale, outOfSpec: r.out_of_spec, failAll: r.fail_all,
+  }))
+}
+
+/** Every attempt, straight from the measurements: the population switch and the reference the aggregates are tested against. */
+export async function paramStatsAllAttempts(db: Knex, lotId: number): Promise<(Omit<ParamStatsRow, 'stationId' | 'shift' | 'sumD' | 'sumSqD' | 'mrStale'> & { mean: number; sd: number | null })[]> {
+  const [rows] = await db.raw(
+    `SELECT step, name, qualifier, MIN(unit) AS unit, COUNT(*) AS n, AVG(value) AS mean, STDDEV_SAMP(value) AS sd, MIN(value) AS min_value, MAX(value) AS max_value,
+            SUM(mr) AS mr_sum, COUNT(mr) AS mr_n, SUM(verdict = 'fail') AS fail_all,
+            SUM((lsl IS NOT NULL AND value < lsl) OR (usl IS NOT NULL AND value > usl)) AS out_of_spec
+     FROM (SELECT step, name, qualifier, unit, value, verdict, lsl, usl,
+                  ABS(value - LAG(value) OVER (PARTITION BY step, name, qualifier, station_id ORDER BY started_at, id)) AS mr
+           FROM measurements WHERE lot_id = ?) m
+     GROUP BY step, name, qualifier`, [lotId])
+  return rows.map((r: any) => ({
+    step: r.step, name: r.name, qualifier: r.qualifier, unit: r.unit, n: Number(r.n), mean: Number(r.mean), sd: r.sd === null ? null : Number(r.sd),
+    min: r.min_value, max: r.max_value, mrSum: Number(r.mr_sum ?? 0), mrN: Number(r.mr_n), outOfSpec: Number(r.out_of_spec), failAll: Number(r.fail_all),
+  }))
+}

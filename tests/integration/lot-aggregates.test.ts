@@ -1,0 +1,114 @@
+import type { Knex } from 'knex'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { createKnex, connectionFromEnv } from '../../server/database/connection'
+import { ingestRun } from '../../server/services/ingest/ingest-run'
+import { lotSummary } from '../../server/services/analytics/lot-summary'
+import { validateRun } from '../../server/utils/run-validator'
+import { DEMO_PRODUCTS } from '../../fixtures/demo-catalogue'
+import { generateRun, mulberry32 } from '../../fixtures/run-generator'
+import { capabilityFromValues } from '../../shared/utils/capability'
+import { movingRangeSum, sigmaFromMovingRange } from '../../shared/utils/capability'
+
+let db: Knex
+const lotCode = `AGG-${Date.now().toString(36)}`
+const tripler = DEMO_PRODUCTS.find((p) => p.partNumber === 'VFW-T3-375')!
+
+beforeAll(async () => {
+  db = createKnex(connectionFromEnv())
+  const stations = await db('stations').whereIn('name', ['ATE-T3-01', 'ATE-T3-02']).select('id', 'name')
+  const rand = mulberry32(4242)
+  const base = Date.now() - 3 * 86_400_000
+  const planned: ReturnType<typeof generateRun>[] = []
+  for (let u = 0; u < 36; u++) {
+    const serial = `${lotCode}-${u}`
+    for (const [k, step] of ['tune', 'burn-in', 'final'].entries()) {
+      const t = new Date(base + u * 600_000 + k * 60_000)
+      planned.push(generateRun({ product: tripler, lot: lotCode, serial, step, startedAt: t, rand, failRate: 0.15, withTrace: step === 'final' }))
+      if (rand() < 0.2) planned.push(generateRun({ product: tripler, lot: lotCode, serial, step, startedAt: new Date(t.getTime() + 30_000), rand, failRate: 0 }))
+    }
+  }
+  // arrival order differs from test order: late uploads from an offline buffer
+  const order = planned.map((r, i) => ({ r, key: rand() < 0.25 ? rand() * planned.length : i })).sort((a, b) => a.key - b.key).map((x) => x.r)
+  let i = 0
+  for (const run of order) {
+    const v = validateRun(run)
+    if (!v.ok) throw new Error(JSON.stringify(v.errors))
+    const station = stations[i++ % stations.length]
+    await ingestRun(db, station, v.value)
+  }
+}, 120_000)
+
+afterAll(async () => { await db.destroy() })
+
+async function recompute(firstOnly: boolean) {
+  const lot = await db('lots').where({ code: lotCode }).first('id')
+  const q = db('measurements').where({ lot_id: lot.id }).orderBy('started_at').orderBy('id').select('step', 'name', 'qualifier', 'station_id', 'value')
+  const rows = firstOnly ? await q.where('first_attempt', true) : await q
+  const groups = new Map<string, { all: number[]; byStation: Map<number, number[]> }>()
+  for (const r of rows) {
+    const k = `${r.step}|${r.name}|${r.qualifier}`
+    const g = groups.get(k) ?? { all: [], byStation: new Map() }
+    g.all.push(r.value)
+    const s = g.byStation.get(r.station_id) ?? []
+    s.push(r.value)
+    g.byStation.set(r.station_id, s)
+    groups.set(k, g)
+  }
+  return groups
+}
+
+describe('incremental lot aggregates', () => {
+  it('equal a full recomputation after retests and out-of-order arrival', async () => {
+    const summary = (await lotSummary(db, lotCode, 'first'))!
+    const groups = await recompute(true)
+    expect(summary.capability.length).toBe(groups.size)
+    for (const c of summary.capability) {
+      const g = groups.get(`${c.step}|${c.name}|${c.qualifier}`)!
+      const full = capabilityFromValues(g.all, { lsl: c.lsl, usl: c.usl })
+      let mrSum = 0
+      let mrN = 0
+      for (const values of g.byStation.values()) { const mr = movingRangeSum(values); mrSum += mr.sum; mrN += mr.count }
+      const scale = Math.max(1, Math.abs(full.mean!))
+      expect(c.n).toBe(full.n)
+      expect(c.mean!).toBeCloseTo(full.mean!, 12 - Math.ceil(Math.log10(scale)))
+      expect(c.sigmaOverall! / full.sigmaOverall!).toBeCloseTo(1, 9)
+      expect(c.sigmaWithin! / sigmaFromMovingRange(mrSum, mrN)).toBeCloseTo(1, 9)
+      if (c.cpk !== null) {
+        const within = sigmaFromMovingRange(mrSum, mrN)
+        const expected = Math.min(...[c.usl !== null ? (c.usl - full.mean!) / (3 * within) : Infinity, c.lsl !== null ? (full.mean! - c.lsl) / (3 * within) : Infinity])
+        expect(c.cpk).toBeCloseTo(expected, 9)
+      }
+      expect(c.min).toBe(Math.min(...g.all))
+      expect(c.max).toBe(Math.max(...g.all))
+    }
+  })
+
+  it('keeps yields equal to counts over the stored runs', async () => {
+    const summary = (await lotSummary(db, lotCode, 'first'))!
+    const lot = await db('lots').where({ code: lotCode }).first('id')
+    for (const s of summary.steps) {
+      const runs = await db('test_runs as r').join('units as u', 'u.id', 'r.unit_id').where({ 'r.lot_id': lot.id, 'r.step': s.step })
+        .select('r.unit_id', 'r.attempt', 'r.server_verdict')
+      const units = new Set(runs.map((r: any) => r.unit_id))
+      const firstPass = runs.filter((r: any) => r.attempt === 1 && r.server_verdict === 'pass').length
+      const latest = new Map<number, any>()
+      for (const r of runs) if (!latest.has(r.unit_id) || latest.get(r.unit_id).attempt < r.attempt) latest.set(r.unit_id, r)
+      const finalPass = [...latest.values()].filter((r) => r.server_verdict === 'pass').length
+      expect(s.units).toBe(units.size)
+      expect(s.runs).toBe(runs.length)
+      expect(s.firstPass).toBe(firstPass)
+      expect(s.finalPass).toBe(finalPass)
+    }
+  })
+
+  it('the all-attempts population matches a recomputation too', async () => {
+    const summary = (await lotSummary(db, lotCode, 'all'))!
+    const groups = await recompute(false)
+    for (const c of summary.capability) {
+      const g = groups.get(`${c.step}|${c.name}|${c.qualifier}`)!
+      expect(c.n).toBe(g.all.length)
+      const full = capabilityFromValues(g.all, { lsl: c.lsl, usl: c.usl })
+      expect(c.sigmaOverall! / full.sigmaOverall!).toBeCloseTo(1, 9)
+    }
+  })
+})
