@@ -54,10 +54,15 @@ export async function findDraftOf(db: Knex, productId: number): Promise<{ id: nu
   return db('spec_revisions').where({ product_id: productId, status: 'draft' }).orderBy('revision', 'desc').first('id', 'revision')
 }
 
-/** The revision in force at `at` (the latest effective one not after it), else the earliest one still to take effect. */
-export async function findSourceRevision(db: Knex, productId: number, at: Date): Promise<{ id: number; revision: number } | undefined> {
-  const inForce = await db('spec_revisions').where({ product_id: productId }).whereIn('status', EFFECTIVE).where('effective_at', '<=', at)
+/** The revision in force at `at`: the latest effective one not after it. */
+export async function findRevisionInForce(db: Knex, productId: number, at: Date): Promise<{ id: number; revision: number } | undefined> {
+  return db('spec_revisions').where({ product_id: productId }).whereIn('status', EFFECTIVE).where('effective_at', '<=', at)
     .orderBy('effective_at', 'desc').orderBy('revision', 'desc').first('id', 'revision')
+}
+
+/** The revision in force at `at`, else the earliest one still to take effect. */
+export async function findSourceRevision(db: Knex, productId: number, at: Date): Promise<{ id: number; revision: number } | undefined> {
+  const inForce = await findRevisionInForce(db, productId, at)
   if (inForce) return inForce
   return db('spec_revisions').where({ product_id: productId }).whereIn('status', EFFECTIVE).orderBy('effective_at').first('id', 'revision')
 }

@@ -1,0 +1,16 @@
+import schema from '../../../../shared/schemas/revision-approve.schema.json'
+import { compileSchema } from '../../../utils/run-validator'
+import { idParam } from '../../../utils/route-params'
+import { approveRevision } from '../../../services/spec-revisions'
+import { underRules } from '../../../services/rule-error'
+
+const validate = compileSchema<{ effectiveAt?: string; note?: string }>(schema)
+
+export default defineEventHandler(async (event) => {
+  const actor = requireUser(event)
+  const id = idParam(event, 'id', 'revision')
+  const body = await readValidBody(event, validate)
+  const effectiveAt = body.effectiveAt ? new Date(body.effectiveAt) : undefined
+  const approved = await underRules(() => approveRevision(useDb(), actor, id, { effectiveAt, note: body.note }))
+  return { id, revision: approved.revision, status: 'approved', effectiveAt: approved.effectiveAt, superseded: approved.superseded }
+})

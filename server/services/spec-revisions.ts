@@ -1,0 +1,104 @@
+import type { Knex } from 'knex'
+import type { UserRecord } from '../database/repositories/users'
+import { writeAudit } from '../database/repositories/audit'
+import { findProductById, findProductByPartNumber } from '../database/repositories/products'
+import {
+  findDraftOf, findSourceRevision, insertRevision, latestEffectiveAt, listLimitsOf, lockRevision, markApproved,
+  nextRevisionNumber, replaceLimits, supersedeApproved,
+} from '../database/repositories/spec-revisions'
+import { normalizeSpecLimit, validateSpecLimits, type SpecLimitRow } from '../../shared/utils/spec-limits'
+import { invalidateSpecCache } from './ingest/caches'
+import { RuleError } from './rule-error'
+
+// Clock skew allowed between a browser's "now" and the server's when an approval names its effective time.
+const PAST_TOLERANCE_MS = 60_000
+
+export type LimitInput = Partial<SpecLimitRow> & Pick<SpecLimitRow, 'step' | 'name' | 'unit'>
+
+/** A new draft holding a copy of the limits in force (or of the next revision to take effect, or none). */
+export async function createDraftRevision(db: Knex, actorId: number, partNumber: string, now = new Date()): Promise<{ id: number; revision: number }> {
+  return db.transaction(async (trx) => {
+    // the product row lock serialises two engineers opening a draft at the same moment
+    const product = await findProductByPartNumber(trx, partNumber, { forUpdate: true })
+    if (!product) throw new RuleError(404, `No product ${partNumber}.`)
+    const draft = await findDraftOf(trx, product.id)
+    if (draft) throw new RuleError(409, `Revision ${draft.revision} of ${partNumber} is already a draft; edit it instead.`, [], { draftId: draft.id })
+    const source = await findSourceRevision(trx, product.id, now)
+    const revision = await nextRevisionNumber(trx, product.id)
+    const id = await insertRevision(trx, { productId: product.id, revision, authorId: actorId, note: null })
+    const limits = source ? await listLimitsOf(trx, source.id) : []
+    await replaceLimits(trx, id, limits)
+    await writeAudit(trx, {
+      userId: actorId, action: 'create', entity: 'spec_revision', entityId: id,
+      after: { partNumber, revision, copiedFromRevision: source?.revision ?? null, limits: limits.length },
+    })
+    return { id, revision }
+  })
+}
+
+async function lockDraft(trx: Knex, revisionId: number) {
+  const rev = await lockRevision(trx, revisionId)
+  if (!rev) throw new RuleError(404, 'No such revision.')
+  if (rev.status !== 'draft') throw new RuleError(409, `Revision ${rev.revision} is ${rev.status}; only a draft can change. Open a new revision instead.`)
+  const product = (await findProductById(trx, rev.productId))!
+  return { rev, product }
+}
+
+/** Replaces a draft's whole limit table after checking it against the product's steps and the measurement rules. */
+export async function replaceDraftLimits(db: Knex, actorId: number, revisionId: number, input: LimitInput[], action = 'limits_replace'): Promise<SpecLimitRow[]> {
+  return db.transaction(async (trx) => {
+    const { rev, product } = await lockDraft(trx, revisionId)
+    const errors = validateSpecLimits(input, product.steps)
+    if (errors.length) throw new RuleError(422, 'Some limits are not valid.', errors)
+    const limits = input.map(normalizeSpecLimit)
+    const before = await listLimitsOf(trx, revisionId)
+    await replaceLimits(trx, revisionId, limits)
+    await writeAudit(trx, { userId: actorId, action, entity: 'spec_revision', entityId: revisionId, before: { revision: rev.revision, limits: before }, after: { revision: rev.revision, limits } })
+    return limits
+  })
+}
+
+/** Read-only check that a draft could take these limits, for a preview. */
+export async function checkDraftAccepts(db: Knex, revisionId: number): Promise<{ steps: string[] }> {
+  return db.transaction(async (trx) => ({ steps: (await lockDraft(trx, revisionId)).product.steps }))
+}
+
+/**
+ * Approval by a quality engineer who did not write the draft. The approved revision takes effect at
+ * `effectiveAt` (now by default); the one it replaces is marked superseded but stays in force until then.
+ */
+export async function approveRevision(db: Knex, actor: UserRecord, revisionId: number, opts: { effectiveAt?: Date; note?: string } = {}, now = new Date()) {
+  if (actor.role !== 'quality') throw new RuleError(403, 'Only a quality engineer can approve a specification revision.')
+  const result = await db.transaction(async (trx) => {
+    const rev = await lockRevision(trx, revisionId)
+    if (!rev) throw new RuleError(404, 'No such revision.')
+    if (rev.status !== 'draft') throw new RuleError(409, `Revision ${rev.revision} is already ${rev.status}.`)
+    if (rev.authorId === actor.id) throw new RuleError(403, 'Separation of duties: the author of a draft cannot approve it; another quality engineer must.')
+    const product = (await findProductById(trx, rev.productId))!
+    const limits = await listLimitsOf(trx, revisionId)
+    if (!limits.length) throw new RuleError(422, 'A revision without limits cannot be approved.')
+    const errors = validateSpecLimits(limits, product.steps)
+    if (errors.length) throw new RuleError(422, 'Some limits no longer fit the product; fix the draft first.', errors)
+    const effectiveAt = opts.effectiveAt ?? now
+    if (effectiveAt.getTime() < now.getTime() - PAST_TOLERANCE_MS) {
+      throw new RuleError(422, 'A revision cannot take effect in the past.', [{ pointer: '/effectiveAt', message: 'must be now or later' }])
+    }
+    const latest = await latestEffectiveAt(trx, product.id)
+    if (latest && effectiveAt < latest.effectiveAt) {
+      throw new RuleError(422, `Revision ${latest.revision} takes effect at ${latest.effectiveAt.toISOString()}; a later revision cannot take effect before it.`,
+        [{ pointer: '/effectiveAt', message: `must not be before ${latest.effectiveAt.toISOString()}` }])
+    }
+    await markApproved(trx, revisionId, { approvedBy: actor.id, approvedAt: now, effectiveAt, note: opts.note })
+    const superseded = await supersedeApproved(trx, product.id, revisionId)
+    await writeAudit(trx, {
+      userId: actor.id, action: 'approve', entity: 'spec_revision', entityId: revisionId,
+      before: { status: 'draft' }, after: { status: 'approved', partNumber: product.partNumber, revision: rev.revision, effectiveAt, supersedes: superseded.map((s) => s.revision) },
+    })
+    for (const s of superseded) {
+      await writeAudit(trx, { userId: actor.id, action: 'supersede', entity: 'spec_revision', entityId: s.id, before: { status: 'approved' }, after: { status: 'superseded', by: rev.revision } })
+    }
+    return { productId: product.id, revision: rev.revision, effectiveAt, superseded: superseded.map((s) => s.id) }
+  })
+  invalidateSpecCache(result.productId)
+  return result
+}
