@@ -1,0 +1,64 @@
+import type { Knex } from 'knex'
+
+export type LotStatus = 'open' | 'on_hold' | 'released' | 'shipped'
+
+export type LotRow = {
+  id: number; code: string; productId: number; status: LotStatus; plannedQty: number | null; holdReason: string | null
+  createdAt: Date; releasedAt: Date | null; releasedBy: { id: number; name: string } | null; shippedAt: Date | null
+}
+
+function toLot(r: any): LotRow {
+  return {
+    id: r.id, code: r.code, productId: r.product_id, status: r.status, plannedQty: r.planned_qty ?? null, holdReason: r.hold_reason ?? null,
+    createdAt: r.created_at, releasedAt: r.released_at ?? null, releasedBy: r.released_by ? { id: r.released_by, name: r.released_by_name ?? '' } : null,
+    shippedAt: r.shipped_at ?? null,
+  }
+}
+
+export async function findLotByCode(db: Knex, code: string): Promise<LotRow | undefined> {
+  const r = await db('lots as l').leftJoin('users as u', 'u.id', 'l.released_by').where('l.code', code).first('l.*', 'u.name as released_by_name')
+  return r ? toLot(r) : undefined
+}
+
+export async function lockLotByCode(trx: Knex, code: string): Promise<LotRow | undefined> {
+  const r = await trx('lots').where({ code }).forUpdate().first()
+  return r ? toLot(r) : undefined
+}
+
+export async function updateLotStatus(trx: Knex, id: number, change: { status: LotStatus; holdReason?: string | null; releasedAt?: Date | null; releasedBy?: number | null; shippedAt?: Date | null }): Promise<void> {
+  const row: Record<string, unknown> = { status: change.status }
+  if (change.holdReason !== undefined) row.hold_reason = change.holdReason
+  if (change.releasedAt !== undefined) row.released_at = change.releasedAt
+  if (change.releasedBy !== undefined) row.released_by = change.releasedBy
+  if (change.shippedAt !== undefined) row.shipped_at = change.shippedAt
+  await trx('lots').where({ id }).update(row)
+}
+
+export type LotCounts = {
+  units: number; completed: number; passed: number; failed: number; inProgress: number; retested: number
+  firstRunAt: Date | null; lastRunAt: Date | null
+}
+
+/**
+ * Units tested so far and where they stand. A unit counts as completed once its last step (the product's
+ * final one) has a result; failed means some step's latest result is a fail.
+ */
+export async function lotCounts(db: Knex, lotId: number, lastStep: string | undefined): Promise<LotCounts> {
+  const per = db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').where('u.lot_id', lotId).groupBy('u.id')
+    .select('u.id', db.raw("COALESCE(MAX(us.latest_verdict = 'fail'), 0) AS any_fail"), db.raw('COALESCE(MAX(us.step = ?), 0) AS at_last', [lastStep ?? '']),
+      db.raw('COALESCE(MAX(us.attempts), 0) AS max_attempts'))
+  const [agg] = await db.from(per.as('x')).select(
+    db.raw('COUNT(*) AS units'),
+    db.raw('COALESCE(SUM(at_last = 1), 0) AS completed'),
+    db.raw('COALESCE(SUM(at_last = 1 AND any_fail = 0), 0) AS passed'),
+    db.raw('COALESCE(SUM(any_fail = 1), 0) AS failed'),
+    db.raw('COALESCE(SUM(at_last = 0 AND any_fail = 0), 0) AS in_progress'),
+    db.raw('COALESCE(SUM(max_attempts > 1), 0) AS retested'),
+  )
+  const [times] = await db('test_runs').where({ lot_id: lotId }).select(db.raw('MIN(started_at) AS first_run'), db.raw('MAX(finished_at) AS last_run'))
+  return {
+    units: Number(agg.units), completed: Number(agg.completed), passed: Number(agg.passed), failed: Number(agg.failed),
+    inProgress: Number(agg.in_progress), retested: Number(agg.retested),
+    firstRunAt: times?.first_run ?? null, lastRunAt: times?.last_run ?? null,
+  }
+}

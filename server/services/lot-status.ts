@@ -1,0 +1,54 @@
+import type { Knex } from 'knex'
+import { writeAudit } from '../database/repositories/audit'
+import { lockLotByCode, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
+import { invalidateLotCache } from './ingest/caches'
+import { RuleError } from './rule-error'
+
+export type LotAction = 'hold' | 'resume' | 'release' | 'ship'
+
+/**
+ * Where each action may start. A hold also stops a released lot from shipping; lifting a hold always
+ * returns the lot to open, so it must be released again.
+ */
+const FROM: Record<LotAction, LotStatus[]> = {
+  hold: ['open', 'released'],
+  resume: ['on_hold'],
+  release: ['open'],
+  ship: ['released'],
+}
+
+const REFUSAL: Record<LotAction, Partial<Record<LotStatus, string>>> = {
+  hold: { on_hold: 'The lot is already on hold.', shipped: 'A shipped lot cannot be put on hold.' },
+  resume: { open: 'The lot is not on hold.', released: 'The lot is not on hold.', shipped: 'The lot is not on hold.' },
+  release: { on_hold: 'The lot is on hold: lift the hold before releasing it.', released: 'The lot is already released.', shipped: 'The lot has already shipped.' },
+  ship: { open: 'Only a released lot can ship.', on_hold: 'The lot is on hold: it cannot ship.', shipped: 'The lot has already shipped.' },
+}
+
+function view(l: LotRow) {
+  return { status: l.status, holdReason: l.holdReason, releasedAt: l.releasedAt, shippedAt: l.shippedAt }
+}
+
+/**
+ * The audit row goes in before the lot row changes: if the change then fails, the transaction takes the
+ * audit row back with it, so a recorded change always happened.
+ */
+export async function changeLotStatus(db: Knex, actorId: number, code: string, action: LotAction, reason?: string, now = new Date()): Promise<LotStatus> {
+  const status = await db.transaction(async (trx) => {
+    const lot = await lockLotByCode(trx, code)
+    if (!lot) throw new RuleError(404, `No lot ${code}.`)
+    if (!FROM[action].includes(lot.status)) throw new RuleError(409, REFUSAL[action][lot.status] ?? `A lot that is ${lot.status} cannot ${action}.`, [], { lotStatus: lot.status })
+    let change: Parameters<typeof updateLotStatus>[2]
+    if (action === 'hold') change = { status: 'on_hold', holdReason: reason ?? null, releasedAt: null, releasedBy: null }
+    else if (action === 'resume') change = { status: 'open', holdReason: null }
+    else if (action === 'release') change = { status: 'released', releasedAt: now, releasedBy: actorId }
+    else change = { status: 'shipped', shippedAt: now }
+    await writeAudit(trx, {
+      userId: actorId, action, entity: 'lot', entityId: code,
+      before: view(lot), after: { ...view(lot), ...change, ...(action === 'resume' ? { liftedReason: lot.holdReason } : {}) },
+    })
+    await updateLotStatus(trx, lot.id, change)
+    return change.status
+  })
+  invalidateLotCache()
+  return status
+}
