@@ -112,3 +112,23 @@ describe('incremental lot aggregates', () => {
     }
   })
 })
+
+describe('rebuilding the aggregates from the stored rows', () => {
+  it('gives the same lot summary as the incremental path', async () => {
+    const { rebuildLotAggregates } = await import('../../server/services/analytics/rebuild-aggregates')
+    const before = (await lotSummary(db, lotCode, 'first'))!
+    const lot = await db('lots').where({ code: lotCode }).first('id')
+    await rebuildLotAggregates(db, lot.id)
+    const after = (await lotSummary(db, lotCode, 'first'))!
+    expect(after.steps).toEqual(before.steps)
+    expect(after.pareto).toEqual(before.pareto)
+    expect(after.capability.length).toBe(before.capability.length)
+    after.capability.forEach((c, i) => {
+      const b = before.capability[i]!
+      expect([c.step, c.name, c.qualifier, c.n, c.min, c.max]).toEqual([b.step, b.name, b.qualifier, b.n, b.min, b.max])
+      expect(c.mean! / b.mean!).toBeCloseTo(1, 12)
+      expect(c.sigmaOverall! / b.sigmaOverall!).toBeCloseTo(1, 9)
+      expect(c.sigmaWithin! / b.sigmaWithin!).toBeCloseTo(1, 9)
+    })
+  })
+})

@@ -1,0 +1,36 @@
+import type { Knex } from 'knex'
+
+const PARTITION = 'PARTITION BY step, name, qualifier, station_id'
+
+/**
+ * Recomputes a lot's aggregate rows from its stored runs and measurements, in one transaction.
+ * For bulk loads and repair; the ingest path keeps the same rows up to date incrementally.
+ */
+export async function rebuildLotAggregates(db: Knex, lotId: number): Promise<void> {
+  await db.transaction(async (trx) => {
+    await trx('lot_param_stats').where({ lot_id: lotId }).del()
+    await trx('lot_step_stats').where({ lot_id: lotId }).del()
+    await trx.raw(
+      `INSERT INTO lot_param_stats (lot_id, step, name, qualifier, station_id, unit, n, shift, sum_d, sumsq_d, min_value, max_value,
+         mr_sum, mr_n, last_value, last_started_at, mr_stale, out_of_spec, fail_all)
+       SELECT ?, step, name, qualifier, station_id, MIN(unit), SUM(first_attempt), COALESCE(MIN(shift), MIN(value)),
+         COALESCE(SUM(IF(first_attempt, value - shift, 0)), 0), COALESCE(SUM(IF(first_attempt, (value - shift) * (value - shift), 0)), 0),
+         COALESCE(MIN(IF(first_attempt, value, NULL)), MIN(value)), COALESCE(MAX(IF(first_attempt, value, NULL)), MAX(value)),
+         COALESCE(SUM(mr), 0), COUNT(mr), MAX(last_value), MAX(IF(first_attempt, started_at, NULL)), 0,
+         SUM(first_attempt AND ((lsl IS NOT NULL AND value < lsl) OR (usl IS NOT NULL AND value > usl))), SUM(verdict = 'fail')
+       FROM (
+         SELECT step, name, qualifier, station_id, unit, value, lsl, usl, verdict, started_at, first_attempt,
+           AVG(IF(first_attempt, value, NULL)) OVER (${PARTITION}) AS shift,
+           IF(first_attempt, ABS(value - LAG(value) OVER (PARTITION BY step, name, qualifier, station_id, first_attempt ORDER BY started_at, id)), NULL) AS mr,
+           IF(first_attempt AND ROW_NUMBER() OVER (PARTITION BY step, name, qualifier, station_id, first_attempt ORDER BY started_at DESC, id DESC) = 1, value, NULL) AS last_value
+         FROM measurements WHERE lot_id = ?
+       ) t
+       GROUP BY step, name, qualifier, station_id`, [lotId, lotId])
+    await trx.raw(
+      `INSERT INTO lot_step_stats (lot_id, step, station_id, runs, units, first_pass, latest_pass)
+       SELECT ?, r.step, r.station_id, COUNT(*), SUM(r.attempt = 1), SUM(r.attempt = 1 AND r.server_verdict = 'pass'),
+              SUM(r.id = us.latest_run_id AND us.latest_verdict = 'pass')
+       FROM test_runs r JOIN unit_steps us ON us.unit_id = r.unit_id AND us.step = r.step
+       WHERE r.lot_id = ? GROUP BY r.step, r.station_id`, [lotId, lotId])
+  })
+}
