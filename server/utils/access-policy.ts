@@ -16,6 +16,7 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/_auth/session', allow: 'public' },
   { method: 'DELETE', path: '/api/_auth/session', allow: 'public' },
   { method: 'GET', path: '/api/me', allow: [...STAFF, 'customer'] },
+  { method: 'GET', path: '/api/portal/shipments', allow: ['customer'] },
 
   { method: 'GET', path: '/api/users', allow: ['admin'] },
   { method: 'POST', path: '/api/users', allow: ['admin'] },
@@ -36,6 +37,11 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/lots/:code/parameters/:name', allow: STAFF },
   { method: 'PUT', path: '/api/lots/:code/parameters/:name/baseline', allow: ['admin', 'engineer'] },
   { method: 'DELETE', path: '/api/lots/:code/parameters/:name/baseline', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/lots/:code/phase-noise', allow: STAFF },
+  { method: 'GET', path: '/api/trends', allow: STAFF },
+  { method: 'GET', path: '/api/stations/compare', allow: STAFF },
+  { method: 'GET', path: '/api/floor/snapshot', allow: STAFF },
+  { method: 'GET', path: '/api/floor/stream', allow: STAFF },
 
   { method: 'POST', path: '/api/v1/runs', allow: ['station'] },
   { method: 'POST', path: '/api/v1/runs/batch', allow: ['station'] },
@@ -64,6 +70,11 @@ export const API_POLICY: Rule[] = [
   { method: 'POST', path: '/api/lots/:code/ship', allow: ['quality'] },
 
   { method: 'GET', path: '/api/audit', allow: ['admin', 'quality'] },
+
+  { method: 'GET', path: '/api/imports', allow: ['admin', 'engineer'] },
+  { method: 'POST', path: '/api/imports', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/imports/:id', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/imports/:id/rejections.csv', allow: ['admin', 'engineer'] },
 ]
 
 export { STAFF as STAFF_CALLERS, ENGINEERING as ENGINEERING_CALLERS }

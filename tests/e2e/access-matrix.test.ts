@@ -15,6 +15,7 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'GET /api/health', allow: 'public' },
   { route: 'POST /api/auth/login', allow: 'public' },
   { route: 'GET /api/me', allow: ALL },
+  { route: 'GET /api/portal/shipments', allow: ['customer'] },
   { route: 'GET /api/users', allow: ['admin'] },
   { route: 'POST /api/users', allow: ['admin'] },
   { route: 'PATCH /api/users/:id', sample: '/api/users/999999', allow: ['admin'] },
@@ -31,6 +32,11 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'GET /api/lots/:code/parameters/:name', sample: '/api/lots/T3-2611-A/parameters/output_power', allow: STAFF },
   { route: 'PUT /api/lots/:code/parameters/:name/baseline', sample: '/api/lots/NO-LOT/parameters/output_power/baseline', allow: ['admin', 'engineer'] },
   { route: 'DELETE /api/lots/:code/parameters/:name/baseline', sample: '/api/lots/NO-LOT/parameters/output_power/baseline', allow: ['admin', 'engineer'] },
+  { route: 'GET /api/lots/:code/phase-noise', sample: '/api/lots/NO-SUCH-LOT/phase-noise', allow: STAFF },
+  { route: 'GET /api/trends', allow: STAFF },
+  { route: 'GET /api/stations/compare', allow: STAFF },
+  { route: 'GET /api/floor/snapshot', allow: STAFF },
+  { route: 'GET /api/floor/stream', sample: '/api/floor/stream?once=1', allow: STAFF },
   { route: 'POST /api/v1/runs', allow: [] },
   { route: 'POST /api/v1/runs/batch', allow: [] },
   { route: 'GET /api/v1/schema/run.json', allow: 'public' },
@@ -55,6 +61,10 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'POST /api/lots/:code/release', sample: '/api/lots/NO-SUCH-LOT/release', allow: ['quality'] },
   { route: 'POST /api/lots/:code/ship', sample: '/api/lots/NO-SUCH-LOT/ship', allow: ['quality'] },
   { route: 'GET /api/audit', allow: ['admin', 'quality'] },
+  { route: 'GET /api/imports', allow: ['admin', 'engineer'] },
+  { route: 'POST /api/imports', allow: ['admin', 'engineer'] },
+  { route: 'GET /api/imports/:id', sample: '/api/imports/00000000-0000-4000-8000-000000000000', allow: ['admin', 'engineer'] },
+  { route: 'GET /api/imports/:id/rejections.csv', sample: '/api/imports/00000000-0000-4000-8000-000000000000/rejections.csv', allow: ['admin', 'engineer'] },
 ]
 
 const cookies: Partial<Record<Who, string>> = {}

@@ -47,5 +47,30 @@ export async function seedDemoHistory(db: Knex, now = new Date()): Promise<numbe
       }
     }
   }
+  await seedDemoShipments(db, now)
   return count
+}
+
+/** One shipped and one released shipment, so each demo customer has units to look at. */
+async function seedDemoShipments(db: Knex, now: Date): Promise<void> {
+  const quality = await db('users').where({ role: 'quality' }).first('id')
+  const plan = [
+    { lot: 'D2-2611-A', customer: 'SALT', code: 'SH-2611-001', po: 'SGS-PO-88410', units: 40, shipped: true },
+    { lot: 'T3-2611-A', customer: 'QUILL', code: 'SH-2611-002', po: 'QRO-7731', units: 24, shipped: false },
+  ]
+  await db.transaction(async (trx) => {
+    for (const p of plan) {
+      const lot = await trx('lots').where({ code: p.lot }).first('id')
+      const customer = await trx('customers').where({ code: p.customer }).first('id')
+      const released = new Date(now.getTime() - (p.shipped ? 2 : 1) * 86_400_000)
+      await trx('lots').where({ id: lot.id }).update({ status: p.shipped ? 'shipped' : 'released', released_at: released, released_by: quality.id, shipped_at: p.shipped ? now : null })
+      const [shipmentId] = await trx('shipments').insert({
+        code: p.code, customer_id: customer.id, status: p.shipped ? 'shipped' : 'released', customer_po: p.po,
+        released_at: released, released_by: quality.id, shipped_at: p.shipped ? now : null,
+      })
+      const passing = await trx('units as u').join('unit_steps as us', 'us.unit_id', 'u.id')
+        .where({ 'u.lot_id': lot.id, 'us.step': 'final', 'us.latest_verdict': 'pass' }).orderBy('u.serial').limit(p.units).select('u.id')
+      await trx('shipment_units').insert(passing.map((u: any) => ({ shipment_id: shipmentId, unit_id: u.id })))
+    }
+  })
 }
