@@ -1,0 +1,78 @@
+import type { EventStream } from 'h3'
+import { floorLotYields, floorSnapshot, floorStationView, pollRuns } from '../../services/analytics/floor'
+import type { FeedCursor } from '../../services/analytics/floor-cursor'
+import { loadSessionUser } from '../../utils/auth'
+
+const POLL_MS = 2000
+const HEARTBEAT_MS = 15_000
+const RETRY_MS = 3000
+
+// h3's push() only writes data events; an SSE comment keeps proxies and the socket awake without waking listeners.
+function pushComment(stream: EventStream, text: string): void {
+  const s = stream as unknown as { _writer?: WritableStreamDefaultWriter<Uint8Array>; _writerIsClosed?: boolean }
+  if (!s._writer || s._writerIsClosed) return
+  s._writer.write(new TextEncoder().encode(`: ${text}\n\n`)).catch(() => {})
+}
+
+export default defineEventHandler((event) => {
+  const db = useDb()
+  const userId = event.context.user!.id
+  // ?once=1 sends the snapshot and ends the stream, for tools that cannot hold a connection open.
+  const once = getQuery(event).once === '1'
+  const stream = createEventStream(event)
+  let closed = false
+  let poll: ReturnType<typeof setTimeout> | undefined
+  let beat: ReturnType<typeof setInterval> | undefined
+  let cursor: FeedCursor
+
+  const stop = () => {
+    closed = true
+    clearTimeout(poll)
+    clearInterval(beat)
+  }
+  stream.onClosed(stop)
+  event.node.res.on('close', () => { stop(); stream.close() })
+
+  const send = (name: string, data: unknown, id?: number) =>
+    stream.push({ event: name, data: JSON.stringify(data), ...(id !== undefined ? { id: String(id) } : {}) })
+
+  const tick = async () => {
+    if (closed) return
+    try {
+      const next = await pollRuns(db, cursor)
+      cursor = next.cursor
+      if (next.runs.length && !closed) {
+        for (const r of next.runs) await send('run', r, r.id)
+        const [lots, stations] = await Promise.all([floorLotYields(db), floorStationView(db, new Date())])
+        await send('lots', { lots })
+        await send('stations', { stations })
+      }
+    } catch (e) {
+      console.error('floor stream poll failed', e)
+    }
+    if (!closed) poll = setTimeout(tick, POLL_MS)
+  }
+
+  // Writes wait for the reader, so the first events go out only after send() has handed the stream to the response.
+  setImmediate(async () => {
+    try {
+      const first = await floorSnapshot(db)
+      cursor = first.cursor
+      await stream.push({ event: 'snapshot', data: JSON.stringify(first.snapshot), retry: RETRY_MS })
+      if (once) { await stream.close(); return }
+    } catch (e) {
+      console.error('floor stream snapshot failed', e)
+      await stream.close()
+      return
+    }
+    if (closed) return
+    beat = setInterval(async () => {
+      const user = await loadSessionUser(userId).catch(() => undefined)
+      if (!user || user.disabled) { await stream.close(); return }
+      pushComment(stream, 'heartbeat')
+    }, HEARTBEAT_MS)
+    poll = setTimeout(tick, POLL_MS)
+  })
+
+  return stream.send()
+})

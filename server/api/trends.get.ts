@@ -1,0 +1,3 @@
+import { lotTrends } from '../services/analytics/trends'
+
+export default defineEventHandler((event) => lotTrends(useDb(), getQuery(event)))

@@ -1,0 +1,70 @@
+// One parameter compared across the stations that measured it: each station against the others pooled.
+import type { Knex } from 'knex'
+import { summaryFromMoments, welchTTest } from '../../../shared/utils/welch'
+import { lotIdsOfProduct, lotRef } from '../../database/repositories/analytics-params'
+import { problem, type FieldError } from '../../utils/problem'
+import { parseSeriesQuery, resolveSeries } from './series-query'
+import { freshParamRows } from './trends'
+import { emptyPooled, poolBy, poolMerge, poolRows, summarise, type PooledStats } from './station-rows'
+
+export type StationComparison = {
+  station: string; n: number; mean: number | null; sigma: number | null; sigmaWithin: number | null; min: number | null; max: number | null
+  bias: number | null; welch: { t: number; df: number; p: number } | null; largestBias: boolean
+}
+
+/** Bias against the pooled mean and Welch's test against all other stations pooled; the largest |bias| is flagged. */
+export function compareStations(byStation: { station: string; stats: PooledStats }[]): { pooled: ReturnType<typeof summarise>; stations: StationComparison[] } {
+  const all = byStation.reduce((acc, s) => poolMerge(acc, s.stats), emptyPooled())
+  const pooled = summarise(all)
+  const stations = byStation.map(({ station, stats }, i) => {
+    const s = summarise(stats)
+    const rest = byStation.reduce((acc, o, j) => (j === i ? acc : poolMerge(acc, o.stats)), emptyPooled())
+    const w = stats.moments.n > 0 && rest.moments.n > 0 ? welchTTest(summaryFromMoments(stats.moments), summaryFromMoments(rest.moments)) : null
+    return {
+      station, n: s.n, mean: s.mean, sigma: s.sigmaOverall, sigmaWithin: s.sigmaWithin, min: s.min, max: s.max,
+      bias: s.mean !== null && pooled.mean !== null ? s.mean - pooled.mean : null,
+      welch: w ? { t: w.t, df: w.df, p: w.p } : null,
+      largestBias: false,
+    }
+  })
+  if (stations.length >= 2) {
+    let best = -1
+    for (let i = 0; i < stations.length; i++) {
+      const b = stations[i]!.bias
+      if (b !== null && (best < 0 || Math.abs(b) > Math.abs(stations[best]!.bias!))) best = i
+    }
+    if (best >= 0) stations[best]!.largestBias = true
+  }
+  return { pooled, stations }
+}
+
+export async function stationComparison(db: Knex, query: Record<string, unknown>, now = new Date()) {
+  const errors: FieldError[] = []
+  const lotCode = typeof query.lot === 'string' && query.lot !== '' ? query.lot : null
+  if (lotCode !== null && lotCode.length > 32) errors.push({ pointer: '/lot', message: 'not a lot code' })
+  const q = parseSeriesQuery(query, errors)
+  const series = await resolveSeries(db, q, now)
+  let lotIds: number[]
+  if (lotCode !== null) {
+    const lot = await lotRef(db, lotCode)
+    if (!lot) throw problem(404, `No lot ${lotCode}.`)
+    if (lot.productId !== series.product.id) throw problem(400, `Lot ${lotCode} is not a lot of ${series.product.partNumber}.`, { errors: [{ pointer: '/lot', message: 'belongs to another part' }] })
+    lotIds = [lot.id]
+  } else {
+    lotIds = await lotIdsOfProduct(db, series.product.id)
+  }
+  const rows = await freshParamRows(db, lotIds, { step: series.step, name: q.name, qualifier: q.qualifier })
+  const names = new Map(rows.map((r) => [r.stationId, r.stationName]))
+  const grouped = [...poolBy(rows, (r) => r.stationId)]
+    .map(([id, stats]) => ({ station: names.get(id)!, stats }))
+    .filter((s) => s.stats.moments.n > 0)
+    .sort((a, b) => a.station.localeCompare(b.station))
+  const { pooled, stations } = compareStations(grouped)
+  return {
+    part: { partNumber: series.product.partNumber, name: series.product.name, steps: series.product.steps },
+    parameter: series.parameter,
+    lot: lotCode,
+    pooled: { ...pooled, outOfSpec: poolRows(rows).outOfSpec },
+    stations,
+  }
+}
