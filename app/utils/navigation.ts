@@ -7,8 +7,9 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/lots', label: 'Lots', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/units', label: 'Units', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/stations', label: 'Stations', roles: ['admin', 'engineer'] },
+  { to: '/imports', label: 'Imports', roles: ['admin', 'engineer'] },
   { to: '/admin/users', label: 'Users', roles: ['admin'] },
-  { to: '/portal', label: 'Certificates', roles: ['customer'] },
+  { to: '/portal', label: 'Shipments', roles: ['customer'] },
 ]
 
 export function navFor(role: Role | undefined): NavItem[] {
