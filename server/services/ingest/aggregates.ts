@@ -39,7 +39,7 @@ export async function updateParamStats(trx: Knex, ctx: AggregateContext, ms: Jud
   const rows = ms.filter((m) => Number.isFinite(m.value))
   if (!rows.length) return
   const first = ctx.attempt === 1 ? 1 : 0
-  const values: unknown[] = []
+  const values: Knex.RawBinding[] = []
   for (const m of rows) {
     values.push(ctx.lotId, ctx.step, m.name, m.qualifier, ctx.stationId, m.unit, first, m.value, m.value, m.value,
       first ? m.value : null, first ? ctx.startedAt : null, first && m.outOfSpec ? 1 : 0, m.verdict === 'fail' ? 1 : 0)

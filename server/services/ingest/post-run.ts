@@ -3,9 +3,13 @@ import { validateRun } from '../../utils/run-validator'
 import { ingestRun, RunRejected, type StationRef } from './ingest-run'
 import type { RunView } from './run-view'
 
-export type PostResult =
-  | { status: 200 | 201; run: RunView }
-  | { status: 400 | 409 | 422; detail: string; errors?: { pointer: string; message: string }[] }
+export type StoredResult = { status: 200 | 201; run: RunView }
+export type RefusedResult = { status: 400 | 409 | 422; detail: string; errors?: { pointer: string; message: string }[] }
+export type PostResult = StoredResult | RefusedResult
+
+export function isStored(r: PostResult): r is StoredResult {
+  return r.status === 200 || r.status === 201
+}
 
 /** Validation and ingest of one run body, with the outcome as the single-run endpoint would answer it. */
 export async function postRun(db: Knex, station: StationRef, body: unknown, pointerPrefix = ''): Promise<PostResult> {

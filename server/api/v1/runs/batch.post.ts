@@ -1,4 +1,4 @@
-import { postRun } from '../../../services/ingest/post-run'
+import { isStored, postRun } from '../../../services/ingest/post-run'
 
 const MAX_BYTES = 64 * 1024 * 1024
 const MAX_RUNS = 500
@@ -18,7 +18,7 @@ export default defineEventHandler(async (event) => {
     try {
       const r = await postRun(db, station, item, `/runs/${i}`)
       const id = typeof item?.id === 'string' ? item.id : null
-      results.push(r.status === 200 || r.status === 201 ? { id, status: r.status, run: r.run } : { id, status: r.status, detail: r.detail, errors: r.errors ?? [] })
+      results.push(isStored(r) ? { id, status: r.status, run: r.run } : { id, status: r.status, detail: r.detail, errors: r.errors ?? [] })
     } catch (e: any) {
       const unavailable = ['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ETIMEDOUT'].includes(e?.code)
       if (!unavailable) console.error(e)

@@ -1,4 +1,4 @@
-import { postRun } from '../../../services/ingest/post-run'
+import { isStored, postRun } from '../../../services/ingest/post-run'
 
 const MAX_BYTES = 1024 * 1024
 
@@ -6,7 +6,7 @@ export default defineEventHandler(async (event) => {
   const station = requireStation(event)
   const body = await readJsonLimited(event, MAX_BYTES)
   const r = await postRun(useDb(), station, body)
-  if (r.status === 200 || r.status === 201) {
+  if (isStored(r)) {
     setResponseStatus(event, r.status)
     return r.run
   }
