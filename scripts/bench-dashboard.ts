@@ -105,7 +105,7 @@ async function main() {
       for (let i = 0; i < 50; i++) {
         const s = performance.now()
         const r = await fetch(`${url}/api/lots/${LOT}/summary`, { headers: { cookie } })
-        if (!r.ok) throw new Error(`summary answered ${r.status}`)
+        if (!r.ok) throw new Error(`summary answered ${r.status}: ${await r.text()}`)
         await r.arrayBuffer()
         times.push(performance.now() - s)
       }
