@@ -1,0 +1,51 @@
+// Pure pieces of the phase-noise view: the limit mask a run was judged against, and the log-frequency axis.
+import { formatFrequency } from './measurement-names'
+
+export type MaskPoint = { offsetHz: number; usl: number }
+
+type MeasurementLike = { name: string; offsetHz?: number; limit: { usl: number | null } | null }
+
+/**
+ * The upper limit per offset as snapshotted on the run's own phase-noise measurements, so a run
+ * judged under an older revision shows the mask it was actually held to.
+ */
+export function limitMaskFromMeasurements(ms: MeasurementLike[]): MaskPoint[] {
+  const byOffset = new Map<number, number>()
+  for (const m of ms) {
+    if (m.name !== 'phase_noise' || m.offsetHz == null || m.limit?.usl == null) continue
+    if (!Number.isFinite(m.offsetHz) || m.offsetHz <= 0 || !Number.isFinite(m.limit.usl)) continue
+    byOffset.set(m.offsetHz, m.limit.usl)
+  }
+  return [...byOffset].sort((a, b) => a[0] - b[0]).map(([offsetHz, usl]) => ({ offsetHz, usl }))
+}
+
+/**
+ * The mask as a step line centred on the spot offsets: each limit holds from the log-midpoint with
+ * its lower neighbour to the log-midpoint with its upper one, so every spot sits under its own limit.
+ * The outer steps reach startHz / endHz when those lie beyond the outer offsets.
+ */
+export function maskStepPoints(mask: MaskPoint[], startHz?: number, endHz?: number): [number, number][] {
+  const out: [number, number][] = []
+  mask.forEach((p, i) => {
+    const prev = mask[i - 1]
+    const next = mask[i + 1]
+    const from = prev ? Math.sqrt(prev.offsetHz * p.offsetHz) : Math.min(p.offsetHz, startHz ?? p.offsetHz)
+    const to = next ? Math.sqrt(p.offsetHz * next.offsetHz) : Math.max(p.offsetHz, endHz ?? p.offsetHz)
+    out.push([from, p.usl], [to, p.usl])
+  })
+  return out
+}
+
+/** Whole decades covering [lo, hi] in Hz, as exponents: 150 … 2e6 → [2, 7]. */
+export function decadeRange(lo: number, hi: number): [number, number] {
+  if (!(lo > 0) || !(hi > 0)) throw new RangeError('offsets must be positive')
+  const a = Math.floor(Math.log10(Math.min(lo, hi)) + 1e-9)
+  const b = Math.ceil(Math.log10(Math.max(lo, hi)) - 1e-9)
+  return [a, Math.max(b, a + 1)]
+}
+
+/** Axis label of a log10(Hz) position: 4 → "10 kHz"; positions off a round value keep three digits. */
+export function logFrequencyLabel(exponent: number): string {
+  const hz = 10 ** exponent
+  return formatFrequency(Number.parseFloat(hz.toPrecision(3)))
+}
