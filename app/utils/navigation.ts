@@ -7,7 +7,9 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/lots', label: 'Lots', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/units', label: 'Units', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/stations', label: 'Stations', roles: ['admin', 'engineer'] },
+  { to: '/specs', label: 'Specs', roles: ['admin', 'quality', 'engineer'] },
   { to: '/imports', label: 'Imports', roles: ['admin', 'engineer'] },
+  { to: '/audit', label: 'Audit', roles: ['admin', 'quality'] },
   { to: '/admin/users', label: 'Users', roles: ['admin'] },
   { to: '/portal', label: 'Shipments', roles: ['customer'] },
 ]

@@ -92,7 +92,8 @@ export async function approveRevision(db: Knex, actor: UserRecord, revisionId: n
     const superseded = await supersedeApproved(trx, product.id, revisionId)
     await writeAudit(trx, {
       userId: actor.id, action: 'approve', entity: 'spec_revision', entityId: revisionId,
-      before: { status: 'draft' }, after: { status: 'approved', partNumber: product.partNumber, revision: rev.revision, effectiveAt, supersedes: superseded.map((s) => s.revision) },
+      before: { status: 'draft', partNumber: product.partNumber, revision: rev.revision, effectiveAt: null, supersedes: [] },
+      after: { status: 'approved', partNumber: product.partNumber, revision: rev.revision, effectiveAt, supersedes: superseded.map((s) => s.revision) },
     })
     for (const s of superseded) {
       await writeAudit(trx, { userId: actor.id, action: 'supersede', entity: 'spec_revision', entityId: s.id, before: { status: 'approved' }, after: { status: 'superseded', by: rev.revision } })
