@@ -6,6 +6,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/floor', label: 'Floor', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/lots', label: 'Lots', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/units', label: 'Units', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  { to: '/trends', label: 'Trends', roles: ['admin', 'quality', 'engineer'] },
   { to: '/stations', label: 'Stations', roles: ['admin', 'engineer'] },
   { to: '/specs', label: 'Specs', roles: ['admin', 'quality', 'engineer'] },
   { to: '/imports', label: 'Imports', roles: ['admin', 'engineer'] },

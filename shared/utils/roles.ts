@@ -24,6 +24,7 @@ export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
   { prefix: '/admin', roles: ['admin'] },
   { prefix: '/portal', roles: ['customer'] },
   { prefix: '/floor', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  { prefix: '/stations/compare', roles: ['admin', 'quality', 'engineer'] },
   { prefix: '/stations', roles: ['admin', 'engineer'] },
   { prefix: '/specs', roles: ['admin', 'quality', 'engineer'] },
   { prefix: '/audit', roles: ['admin', 'quality'] },

@@ -1,6 +1,7 @@
 import type { EventStream } from 'h3'
 import { floorLotYields, floorSnapshot, floorStationView, pollRuns } from '../../services/analytics/floor'
 import type { FeedCursor } from '../../services/analytics/floor-cursor'
+import { trackStream } from '../../services/analytics/floor-streams'
 import { loadSessionUser } from '../../utils/auth'
 
 const POLL_MS = 2000
@@ -25,10 +26,12 @@ export default defineEventHandler((event) => {
   let beat: ReturnType<typeof setInterval> | undefined
   let cursor: FeedCursor
 
+  const untrack = trackStream(() => { stream.close() })
   const stop = () => {
     closed = true
     clearTimeout(poll)
     clearInterval(beat)
+    untrack()
   }
   stream.onClosed(stop)
   event.node.res.on('close', () => { stop(); stream.close() })

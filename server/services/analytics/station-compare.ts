@@ -27,14 +27,11 @@ export function compareStations(byStation: { station: string; stats: PooledStats
       largestBias: false,
     }
   })
-  if (stations.length >= 2) {
-    let best = -1
-    for (let i = 0; i < stations.length; i++) {
-      const b = stations[i]!.bias
-      if (b !== null && (best < 0 || Math.abs(b) > Math.abs(stations[best]!.bias!))) best = i
-    }
-    if (best >= 0) stations[best]!.largestBias = true
-  }
+  // Two stations with equal counts sit equally far from the pooled mean: a tie flags nobody rather than the first name.
+  const sizes = stations.map((s) => (s.bias === null ? -1 : Math.abs(s.bias)))
+  const top = Math.max(-1, ...sizes)
+  const leaders = sizes.filter((b) => b >= 0 && top - b <= 1e-12 * Math.max(1, top))
+  if (stations.length >= 2 && top >= 0 && leaders.length === 1) stations[sizes.indexOf(top)]!.largestBias = true
   return { pooled, stations }
 }
 

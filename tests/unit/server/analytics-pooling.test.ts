@@ -95,6 +95,13 @@ describe('compareStations', () => {
     expect(stations.filter((s) => s.largestBias).map((s) => s.station)).toEqual(['B'])
   })
 
+  it('flags nobody when two stations of equal size are equally far from the pooled mean', () => {
+    const { stations } = compareStations([{ station: 'A', stats: poolRows([rowOf([1, 2, 3])]) }, { station: 'B', stats: poolRows([rowOf([2, 3, 4])]) }])
+    expect(stations[0]!.bias).toBeCloseTo(-0.5, 14)
+    expect(stations[1]!.bias).toBeCloseTo(0.5, 14)
+    expect(stations.some((s) => s.largestBias)).toBe(false)
+  })
+
   it('flags nobody with a single station, and has no test without others', () => {
     const { stations } = compareStations([input[0]!])
     expect(stations[0]!.largestBias).toBe(false)

@@ -37,3 +37,19 @@ describe('floor feed cursor', () => {
     expect(c.gaps.length).toBeLessThanOrEqual(500)
   })
 })
+
+describe('open stream registry', () => {
+  it('closes every tracked stream once, and forgets a stream that ended by itself', async () => {
+    const { trackStream, closeAllStreams, openStreamCount } = await import('../../../server/services/analytics/floor-streams')
+    const closed: string[] = []
+    trackStream(() => closed.push('a'))
+    const untrackB = trackStream(() => closed.push('b'))
+    trackStream(() => closed.push('c'))
+    untrackB()
+    expect(openStreamCount()).toBe(2)
+    expect(closeAllStreams()).toBe(2)
+    expect(closed).toEqual(['a', 'c'])
+    expect(closeAllStreams()).toBe(0)
+    expect(closed).toEqual(['a', 'c'])
+  })
+})
