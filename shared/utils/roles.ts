@@ -26,6 +26,7 @@ export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
   { prefix: '/floor', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { prefix: '/stations/compare', roles: ['admin', 'quality', 'engineer'] },
   { prefix: '/stations', roles: ['admin', 'engineer'] },
+  { prefix: '/imports', roles: ['admin', 'engineer'] },
   { prefix: '/specs', roles: ['admin', 'quality', 'engineer'] },
   { prefix: '/audit', roles: ['admin', 'quality'] },
   { prefix: '/', roles: ['admin', 'quality', 'engineer', 'operator'] },

@@ -1,0 +1,8 @@
+import { listImportJobs } from '../../database/repositories/imports'
+import { importJobView } from '../../services/imports'
+
+export default defineEventHandler(async (event) => {
+  setResponseHeader(event, 'Cache-Control', 'no-store')
+  const now = new Date()
+  return { imports: (await listImportJobs(useDb(), 50)).map((j) => importJobView(j, now)) }
+})

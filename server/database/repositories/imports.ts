@@ -1,0 +1,80 @@
+import type { Knex } from 'knex'
+
+export type ImportFormat = 'jsonl' | 'csv'
+export type ImportStatus = 'running' | 'done' | 'failed'
+
+export type ImportCounts = { linesDone: number; runsDone: number; runsCreated: number; runsReplayed: number; runsRejected: number }
+
+export type ImportJobRow = ImportCounts & {
+  id: string
+  format: ImportFormat
+  fileName: string
+  status: ImportStatus
+  station: { id: number; name: string }
+  createdBy: { id: number; name: string }
+  linesTotal: number | null
+  startedAt: Date
+  updatedAt: Date
+  finishedAt: Date | null
+  error: string | null
+}
+
+export type RejectionRow = { line: number; runId: string | null; status: number; reason: string }
+
+export async function findStationByName(db: Knex, name: string): Promise<{ id: number; name: string } | undefined> {
+  const r = await db('stations').where({ name }).first('id', 'name')
+  return r ? { id: r.id, name: r.name } : undefined
+}
+
+export async function insertImportJob(db: Knex, j: { id: string; createdBy: number; stationId: number; fileName: string; format: ImportFormat; linesTotal: number }): Promise<void> {
+  await db('import_jobs').insert({ id: j.id, created_by: j.createdBy, station_id: j.stationId, file_name: j.fileName, format: j.format, lines_total: j.linesTotal })
+}
+
+function countColumns(c: ImportCounts) {
+  return { lines_done: c.linesDone, runs_done: c.runsDone, runs_created: c.runsCreated, runs_replayed: c.runsReplayed, runs_rejected: c.runsRejected }
+}
+
+export async function insertRejections(db: Knex, jobId: string, rows: RejectionRow[]): Promise<void> {
+  if (!rows.length) return
+  await db('import_rejections').insert(rows.map((r) => ({ job_id: jobId, line_number: r.line, run_id: r.runId, status: r.status, reason: r.reason })))
+}
+
+export async function updateImportProgress(db: Knex, jobId: string, c: ImportCounts): Promise<void> {
+  await db('import_jobs').where({ id: jobId }).update({ ...countColumns(c), updated_at: db.fn.now(3) })
+}
+
+export async function finishImportJob(db: Knex, jobId: string, status: 'done' | 'failed', c: ImportCounts, error: string | null): Promise<void> {
+  await db('import_jobs').where({ id: jobId }).update({ ...countColumns(c), status, error, updated_at: db.fn.now(3), finished_at: db.fn.now(3) })
+}
+
+function base(db: Knex) {
+  return db('import_jobs as j')
+    .join('stations as s', 's.id', 'j.station_id')
+    .join('users as u', 'u.id', 'j.created_by')
+    .select('j.*', 's.name as station_name', 'u.name as user_name')
+}
+
+function toJob(r: any): ImportJobRow {
+  return {
+    id: r.id, format: r.format, fileName: r.file_name, status: r.status,
+    station: { id: r.station_id, name: r.station_name }, createdBy: { id: r.created_by, name: r.user_name },
+    linesTotal: r.lines_total ?? null, linesDone: r.lines_done, runsDone: r.runs_done, runsCreated: r.runs_created,
+    runsReplayed: r.runs_replayed, runsRejected: r.runs_rejected,
+    startedAt: r.started_at, updatedAt: r.updated_at, finishedAt: r.finished_at ?? null, error: r.error ?? null,
+  }
+}
+
+export async function findImportJob(db: Knex, id: string): Promise<ImportJobRow | undefined> {
+  const r = await base(db).where('j.id', id).first()
+  return r ? toJob(r) : undefined
+}
+
+export async function listImportJobs(db: Knex, limit: number): Promise<ImportJobRow[]> {
+  return (await base(db).orderBy('j.started_at', 'desc').orderBy('j.id').limit(limit)).map(toJob)
+}
+
+/** Rejections in line order, after the row with internal id `after` (keyset paging). */
+export async function listRejections(db: Knex, jobId: string, limit: number, after = 0): Promise<(RejectionRow & { seq: number })[]> {
+  const rows = await db('import_rejections').where({ job_id: jobId }).where('id', '>', after).orderBy('id').limit(limit)
+  return rows.map((r: any) => ({ seq: Number(r.id), line: r.line_number, runId: r.run_id ?? null, status: r.status, reason: r.reason }))
+}

@@ -1,0 +1,332 @@
+// Historical import of test runs from a file. The upload is first copied to a temporary file while every line
+// is checked (UTF-8 text, and for CSV a known header); a file failing those checks is refused whole before any
+// run is written. The runs are then read back line by line and posted one at a time through the station API's
+// own postRun, so validation, judging and idempotency are exactly the station's.
+import { randomUUID } from 'node:crypto'
+import { createReadStream, createWriteStream } from 'node:fs'
+import { unlink } from 'node:fs/promises'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import type { Readable } from 'node:stream'
+import type { Knex } from 'knex'
+import {
+  checkRunCsvHeader, CsvRecordJoiner, CsvRunAssembler, describeHeaderProblem, locateCsvPointer, parseCsvRecord,
+  type CsvRun, type CsvRunRow,
+} from '../../shared/utils/run-csv'
+import { writeAudit } from '../database/repositories/audit'
+import {
+  findImportJob, finishImportJob, insertImportJob, insertRejections, updateImportProgress,
+  type ImportCounts, type ImportFormat, type ImportJobRow, type RejectionRow,
+} from '../database/repositories/imports'
+import { isBlankLine, isUtf8Line, LineSplitter, type RawLine } from '../utils/line-splitter'
+import { OrderedPipeline } from '../utils/ordered-pipeline'
+import { isStored, postRun, type PostResult, type RefusedResult } from './ingest/post-run'
+import type { StationRef } from './ingest/ingest-run'
+
+export const MAX_LINE_BYTES = 2 * 1024 * 1024
+export const MAX_FILE_BYTES = 2 * 1024 ** 3
+const FLUSH_EVERY_RUNS = 200
+// one at a time: concurrent first attempts of new units deadlock in ingest's unit_steps lookup
+const PARALLEL_RUNS = 1
+const WINDOW_RUNS = 64
+const WINDOW_BYTES = 16 * 1024 * 1024
+const FLUSH_EVERY_MS = 500
+const MAX_REASON = 1000
+const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ETIMEDOUT', 'ER_CON_COUNT_ERROR'])
+
+type Spooled = { path: string; lines: number; format: ImportFormat }
+
+/** The upload is refused as a whole, before any run of it is written. */
+export class ImportRefused extends Error {
+  constructor(public status: 400 | 413, message: string, public messages: string[], public extra: Record<string, unknown> = {}) {
+    super(message)
+  }
+}
+
+function refuse(status: 400 | 413, detail: string, messages: string[], extra: Record<string, unknown> = {}): ImportRefused {
+  return new ImportRefused(status, detail, messages, extra)
+}
+
+/**
+ * Copies the upload to a temporary file, checking each line as it passes. Refuses (ImportRefused) a CSV whose
+ * header names unknown or misses required columns, any line that is not UTF-8, and a file without runs;
+ * the rest of a refused upload is read and dropped so that the client receives the answer.
+ */
+export async function spoolUpload(source: Readable, format: ImportFormat): Promise<Spooled> {
+  const path = join(tmpdir(), `tercet-import-${randomUUID()}.part`)
+  const out = createWriteStream(path)
+  let writeError: Error | undefined
+  out.on('error', (e) => { writeError = e })
+  const splitter = new LineSplitter(MAX_LINE_BYTES)
+  let bytes = 0
+  let content = false
+  const check = (l: RawLine) => {
+    if (!l.tooLong && !isUtf8Line(l.bytes)) {
+      throw refuse(400, `Line ${l.number} is not UTF-8 text; save the file as UTF-8 and import it again. Nothing was imported.`, [`line ${l.number}: not valid UTF-8`], { lines: [l.number] })
+    }
+    if (format === 'csv' && l.number === 1) checkCsvHeader(l)
+    else if (l.tooLong || !isBlankLine(l.bytes)) content = true
+  }
+  try {
+    for await (const chunk of source.iterator({ destroyOnReturn: false }) as AsyncIterable<Buffer>) {
+      bytes += chunk.length
+      if (bytes > MAX_FILE_BYTES) throw refuse(413, `The file is larger than ${MAX_FILE_BYTES} bytes.`, ['file too large'])
+      for (const l of splitter.push(chunk)) check(l)
+      if (writeError) throw writeError
+      if (!out.write(chunk)) await new Promise<void>((r) => out.once('drain', r))
+    }
+    for (const l of splitter.end()) check(l)
+    if ((source as { complete?: boolean }).complete === false) throw new Error('The upload was interrupted.')
+    if (format === 'csv' && splitter.lines === 0) throw refuse(400, 'The CSV file is empty; it needs a header row and one row per measurement.', ['empty file'])
+    if (!content) throw refuse(400, 'The file holds no runs.', ['no runs in the file'])
+    await new Promise<void>((done, fail) => out.end((e?: Error | null) => (e || writeError ? fail(e ?? writeError) : done())))
+    return { path, lines: splitter.lines, format }
+  } catch (e) {
+    source.resume()
+    out.destroy()
+    await unlink(path).catch(() => {})
+    throw e
+  }
+}
+
+function checkCsvHeader(l: RawLine): void {
+  if (l.tooLong) throw refuse(400, 'The CSV header line is too long.', ['line 1: header too long'])
+  let cells: string[] | undefined
+  try {
+    cells = parseCsvRecord(l.bytes.toString('utf8'))
+  } catch {
+    cells = undefined
+  }
+  if (!cells) throw refuse(400, 'The first line of a CSV file must be its header.', ['line 1: no header'])
+  const h = checkRunCsvHeader(cells)
+  if (!h.ok) {
+    const messages = describeHeaderProblem(h)
+    throw refuse(400, `The CSV header does not fit: ${messages.join('; ')}. Nothing was imported.`, messages, {
+      unknownColumns: h.unknown, missingColumns: h.missing, duplicateColumns: h.duplicate,
+    })
+  }
+}
+
+async function* fileLines(path: string): AsyncGenerator<RawLine> {
+  const splitter = new LineSplitter(MAX_LINE_BYTES)
+  for await (const chunk of createReadStream(path, { highWaterMark: 256 * 1024 })) {
+    for (const l of splitter.push(chunk as Buffer)) yield l
+  }
+  for (const l of splitter.end()) yield l
+}
+
+/** One thing to post, or a line that was refused before posting, or a line that holds nothing. */
+type Item =
+  | { kind: 'run'; line: number; lastLine: number; runId: string | null; body: unknown; bytes: number; locate?: (pointer: string) => { line: number; field: string } }
+  | { kind: 'reject'; line: number; lastLine: number; runId: string | null; status: number; reason: string }
+  | { kind: 'skip'; lastLine: number }
+
+const tooLong = (n: number) => `line ${n} is longer than ${MAX_LINE_BYTES} bytes`
+
+async function* jsonlItems(lines: AsyncIterable<RawLine>): AsyncGenerator<Item> {
+  for await (const l of lines) {
+    if (l.tooLong) { yield { kind: 'reject', line: l.number, lastLine: l.number, runId: null, status: 400, reason: tooLong(l.number) }; continue }
+    if (isBlankLine(l.bytes)) { yield { kind: 'skip', lastLine: l.number }; continue }
+    let body: unknown
+    try {
+      body = JSON.parse(l.bytes.toString('utf8'))
+    } catch (e) {
+      yield { kind: 'reject', line: l.number, lastLine: l.number, runId: null, status: 400, reason: `The line is not valid JSON: ${(e as Error).message}` }
+      continue
+    }
+    const id = (body as { id?: unknown } | null)?.id
+    yield { kind: 'run', line: l.number, lastLine: l.number, runId: typeof id === 'string' ? id : null, body, bytes: l.bytes.length }
+  }
+}
+
+function csvItem(run: CsvRun): Item {
+  const runId = run.id || null
+  if (run.problem) return { kind: 'reject', line: run.problem.line, lastLine: run.lastLine, runId, status: 400, reason: run.problem.reason }
+  return { kind: 'run', line: run.firstLine, lastLine: run.lastLine, runId, body: run.body, bytes: run.bytes, locate: (p) => locateCsvPointer(run, p) }
+}
+
+function csvRow(r: { line: number; text: string; error?: string }): CsvRunRow | undefined {
+  if (r.error) return { line: r.line, error: r.error, text: r.text }
+  try {
+    const cells = parseCsvRecord(r.text)
+    return cells && cells.some((c) => c.trim() !== '') ? { line: r.line, cells } : undefined
+  } catch (e) {
+    return { line: r.line, error: (e as Error).message, text: r.text }
+  }
+}
+
+async function* csvItems(lines: AsyncIterable<RawLine>): AsyncGenerator<Item> {
+  let assembler: CsvRunAssembler | undefined
+  const joiner = new CsvRecordJoiner()
+  for await (const l of lines) {
+    if (l.number === 1) {
+      const h = checkRunCsvHeader(parseCsvRecord(l.bytes.toString('utf8')) ?? [])
+      if (!h.ok) throw new Error('The CSV header changed after it was checked.')
+      assembler = new CsvRunAssembler(h.columns)
+      yield { kind: 'skip', lastLine: 1 }
+      continue
+    }
+    const r = l.tooLong ? { line: l.number, text: '', error: tooLong(l.number) } : joiner.push(l.bytes.toString('utf8'), l.number)
+    const row = r && csvRow(r)
+    const done = row && assembler!.push(row)
+    if (done) yield csvItem(done)
+  }
+  const rest = joiner.end()
+  const row = rest && csvRow(rest)
+  const done = row && assembler?.push(row)
+  if (done) yield csvItem(done)
+  const last = assembler?.end()
+  if (last) yield csvItem(last)
+}
+
+/** The unit a run body names: runs of one unit are posted one after another, so that retests follow first attempts. */
+function laneOf(body: unknown): string {
+  const b = body as { partNumber?: unknown; serial?: unknown } | null
+  return `${typeof b?.partNumber === 'string' ? b.partNumber : ''}\u0000${typeof b?.serial === 'string' ? b.serial : ''}`
+}
+
+function clip(s: string, n = MAX_REASON): string {
+  return s.length <= n ? s : s.slice(0, n - 1) + '…'
+}
+
+/** The line a refused run is recorded at and why, in the file's own terms. */
+function describeRefusal(item: Extract<Item, { kind: 'run' }>, r: RefusedResult): { line: number; reason: string } {
+  const errors = r.errors ?? []
+  if (!item.locate) {
+    const parts = errors.map((e) => `${e.pointer || '/'}: ${e.message}`)
+    return { line: item.line, reason: clip([r.detail, ...parts].join(' ')) }
+  }
+  const located = errors.map((e) => ({ ...item.locate!(e.pointer), message: e.message }))
+  const parts = located.map((e) => `line ${e.line} ${e.field}: ${e.message}`)
+  return { line: located[0]?.line ?? item.line, reason: clip([r.detail, ...parts].join(' ')) }
+}
+
+function isUnavailable(e: any): boolean {
+  return UNAVAILABLE.has(e?.code) || /Timeout acquiring a connection/.test(String(e?.message))
+}
+
+/** postRun, with an unexpected failure of one run reported as undefined; a lost database stops the import. */
+async function postOne(db: Knex, station: StationRef, body: unknown): Promise<PostResult | undefined> {
+  try {
+    return await postRun(db, station, body)
+  } catch (e) {
+    if (isUnavailable(e)) throw e
+    console.error(e)
+    return undefined
+  }
+}
+
+export type ImportContext = { jobId: string; userId: number; station: StationRef; fileName: string; format: ImportFormat }
+
+/** Posts every run of the spooled file and keeps the job row current; the job ends done or failed, with its audit row. */
+export async function processImport(db: Knex, ctx: ImportContext, spooled: Spooled): Promise<void> {
+  const counts: ImportCounts = { linesDone: 0, runsDone: 0, runsCreated: 0, runsReplayed: 0, runsRejected: 0 }
+  let pending: RejectionRow[] = []
+  let lastFlush = Date.now()
+  let sinceFlush = 0
+
+  // rejections and the counters that include them move together
+  const flush = async () => {
+    const batch = pending
+    pending = []
+    await db.transaction(async (trx) => {
+      await insertRejections(trx, ctx.jobId, batch)
+      await updateImportProgress(trx, ctx.jobId, counts)
+    })
+    lastFlush = Date.now()
+    sinceFlush = 0
+  }
+  const reject = (line: number, runId: string | null, status: number, reason: string) => {
+    counts.runsRejected++
+    pending.push({ line, runId: runId === null ? null : runId.slice(0, 64), status, reason: clip(reason) })
+  }
+
+  const finish = async (status: 'done' | 'failed', error: string | null) => {
+    const batch = pending
+    pending = []
+    await db.transaction(async (trx) => {
+      await insertRejections(trx, ctx.jobId, batch)
+      await finishImportJob(trx, ctx.jobId, status, counts, error)
+      await writeAudit(trx, {
+        userId: ctx.userId, stationId: ctx.station.id, action: 'import', entity: 'import_job', entityId: ctx.jobId,
+        after: { fileName: ctx.fileName, format: ctx.format, station: ctx.station.name, status, linesTotal: spooled.lines, ...counts, error },
+      })
+    })
+  }
+
+  type Outcome = { item: Item; result?: PostResult; failed?: boolean; fatal?: unknown }
+  const apply = (o: Outcome) => {
+    const item = o.item
+    if (o.fatal !== undefined) throw o.fatal
+    if (item.kind === 'run') {
+      counts.runsDone++
+      const r = o.result
+      if (o.failed || !r) reject(item.line, item.runId, 500, 'This run could not be stored because of an internal error.')
+      else if (isStored(r)) {
+        if (r.status === 201) counts.runsCreated++
+        else counts.runsReplayed++
+      } else {
+        const d = describeRefusal(item, r)
+        reject(d.line, item.runId, r.status, d.reason)
+      }
+    } else if (item.kind === 'reject') {
+      counts.runsDone++
+      reject(item.line, item.runId, item.status, item.reason)
+    }
+    counts.linesDone = Math.max(counts.linesDone, item.lastLine)
+    sinceFlush++
+  }
+  // While a run is in the database the next lines are already read and parsed; runs of one unit never overlap.
+  const pipeline = new OrderedPipeline<Outcome>(PARALLEL_RUNS, WINDOW_RUNS, WINDOW_BYTES)
+  try {
+    const lines = fileLines(spooled.path)
+    const items = ctx.format === 'csv' ? csvItems(lines) : jsonlItems(lines)
+    for await (const item of items) {
+      const ready = item.kind === 'run'
+        ? await pipeline.push(laneOf(item.body), item.bytes, async () => {
+          try {
+            const result = await postOne(db, ctx.station, item.body)
+            return result ? { item, result } : { item, failed: true }
+          } catch (fatal) {
+            return { item, fatal }
+          }
+        })
+        : await pipeline.push(null, 0, async () => ({ item }))
+      for (const o of ready) apply(o)
+      if (sinceFlush >= FLUSH_EVERY_RUNS || (sinceFlush > 0 && Date.now() - lastFlush >= FLUSH_EVERY_MS)) await flush()
+    }
+    for (const o of await pipeline.finish()) apply(o)
+    counts.linesDone = spooled.lines
+    await finish('done', null)
+  } catch (e: any) {
+    console.error(e)
+    await pipeline.settle()
+    const message = isUnavailable(e) ? 'The database became unavailable; import the file again to continue (stored runs are replayed).' : 'The import stopped because of an internal error; import the file again to continue.'
+    await finish('failed', message).catch((f) => console.error(f))
+  } finally {
+    await unlink(spooled.path).catch(() => {})
+  }
+}
+
+/** Spools the upload, creates the job and starts posting its runs; answers once the whole file is received. */
+export async function startImport(db: Knex, opts: Omit<ImportContext, 'jobId'>, source: Readable): Promise<ImportJobRow> {
+  const spooled = await spoolUpload(source, opts.format)
+  const jobId = randomUUID()
+  try {
+    await insertImportJob(db, { id: jobId, createdBy: opts.userId, stationId: opts.station.id, fileName: opts.fileName, format: opts.format, linesTotal: spooled.lines })
+  } catch (e) {
+    await unlink(spooled.path).catch(() => {})
+    throw e
+  }
+  void processImport(db, { ...opts, jobId }, spooled)
+  return (await findImportJob(db, jobId))!
+}
+
+const STALLED_MS = 2 * 60_000
+
+export type ImportJobView = ImportJobRow & { stalled: boolean }
+
+/** A running job whose counters stopped moving was left behind by a stopped server. */
+export function importJobView(job: ImportJobRow, now = new Date()): ImportJobView {
+  return { ...job, stalled: job.status === 'running' && now.getTime() - new Date(job.updatedAt).getTime() > STALLED_MS }
+}
