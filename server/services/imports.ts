@@ -83,7 +83,10 @@ export async function spoolUpload(source: Readable, format: ImportFormat): Promi
     return { path, lines: splitter.lines, format }
   } catch (e) {
     source.resume()
+    // the file may not be open yet; removing it before the stream closes would leave it behind
+    const closed = new Promise((r) => out.once('close', r))
     out.destroy()
+    await closed
     await unlink(path).catch(() => {})
     throw e
   }
