@@ -16,6 +16,8 @@ import { createKnex } from '../server/database/connection'
 import { generateStationToken } from '../server/utils/station-token'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../server/database/repositories/spec-lookup'
 import { judgeRun, type JudgedMeasurement } from '../server/services/ingest/judge-run'
+import { measurementsInsert, RUN_INSERT_SQL, runInsertValues, UNIT_INSERT_SQL, unitStepUpsert, type RunRow } from '../server/database/repositories/runs'
+import { paramStatsStatement, stepStatsStatement } from '../server/services/ingest/aggregates'
 import { validateRun, type StationRun } from '../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../fixtures/demo-catalogue'
 import { gaussian, generateRun, mulberry32 } from '../fixtures/run-generator'
@@ -144,57 +146,56 @@ async function waitHealthy(base: string): Promise<void> {
 }
 
 // ---- raw side ----------------------------------------------------------------------------------
+// The same rows the server writes for a run — a new unit, the run, its measurements, the unit's step row and the
+// lot aggregates — with the very statements the server uses, sent straight through mysql2: what is left between
+// the two figures is the server's own cost (HTTP, parsing, validation, judgement, query building).
 
-type RawCtx = { pool: mysql.Pool; lotId: number; stationIds: number[]; revisionId: number; unitIds: number[]; attempts: number[] }
+type RawCtx = { pool: mysql.Pool; lotId: number; productId: number; stationIds: number[]; revisionId: number }
 
-function runRow(p: Prepared, ctx: RawCtx, unitId: number, stationId: number, attempt: number): unknown[] {
+let rawSerial = 0
+
+function runRowFor(p: Prepared, ctx: RawCtx, unitId: number, stationId: number): RunRow {
   const r = p.run
-  return [randomUUID(), 'f'.repeat(64), unitId, ctx.lotId, stationId, ctx.revisionId, r.step, attempt, new Date(r.startedAt), new Date(r.finishedAt),
-    r.operator ?? null, r.software?.sequence ?? null, r.software?.version ?? null, r.conditions?.temperatureC ?? null, r.conditions?.supplyV ?? null,
-    r.stationVerdict ?? null, p.verdict, false, null, false, false, r.reference ? JSON.stringify(r.reference) : null]
-}
-const RUN_COLUMNS = `(uuid, body_hash, unit_id, lot_id, station_id, revision_id, step, attempt, started_at, finished_at, operator,
-  software_sequence, software_version, temperature_c, supply_v, station_verdict, server_verdict, verdict_disagrees,
-  missing_required, calibration_lapsed, measurement_issue, reference)`
-const RUN_TUPLE = `(${new Array(22).fill('?').join(', ')})`
-
-function measurementRows(p: Prepared, runId: number, ctx: RawCtx, stationId: number, firstAttempt: boolean): unknown[] {
-  const out: unknown[] = []
-  const started = new Date(p.run.startedAt)
-  for (const m of p.judged) {
-    out.push(runId, ctx.lotId, stationId, p.run.step, firstAttempt, started, m.name, m.qualifier, m.value, m.unit, m.uncertainty,
-      m.limit?.lsl ?? null, m.limit?.usl ?? null, m.limit?.target ?? null, m.limit?.rule ?? null, m.limit?.guardBand ?? null,
-      m.verdict, m.zone, m.derived, m.excessDb)
+  return {
+    uuid: randomUUID(), bodyHash: 'f'.repeat(64), unitId, lotId: ctx.lotId, stationId, revisionId: ctx.revisionId, step: r.step, attempt: 1,
+    startedAt: new Date(r.startedAt), finishedAt: new Date(r.finishedAt), operator: r.operator ?? null, softwareSequence: r.software?.sequence ?? null,
+    softwareVersion: r.software?.version ?? null, temperatureC: r.conditions?.temperatureC ?? null, supplyV: r.conditions?.supplyV ?? null,
+    stationVerdict: r.stationVerdict ?? null, serverVerdict: p.verdict, verdictDisagrees: false, missingRequired: [], calibrationLapsed: false,
+    measurementIssue: false, reference: r.reference ?? null,
   }
-  return out
 }
-const M_COLUMNS = `(run_id, lot_id, station_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
-  lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db)`
-const M_TUPLE = `(${new Array(20).fill('?').join(', ')})`
 
-/** 32 workers, each inserting `perTx` runs (multi-row) plus their measurements per transaction, for `seconds`. */
+/** One run's rows in the caller's open transaction. */
+async function rawRun(conn: mysql.PoolConnection, ctx: RawCtx, p: Prepared, stationId: number): Promise<void> {
+  const [u] = await conn.query<mysql.ResultSetHeader>(UNIT_INSERT_SQL, [ctx.productId, ctx.lotId, `RAW-${process.pid}-${++rawSerial}`])
+  const [r] = await conn.query<mysql.ResultSetHeader>(RUN_INSERT_SQL, runInsertValues(runRowFor(p, ctx, u.insertId, stationId)))
+  const agg = { lotId: ctx.lotId, stationId, step: p.run.step, attempt: 1, startedAt: new Date(p.run.startedAt) }
+  const m = measurementsInsert(r.insertId, { ...agg, firstAttempt: true }, p.judged)
+  await conn.query(m.sql, m.values)
+  const us = unitStepUpsert(u.insertId, p.run.step, 1, p.verdict, r.insertId)
+  await conn.query(us.sql, us.values)
+  const st = stepStatsStatement(agg, p.verdict, null)
+  await conn.query(st.sql, st.values)
+  const ps = paramStatsStatement(agg, p.judged)
+  if (ps) await conn.query(ps.sql, ps.values)
+}
+
+/** 32 workers, each writing `perTx` runs per transaction, for `seconds`. */
 async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds: number): Promise<number> {
   let next = 0
   let runs = 0
-  const attempts = ctx.attempts
   const started = Date.now()
   const until = started + seconds * 1000
   const worker = async (w: number) => {
     const conn = await ctx.pool.getConnection()
+    await conn.query("SET SESSION tx_isolation = 'READ-COMMITTED'")
     try {
       while (Date.now() < until) {
-        const chunk: Prepared[] = []
-        for (let k = 0; k < perTx; k++) chunk.push(bodies[next++ % bodies.length]!)
         const stationId = ctx.stationIds[w % ctx.stationIds.length]!
-        const unitId = ctx.unitIds[w]!
         await conn.beginTransaction()
-        const runValues = chunk.flatMap((p) => runRow(p, ctx, unitId, stationId, ++attempts[w]))
-        const [res] = await conn.query<mysql.ResultSetHeader>(`INSERT INTO test_runs ${RUN_COLUMNS} VALUES ${chunk.map(() => RUN_TUPLE).join(', ')}`, runValues)
-        // a multi-row INSERT gets consecutive ids from the first one (InnoDB auto-increment lock mode 1)
-        const ms = chunk.flatMap((p, k) => measurementRows(p, res.insertId + k, ctx, stationId, attempts[w] === 1))
-        await conn.query(`INSERT INTO measurements ${M_COLUMNS} VALUES ${chunk.flatMap((p) => p.judged.map(() => M_TUPLE)).join(', ')}`, ms)
+        for (let k = 0; k < perTx; k++) await rawRun(conn, ctx, bodies[next++ % bodies.length]!, stationId)
         await conn.commit()
-        runs += chunk.length
+        runs += perTx
       }
     } finally {
       conn.release()
@@ -248,12 +249,7 @@ async function main() {
       tokens.push(t.token)
       stationIds.push(id!)
     }
-    const unitIds: number[] = []
-    for (let w = 0; w < CONNECTIONS; w++) {
-      const [id] = await knex('units').insert({ product_id: product.id, lot_id: lotId, serial: `RAW-${w}` })
-      unitIds.push(id!)
-    }
-    const ctx: RawCtx = { pool, lotId: lotId!, stationIds, revisionId: revision.id, unitIds, attempts: new Array(CONNECTIONS).fill(0) }
+    const ctx: RawCtx = { pool, lotId: lotId!, productId: product.id, stationIds, revisionId: revision.id }
 
     say(`generating ${SINGLE_BODIES} single-run bodies and ${BATCH_RUNS} batch runs (${MEASUREMENTS} measurements each)…`)
     const single = makeBodies(SINGLE_BODIES, 1, product, revision, 'S')
@@ -287,7 +283,7 @@ async function main() {
     const q1 = await questions(pool)
     const runsPerSec = s['2xx'] / s.duration
     say(`  ${s['2xx']} runs stored, ${round((q1 - q0) / Math.max(1, s['2xx']))} statements per run (all clients of the database), server busy ${Math.round((100 * (c1 - c0)) / s.duration)}% of one core`)
-    say(`raw: ${CONNECTIONS} connections, one run + ${MEASUREMENTS} measurements per transaction, for ${RAW_SECONDS} s…`)
+    say(`raw: ${CONNECTIONS} connections, one run's rows (unit, run, ${MEASUREMENTS}+ measurements, step row, aggregates) per transaction, for ${RAW_SECONDS} s…`)
     const rawSingle = await rawInsert(ctx, single, 1, RAW_SECONDS)
     process.stdout.write(JSON.stringify({
       endpoint: 'runs', runsPerSec: round(runsPerSec), p50Ms: s.latency.p50, p99Ms: s.latency.p99, errors: s.errors + s.timeouts,
@@ -306,7 +302,7 @@ async function main() {
     })
     const batchPerSec = stored / b.duration
     say(`  ${stored} runs stored in ${b['2xx']} requests, ${refused} runs refused inside batches`)
-    say(`raw: ${CONNECTIONS} connections, ${BATCH} runs per transaction with multi-row inserts, for ${RAW_SECONDS} s…`)
+    say(`raw: ${CONNECTIONS} connections, ${BATCH} runs' rows per transaction, for ${RAW_SECONDS} s…`)
     const rawBatch = await rawInsert(ctx, batchRuns, BATCH, RAW_SECONDS)
     process.stdout.write(JSON.stringify({
       // non2xx counts refused requests and refused runs inside 200 batch answers alike

@@ -2,7 +2,7 @@ import type { NitroErrorHandler } from 'nitropack'
 import { getRequestURL, setResponseHeader, setResponseStatus, send } from 'h3'
 import { problemTitle } from './utils/problem'
 
-const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ER_CON_COUNT_ERROR', 'ETIMEDOUT', 'ER_LOCK_WAIT_TIMEOUT'])
+const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ER_CON_COUNT_ERROR', 'ETIMEDOUT', 'ER_LOCK_WAIT_TIMEOUT', 'ER_LOCK_DEADLOCK'])
 
 function classify(error: any): { status: number; detail: string; data: Record<string, unknown> } {
   const cause = error?.cause ?? error

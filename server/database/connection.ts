@@ -17,7 +17,8 @@ export function createKnex(conn: DbConnection, pool = { min: 0, max: 20 }): Knex
     pool: {
       ...pool,
       afterCreate: (c: any, done: (err: Error | null, c: unknown) => void) => {
-        c.query("SET time_zone = '+00:00'", (err: Error | null) => done(err, c))
+        // READ COMMITTED: no gap locks, so concurrent first attempts of new units do not deadlock
+        c.query("SET time_zone = '+00:00', SESSION tx_isolation = 'READ-COMMITTED'", (err: Error | null) => done(err, c))
       },
     },
     acquireConnectionTimeout: 10_000,

@@ -44,11 +44,24 @@ export async function authenticateStation(event: H3Event): Promise<StationPrinci
   if (!m || !tokenLooksValid(m[1]!)) throw problem(401, 'The Authorization header must be "Bearer <station token>".')
   const token = m[1]!
   const hash = hashToken(token)
+  const cached = tokenCache.get(hash)
+  if (cached && Date.now() - cached.at < TOKEN_CACHE_MS) return cached.principal
   const candidates = await findActiveTokensByHint(useDb(), tokenHint(token))
   const hit = candidates.find((c) => hashesEqual(c.tokenHash, hash))
   if (!hit) throw problem(401, 'The station token is unknown or has been revoked.')
   noteTokenUse(hit.tokenId)
-  return { id: hit.stationId, name: hit.stationName, tokenId: hit.tokenId }
+  const principal = { id: hit.stationId, name: hit.stationName, tokenId: hit.tokenId }
+  tokenCache.set(hash, { at: Date.now(), principal })
+  return principal
+}
+
+// Stations post several runs a second; a verified token is trusted for a few seconds.
+// Rotation and revocation in this process clear it at once.
+const TOKEN_CACHE_MS = 5000
+const tokenCache = new Map<string, { at: number; principal: StationPrincipal }>()
+
+export function forgetStationTokens(): void {
+  tokenCache.clear()
 }
 
 const tokenTouched = new Map<number, number>()

@@ -7,7 +7,7 @@ let instance: Knex | undefined
 export function useDb(): Knex {
   if (!instance) {
     const { db } = useRuntimeConfig()
-    instance = createKnex({ host: db.host, port: Number(db.port), user: db.user, password: db.password, database: db.database }, { min: 0, max: 30 })
+    instance = createKnex({ host: db.host, port: Number(db.port), user: db.user, password: db.password, database: db.database }, { min: 0, max: 48 })
   }
   return instance
 }

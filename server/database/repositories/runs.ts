@@ -14,27 +14,57 @@ export async function findRunHashByUuid(db: Knex, uuid: string): Promise<{ id: n
   return r ? { id: Number(r.id), bodyHash: r.body_hash } : undefined
 }
 
-export async function insertRun(trx: Knex, r: RunRow): Promise<number> {
-  const [id] = await trx('test_runs').insert({
-    uuid: r.uuid, body_hash: r.bodyHash, unit_id: r.unitId, lot_id: r.lotId, station_id: r.stationId, revision_id: r.revisionId,
-    step: r.step, attempt: r.attempt, started_at: r.startedAt, finished_at: r.finishedAt, operator: r.operator,
-    software_sequence: r.softwareSequence, software_version: r.softwareVersion, temperature_c: r.temperatureC, supply_v: r.supplyV,
-    station_verdict: r.stationVerdict, server_verdict: r.serverVerdict, verdict_disagrees: r.verdictDisagrees,
-    missing_required: r.missingRequired.length ? JSON.stringify(r.missingRequired) : null,
-    calibration_lapsed: r.calibrationLapsed, measurement_issue: r.measurementIssue,
-    reference: r.reference ? JSON.stringify(r.reference) : null,
-  })
-  return Number(id)
+export const RUN_INSERT_SQL = `INSERT INTO test_runs (uuid, body_hash, unit_id, lot_id, station_id, revision_id, step, attempt, started_at, finished_at,
+  operator, software_sequence, software_version, temperature_c, supply_v, station_verdict, server_verdict, verdict_disagrees, missing_required,
+  calibration_lapsed, measurement_issue, reference) VALUES (${new Array(22).fill('?').join(', ')})`
+
+export function runInsertValues(r: RunRow): Knex.RawBinding[] {
+  return [r.uuid, r.bodyHash, r.unitId, r.lotId, r.stationId, r.revisionId, r.step, r.attempt, r.startedAt, r.finishedAt, r.operator,
+    r.softwareSequence, r.softwareVersion, r.temperatureC, r.supplyV, r.stationVerdict, r.serverVerdict, r.verdictDisagrees,
+    r.missingRequired.length ? JSON.stringify(r.missingRequired) : null, r.calibrationLapsed, r.measurementIssue,
+    r.reference ? JSON.stringify(r.reference) : null]
 }
 
-export async function insertMeasurements(trx: Knex, runId: number, ctx: { lotId: number; stationId: number; step: string; firstAttempt: boolean; startedAt: Date }, ms: JudgedMeasurement[]): Promise<void> {
+// Hot path: plain SQL with placeholders rather than the query builder, which costs more CPU than the insert itself.
+export async function insertRun(trx: Knex, r: RunRow): Promise<number> {
+  const [res] = await trx.raw(RUN_INSERT_SQL, runInsertValues(r))
+  return Number(res.insertId)
+}
+
+export const UNIT_INSERT_SQL = 'INSERT IGNORE INTO units (product_id, lot_id, serial) VALUES (?, ?, ?)'
+
+/** The unit's attempt count and latest result at a step; the first result is kept from the first insert. */
+export function unitStepUpsert(unitId: number, step: string, attempt: number, verdict: 'pass' | 'fail', runId: number): { sql: string; values: Knex.RawBinding[] } {
+  return {
+    sql: `INSERT INTO unit_steps (unit_id, step, attempts, first_verdict, latest_verdict, latest_run_id) VALUES (?, ?, ?, ?, ?, ?)
+      ON DUPLICATE KEY UPDATE attempts = VALUES(attempts), latest_verdict = VALUES(latest_verdict), latest_run_id = VALUES(latest_run_id)`,
+    values: [unitId, step, attempt, verdict, verdict, runId],
+  }
+}
+
+export type MeasurementContext = { lotId: number; stationId: number; step: string; firstAttempt: boolean; startedAt: Date }
+
+const M_TUPLE = `(${new Array(20).fill('?').join(', ')})`
+
+/** One multi-row INSERT for a run's measurements, with the limits applied copied beside each value. */
+export function measurementsInsert(runId: number, ctx: MeasurementContext, ms: JudgedMeasurement[]): { sql: string; values: Knex.RawBinding[] } {
+  const values: Knex.RawBinding[] = []
+  for (const m of ms) {
+    values.push(runId, ctx.lotId, ctx.stationId, ctx.step, ctx.firstAttempt, ctx.startedAt, m.name, m.qualifier, m.value, m.unit, m.uncertainty,
+      m.limit?.lsl ?? null, m.limit?.usl ?? null, m.limit?.target ?? null, m.limit?.rule ?? null, m.limit?.guardBand ?? null,
+      m.verdict, m.zone, m.derived, m.excessDb)
+  }
+  return {
+    sql: `INSERT INTO measurements (run_id, lot_id, station_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
+      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db) VALUES ${ms.map(() => M_TUPLE).join(', ')}`,
+    values,
+  }
+}
+
+export async function insertMeasurements(trx: Knex, runId: number, ctx: MeasurementContext, ms: JudgedMeasurement[]): Promise<void> {
   if (!ms.length) return
-  await trx('measurements').insert(ms.map((m) => ({
-    run_id: runId, lot_id: ctx.lotId, station_id: ctx.stationId, step: ctx.step, first_attempt: ctx.firstAttempt, started_at: ctx.startedAt,
-    name: m.name, qualifier: m.qualifier, value: m.value, unit: m.unit, uncertainty: m.uncertainty,
-    lsl: m.limit?.lsl ?? null, usl: m.limit?.usl ?? null, target: m.limit?.target ?? null, rule: m.limit?.rule ?? null,
-    guard_band: m.limit?.guardBand ?? null, verdict: m.verdict, zone: m.zone, derived: m.derived, excess_db: m.excessDb,
-  })))
+  const st = measurementsInsert(runId, ctx, ms)
+  await trx.raw(st.sql, st.values)
 }
 
 export async function insertTraces(trx: Knex, runId: number, traces: { name: string; points: [number, number][] }[]): Promise<void> {

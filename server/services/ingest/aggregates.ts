@@ -5,16 +5,23 @@ import type { JudgedMeasurement } from './judge-run'
 
 export type AggregateContext = { lotId: number; stationId: number; step: string; attempt: number; startedAt: Date }
 
+export type Statement = { sql: string; values: Knex.RawBinding[] }
+
 /** Yield counters: units and first-pass on attempt 1; the latest verdict moves with every retest. */
-export async function updateStepStats(trx: Knex, ctx: AggregateContext, verdict: 'pass' | 'fail', previousLatest: 'pass' | 'fail' | null): Promise<void> {
+export function stepStatsStatement(ctx: AggregateContext, verdict: 'pass' | 'fail', previousLatest: 'pass' | 'fail' | null): Statement {
   const pass = verdict === 'pass' ? 1 : 0
   const first = ctx.attempt === 1
   const latestDelta = first ? pass : pass - (previousLatest === 'pass' ? 1 : 0)
-  await trx.raw(
-    `INSERT INTO lot_step_stats (lot_id, step, station_id, runs, units, first_pass, latest_pass) VALUES (?, ?, ?, 1, ?, ?, ?)
+  return {
+    sql: `INSERT INTO lot_step_stats (lot_id, step, station_id, runs, units, first_pass, latest_pass) VALUES (?, ?, ?, 1, ?, ?, ?)
      ON DUPLICATE KEY UPDATE runs = runs + 1, units = units + VALUES(units), first_pass = first_pass + VALUES(first_pass), latest_pass = latest_pass + VALUES(latest_pass)`,
-    [ctx.lotId, ctx.step, ctx.stationId, first ? 1 : 0, first ? pass : 0, latestDelta],
-  )
+    values: [ctx.lotId, ctx.step, ctx.stationId, first ? 1 : 0, first ? pass : 0, latestDelta],
+  }
+}
+
+export async function updateStepStats(trx: Knex, ctx: AggregateContext, verdict: 'pass' | 'fail', previousLatest: 'pass' | 'fail' | null): Promise<void> {
+  const st = stepStatsStatement(ctx, verdict, previousLatest)
+  await trx.raw(st.sql, st.values)
 }
 
 // MariaDB applies ON DUPLICATE KEY assignments left to right, each seeing the columns already updated,
@@ -36,8 +43,13 @@ ON DUPLICATE KEY UPDATE
 
 /** Per-parameter sums (first attempts) and failure counts (all attempts), one multi-row statement per run. */
 export async function updateParamStats(trx: Knex, ctx: AggregateContext, ms: JudgedMeasurement[]): Promise<void> {
+  const st = paramStatsStatement(ctx, ms)
+  if (st) await trx.raw(st.sql, st.values)
+}
+
+export function paramStatsStatement(ctx: AggregateContext, ms: JudgedMeasurement[]): Statement | undefined {
   const rows = ms.filter((m) => Number.isFinite(m.value))
-  if (!rows.length) return
+  if (!rows.length) return undefined
   const first = ctx.attempt === 1 ? 1 : 0
   const values: Knex.RawBinding[] = []
   for (const m of rows) {
@@ -45,12 +57,12 @@ export async function updateParamStats(trx: Knex, ctx: AggregateContext, ms: Jud
       first ? m.value : null, first ? ctx.startedAt : null, first && m.outOfSpec ? 1 : 0, m.verdict === 'fail' ? 1 : 0)
   }
   const tuple = '(?, ?, ?, ?, ?, ?, ?, ?, 0, 0, ?, ?, 0, 0, ?, ?, 0, ?, ?)'
-  await trx.raw(
-    `INSERT INTO lot_param_stats (lot_id, step, name, qualifier, station_id, unit, n, shift, sum_d, sumsq_d, min_value, max_value,
+  return {
+    sql: `INSERT INTO lot_param_stats (lot_id, step, name, qualifier, station_id, unit, n, shift, sum_d, sumsq_d, min_value, max_value,
        mr_sum, mr_n, last_value, last_started_at, mr_stale, out_of_spec, fail_all)
      VALUES ${rows.map(() => tuple).join(', ')}${PARAM_UPSERT_TAIL}`,
     values,
-  )
+  }
 }
 
 /** Recomputes the moving-range terms of one station row from the measurements, after a late arrival. */

@@ -1,7 +1,7 @@
 import type { Knex } from 'knex'
 import type { StationRun } from '../../utils/run-validator'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
-import { findRunHashByUuid, insertMeasurements, insertRun, insertTraces, loadRunsWithMeasurements } from '../../database/repositories/runs'
+import { findRunHashByUuid, insertMeasurements, insertRun, insertTraces, loadRunsWithMeasurements, UNIT_INSERT_SQL, unitStepUpsert } from '../../database/repositories/runs'
 import { calibrationCache, lotCache, productCache, specCache } from './caches'
 import { bodyHash } from './canonical'
 import { judgeRun, RunRejected } from './judge-run'
@@ -49,16 +49,15 @@ async function lotFor(db: Knex, code: string, product: ProductInfo): Promise<num
   return lot.id
 }
 
-async function unitFor(trx: Knex, product: ProductInfo, lotId: number, run: StationRun): Promise<number> {
-  let unit = await trx('units').where({ product_id: product.id, serial: run.serial }).first('id', 'lot_id')
-  if (!unit) {
-    await trx.raw('INSERT IGNORE INTO units (product_id, lot_id, serial) VALUES (?, ?, ?)', [product.id, lotId, run.serial])
-    unit = await trx('units').where({ product_id: product.id, serial: run.serial }).first('id', 'lot_id')
-  }
+/** The unit's id, creating it on first sight; either way the unit's row stays locked, so its attempts number in order. */
+async function unitFor(trx: Knex, product: ProductInfo, lotId: number, run: StationRun): Promise<{ id: number; isNew: boolean }> {
+  const [r] = await trx.raw(UNIT_INSERT_SQL, [product.id, lotId, run.serial])
+  if (r.affectedRows === 1 && r.insertId) return { id: Number(r.insertId), isNew: true }
+  const unit = await trx('units').where({ product_id: product.id, serial: run.serial }).forUpdate().first('id', 'lot_id')
   if (unit.lot_id !== lotId) {
     throw new RunRejected(`Serial ${run.serial} is recorded in another lot.`, [{ pointer: '/lot', message: 'the serial belongs to another lot' }])
   }
-  return unit.id
+  return { id: unit.id, isNew: false }
 }
 
 export async function loadRunView(db: Knex, runId: number): Promise<RunView> {
@@ -81,17 +80,8 @@ function checkTimes(run: StationRun, now: Date): { startedAt: Date; finishedAt: 
   return { startedAt, finishedAt }
 }
 
-const RETRYABLE = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT'])
-
-/**
- * Stores one validated run: judged against the revision in force at its start, with the unit, attempt,
- * measurements, traces and lot aggregates written in one transaction. Same id and body again → 200.
- */
-export async function ingestRun(db: Knex, station: StationRef, run: StationRun, now = new Date()): Promise<IngestOutcome> {
-  const hash = bodyHash(run)
-  const earlier = await replay(db, run.id, hash)
-  if (earlier) return earlier
-
+/** Everything decided before the transaction: times, product, revision in force, judgement, lot, calibration. */
+async function prepare(db: Knex, station: StationRef, run: StationRun, now: Date) {
   const { startedAt, finishedAt } = checkTimes(run, now)
   const product = await productFor(db, run.partNumber)
   if (!product) throw new RunRejected(`Unknown part number ${run.partNumber}.`, [{ pointer: '/partNumber', message: 'unknown part number' }])
@@ -101,12 +91,34 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
   const lotId = await lotFor(db, run.lot, product)
   const due = await earliestCalibration(db, station.id)
   const calibrationLapsed = due !== null && due.getTime() < finishedAt.getTime()
+  return { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed }
+}
+
+const RETRYABLE = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT'])
+
+/**
+ * Stores one validated run: judged against the revision in force at its start, with the unit, attempt,
+ * measurements, traces and lot aggregates written in one transaction. Same id and body again → 200.
+ */
+export async function ingestRun(db: Knex, station: StationRef, run: StationRun, now = new Date()): Promise<IngestOutcome> {
+  const hash = bodyHash(run)
+  // a replay is found by the unique id when the insert collides; the first post pays no extra look-up
+  let ctx: Awaited<ReturnType<typeof prepare>>
+  try {
+    ctx = await prepare(db, station, run, now)
+  } catch (e) {
+    // a stored run posted again is answered as stored, even if it would no longer be accepted today
+    if (e instanceof RunRejected) { const again = await replay(db, run.id, hash); if (again) return again }
+    throw e
+  }
+  const { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed } = ctx
 
   for (let tries = 0; ; tries++) {
     try {
       const attempt = await db.transaction(async (trx) => {
-        const unitId = await unitFor(trx, product, lotId, run)
-        const prev = await trx('unit_steps').where({ unit_id: unitId, step: run.step }).forUpdate().first('attempts', 'latest_verdict')
+        const unit = await unitFor(trx, product, lotId, run)
+        const unitId = unit.id
+        const prev = unit.isNew ? undefined : await trx('unit_steps').where({ unit_id: unitId, step: run.step }).first('attempts', 'latest_verdict')
         const attempt = (prev?.attempts ?? 0) + 1
         const runId = await insertRun(trx, {
           uuid: run.id, bodyHash: hash, unitId, lotId, stationId: station.id, revisionId: revision.id, step: run.step, attempt,
@@ -119,11 +131,8 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
         const ctx = { lotId, stationId: station.id, step: run.step, attempt, startedAt }
         await insertMeasurements(trx, runId, { ...ctx, firstAttempt: attempt === 1 }, judged.measurements)
         await insertTraces(trx, runId, run.traces ?? [])
-        if (prev) {
-          await trx('unit_steps').where({ unit_id: unitId, step: run.step }).update({ attempts: attempt, latest_verdict: judged.verdict, latest_run_id: runId })
-        } else {
-          await trx('unit_steps').insert({ unit_id: unitId, step: run.step, attempts: 1, first_verdict: judged.verdict, latest_verdict: judged.verdict, latest_run_id: runId })
-        }
+        const us = unitStepUpsert(unitId, run.step, attempt, judged.verdict, runId)
+        await trx.raw(us.sql, us.values)
         await updateStepStats(trx, ctx, judged.verdict, prev?.latest_verdict ?? null)
         await updateParamStats(trx, ctx, judged.measurements)
         return attempt
@@ -143,7 +152,7 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
       }
     } catch (e: any) {
       if (e?.code === 'ER_DUP_ENTRY') {
-        // a concurrent post of the same id, or of the same unit's first attempt at this step
+        // the same id posted before (a replay), or a concurrent post of the same unit's attempt
         const again = await replay(db, run.id, hash)
         if (again) return again
         if (tries < 3) continue
