@@ -1,0 +1,30 @@
+import type { Browser } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { baseUrl } from '../support/http'
+import { launchBrowser, shot, signInPage } from '../support/browser'
+
+let browser: Browser
+
+beforeAll(async () => { browser = await launchBrowser() })
+afterAll(async () => { await browser?.close() })
+
+describe('lot dashboard in the browser', () => {
+  it('renders the capability table with Cpk and bands, and the charts of the selected parameter', async () => {
+    const page = await signInPage(browser, baseUrl(), 'engineer@tercet.test', { width: 1440, height: 900 })
+    const errors: string[] = []
+    page.on('pageerror', (e) => errors.push(e.message))
+    await page.goto(`${baseUrl()}/lots/T3-2611-A`)
+    const table = page.getByRole('table', { name: 'Parameters' })
+    await expect.poll(() => table.locator('tbody tr').count(), { timeout: 20_000 }).toBeGreaterThan(10)
+    const header = await table.locator('thead').textContent()
+    expect(header).toContain('Cpk')
+    const body = (await table.locator('tbody').textContent()) ?? ''
+    expect(body).toMatch(/CAPABLE|MARGINAL|NOT CAPABLE/)
+    await table.locator('tbody tr').first().click()
+    await expect.poll(() => page.locator('.apexcharts-canvas').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(3)
+    await page.waitForTimeout(500)
+    await shot(page, 'lot-dashboard-T3-2611-A')
+    expect(errors).toEqual([])
+    await page.context().close()
+  })
+})
