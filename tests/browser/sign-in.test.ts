@@ -12,7 +12,7 @@ const LANDINGS = [
   { email: 'admin@tercet.test', path: '/admin/users', heading: 'Users' },
   { email: 'quality@tercet.test', path: '/lots', heading: 'Lots' },
   { email: 'engineer@tercet.test', path: '/lots', heading: 'Lots' },
-  { email: 'operator@tercet.test', path: '/floor', heading: null },
+  { email: 'operator@tercet.test', path: '/floor', heading: 'Floor' },
   { email: 'buyer@quillfeather.test', path: '/portal', heading: 'Your units' },
 ]
 

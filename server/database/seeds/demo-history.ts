@@ -48,6 +48,8 @@ export async function seedDemoHistory(db: Knex, now = new Date()): Promise<numbe
     }
   }
   await seedDemoShipments(db, now)
+  // seeded history is old: a station was last seen when it finished its last seeded run, not when the seed ran
+  await db.raw('UPDATE stations s SET last_seen_at = (SELECT MAX(r.finished_at) FROM test_runs r WHERE r.station_id = s.id)')
   return count
 }
 

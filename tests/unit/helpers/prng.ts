@@ -1,16 +1,7 @@
 // Deterministic pseudo-random numbers for reproducible cross-checks.
 
-/** mulberry32: 32-bit state, uniform in [0, 1) (T. Ettinger's public-domain generator). */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
+// The same generator the demo fixtures use.
+export { mulberry32 } from '../../../fixtures/run-generator'
 
 /** Standard normal draws by the Box–Muller transform. */
 export function gaussian(uniform: () => number): () => number {
