@@ -17,6 +17,13 @@ const tokenFile = resolve(root, `.data/${testDb}-station-tokens.json`)
 const db = await prepareDatabase(env, testDb, { recreate: true, seed: true, tokenFile })
 buildIfChanged()
 
+// the whole suite also type-checks app/, server/ and shared/ (skipped for a run of named files, and when building elsewhere)
+if (process.argv.length <= 2 && !process.env.TERCET_BUILD_DIR) {
+  log('type-checking (nuxt typecheck)…')
+  const tc = spawnSync(resolve(root, 'node_modules/.bin/nuxt'), ['typecheck'], { cwd: root, stdio: 'inherit' })
+  if (tc.status !== 0) { process.stderr.write('\n[tercet] type errors: see above\n'); process.exit(tc.status ?? 1) }
+}
+
 log('running the test suite…')
 const report = resolve(root, `.data/${testDb}-vitest-report.json`)
 rmSync(report, { force: true })

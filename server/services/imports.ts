@@ -84,7 +84,7 @@ export async function spoolUpload(source: Readable, format: ImportFormat): Promi
   } catch (e) {
     source.resume()
     // the file may not be open yet; removing it before the stream closes would leave it behind
-    const closed = new Promise((r) => out.once('close', r))
+    const closed = new Promise<void>((r) => out.once('close', () => r()))
     out.destroy()
     await closed
     await unlink(path).catch(() => {})
