@@ -55,7 +55,7 @@ describe('capabilityIndices', () => {
   })
 
   it('piston rings: Cp 1.703 and Cpk 1.663 from R̄/d2 with spec 74.000 ± 0.05', () => {
-    // Published qcc phase-I values x̿ = 74.00118 and R̄ = 0.02276 confirm the transcription first.
+    // Published qcc phase-I values x̿ = 74.00118 and R̄ = 0.02276 confirm the typed-in data first.
     const means = PISTON_PHASE1.map((g) => ssMean(g))
     const ranges = PISTON_PHASE1.map((g) => Math.max(...g) - Math.min(...g))
     const grandMean = ssMean(means)

@@ -13,7 +13,7 @@ import { mulberry32, normalSample } from '../helpers/prng'
 
 // NIST Statistical Reference Datasets, univariate summary statistics (https://www.itl.nist.gov/div898/strd/univ/).
 // Data transcribed from public copies of Michelso.dat, Mavro.dat and Lew.dat; matching the certified values below
-// to 12+ digits is what confirms the transcription.
+// to 12+ digits is what confirms the typed-in values.
 const MICHELSON = [
   299.85, 299.74, 299.9, 300.07, 299.93, 299.85, 299.95, 299.98, 299.98, 299.88, 300.0, 299.98, 299.93, 299.65, 299.76,
   299.81, 300.0, 300.0, 299.96, 299.96, 299.96, 299.94, 299.96, 299.94, 299.88, 299.8, 299.85, 299.88, 299.9, 299.84,
