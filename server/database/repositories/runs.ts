@@ -25,6 +25,12 @@ export function runInsertValues(r: RunRow): Knex.RawBinding[] {
     r.reference ? JSON.stringify(r.reference) : null]
 }
 
+const RUN_TUPLE = `(${new Array(22).fill('?').join(', ')})`
+
+export function runsInsertMany(rows: RunRow[]): { sql: string; values: Knex.RawBinding[] } {
+  return { sql: RUN_INSERT_SQL.slice(0, RUN_INSERT_SQL.lastIndexOf('VALUES') + 7) + rows.map(() => RUN_TUPLE).join(', '), values: rows.flatMap(runInsertValues) }
+}
+
 // Hot path: plain SQL with placeholders rather than the query builder, which costs more CPU than the insert itself.
 export async function insertRun(trx: Knex, r: RunRow): Promise<number> {
   const [res] = await trx.raw(RUN_INSERT_SQL, runInsertValues(r))
@@ -39,6 +45,15 @@ export function unitStepUpsert(unitId: number, step: string, attempt: number, ve
     sql: `INSERT INTO unit_steps (unit_id, step, attempts, first_verdict, latest_verdict, latest_run_id) VALUES (?, ?, ?, ?, ?, ?)
       ON DUPLICATE KEY UPDATE attempts = VALUES(attempts), latest_verdict = VALUES(latest_verdict), latest_run_id = VALUES(latest_run_id)`,
     values: [unitId, step, attempt, verdict, verdict, runId],
+  }
+}
+
+/** Several unit steps in one upsert; for a unit step listed twice the later row wins, so list them by attempt. */
+export function unitStepsUpsertMany(rows: { unitId: number; step: string; attempt: number; verdict: 'pass' | 'fail'; runId: number }[]): { sql: string; values: Knex.RawBinding[] } {
+  return {
+    sql: `INSERT INTO unit_steps (unit_id, step, attempts, first_verdict, latest_verdict, latest_run_id) VALUES ${rows.map(() => '(?, ?, ?, ?, ?, ?)').join(', ')}
+      ON DUPLICATE KEY UPDATE attempts = VALUES(attempts), latest_verdict = VALUES(latest_verdict), latest_run_id = VALUES(latest_run_id)`,
+    values: rows.flatMap((r) => [r.unitId, r.step, r.attempt, r.verdict, r.verdict, r.runId]),
   }
 }
 
@@ -59,6 +74,13 @@ export function measurementsInsert(runId: number, ctx: MeasurementContext, ms: J
       lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db) VALUES ${ms.map(() => M_TUPLE).join(', ')}`,
     values,
   }
+}
+
+/** Measurements of several runs in one INSERT, in the given order. */
+export function measurementsInsertMany(items: { runId: number; ctx: MeasurementContext; ms: JudgedMeasurement[] }[]): { sql: string; values: Knex.RawBinding[] } {
+  const parts = items.filter((x) => x.ms.length).map((x) => measurementsInsert(x.runId, x.ctx, x.ms))
+  const head = parts[0]!.sql.slice(0, parts[0]!.sql.indexOf(' VALUES ') + 8)
+  return { sql: head + parts.map((p) => p.sql.slice(head.length)).join(', '), values: parts.flatMap((p) => p.values) }
 }
 
 export async function insertMeasurements(trx: Knex, runId: number, ctx: MeasurementContext, ms: JudgedMeasurement[]): Promise<void> {

@@ -7,16 +7,26 @@ export type AggregateContext = { lotId: number; stationId: number; step: string;
 
 export type Statement = { sql: string; values: Knex.RawBinding[] }
 
+const STEP_STATS_HEAD = 'INSERT INTO lot_step_stats (lot_id, step, station_id, runs, units, first_pass, latest_pass) VALUES '
+const STEP_STATS_TUPLE = '(?, ?, ?, 1, ?, ?, ?)'
+const STEP_STATS_TAIL = `
+     ON DUPLICATE KEY UPDATE runs = runs + 1, units = units + VALUES(units), first_pass = first_pass + VALUES(first_pass), latest_pass = latest_pass + VALUES(latest_pass)`
+
 /** Yield counters: units and first-pass on attempt 1; the latest verdict moves with every retest. */
-export function stepStatsStatement(ctx: AggregateContext, verdict: 'pass' | 'fail', previousLatest: 'pass' | 'fail' | null): Statement {
+export function stepStatsValues(ctx: AggregateContext, verdict: 'pass' | 'fail', previousLatest: 'pass' | 'fail' | null): Knex.RawBinding[] {
   const pass = verdict === 'pass' ? 1 : 0
   const first = ctx.attempt === 1
   const latestDelta = first ? pass : pass - (previousLatest === 'pass' ? 1 : 0)
-  return {
-    sql: `INSERT INTO lot_step_stats (lot_id, step, station_id, runs, units, first_pass, latest_pass) VALUES (?, ?, ?, 1, ?, ?, ?)
-     ON DUPLICATE KEY UPDATE runs = runs + 1, units = units + VALUES(units), first_pass = first_pass + VALUES(first_pass), latest_pass = latest_pass + VALUES(latest_pass)`,
-    values: [ctx.lotId, ctx.step, ctx.stationId, first ? 1 : 0, first ? pass : 0, latestDelta],
-  }
+  return [ctx.lotId, ctx.step, ctx.stationId, first ? 1 : 0, first ? pass : 0, latestDelta]
+}
+
+export function stepStatsStatement(ctx: AggregateContext, verdict: 'pass' | 'fail', previousLatest: 'pass' | 'fail' | null): Statement {
+  return stepStatsStatementMany([stepStatsValues(ctx, verdict, previousLatest)])
+}
+
+/** Several runs' step rows in one upsert; the rows are applied one after another, in the given order. */
+export function stepStatsStatementMany(rows: Knex.RawBinding[][]): Statement {
+  return { sql: STEP_STATS_HEAD + rows.map(() => STEP_STATS_TUPLE).join(', ') + STEP_STATS_TAIL, values: rows.flat() }
 }
 
 export async function updateStepStats(trx: Knex, ctx: AggregateContext, verdict: 'pass' | 'fail', previousLatest: 'pass' | 'fail' | null): Promise<void> {
@@ -48,20 +58,25 @@ export async function updateParamStats(trx: Knex, ctx: AggregateContext, ms: Jud
 }
 
 export function paramStatsStatement(ctx: AggregateContext, ms: JudgedMeasurement[]): Statement | undefined {
-  const rows = ms.filter((m) => Number.isFinite(m.value))
-  if (!rows.length) return undefined
+  const rows = paramStatsRows(ctx, ms)
+  return rows.length ? paramStatsStatementMany(rows) : undefined
+}
+
+export function paramStatsRows(ctx: AggregateContext, ms: JudgedMeasurement[]): Knex.RawBinding[][] {
   const first = ctx.attempt === 1 ? 1 : 0
-  const values: Knex.RawBinding[] = []
-  for (const m of rows) {
-    values.push(ctx.lotId, ctx.step, m.name, m.qualifier, ctx.stationId, m.unit, first, m.value, m.value, m.value,
-      first ? m.value : null, first ? ctx.startedAt : null, first && m.outOfSpec ? 1 : 0, m.verdict === 'fail' ? 1 : 0)
-  }
-  const tuple = '(?, ?, ?, ?, ?, ?, ?, ?, 0, 0, ?, ?, 0, 0, ?, ?, 0, ?, ?)'
+  return ms.filter((m) => Number.isFinite(m.value)).map((m) => [ctx.lotId, ctx.step, m.name, m.qualifier, ctx.stationId, m.unit, first, m.value, m.value, m.value,
+    first ? m.value : null, first ? ctx.startedAt : null, first && m.outOfSpec ? 1 : 0, m.verdict === 'fail' ? 1 : 0])
+}
+
+const PARAM_TUPLE = '(?, ?, ?, ?, ?, ?, ?, ?, 0, 0, ?, ?, 0, 0, ?, ?, 0, ?, ?)'
+
+/** Parameter rows of one or several runs in one upsert, applied row by row in the given order. */
+export function paramStatsStatementMany(rows: Knex.RawBinding[][]): Statement {
   return {
     sql: `INSERT INTO lot_param_stats (lot_id, step, name, qualifier, station_id, unit, n, shift, sum_d, sumsq_d, min_value, max_value,
        mr_sum, mr_n, last_value, last_started_at, mr_stale, out_of_spec, fail_all)
-     VALUES ${rows.map(() => tuple).join(', ')}${PARAM_UPSERT_TAIL}`,
-    values,
+     VALUES ${rows.map(() => PARAM_TUPLE).join(', ')}${PARAM_UPSERT_TAIL}`,
+    values: rows.flat(),
   }
 }
 

@@ -1,7 +1,7 @@
 import type { Knex } from 'knex'
 import type { StationRun } from '../../utils/run-validator'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
-import { findRunHashByUuid, insertMeasurements, insertRun, insertTraces, loadRunsWithMeasurements, UNIT_INSERT_SQL, unitStepUpsert } from '../../database/repositories/runs'
+import { findRunHashByUuid, insertMeasurements, insertRun, insertTraces, loadRunsWithMeasurements, UNIT_INSERT_SQL, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
 import { calibrationCache, lotCache, productCache, specCache } from './caches'
 import { bodyHash } from './canonical'
 import { judgeRun, RunRejected } from './judge-run'
@@ -65,7 +65,7 @@ export async function loadRunView(db: Knex, runId: number): Promise<RunView> {
   return runViewFromRows(hit!.run, hit!.measurements)
 }
 
-async function replay(db: Knex, uuid: string, hash: string): Promise<IngestOutcome | undefined> {
+export async function replay(db: Knex, uuid: string, hash: string): Promise<IngestOutcome | undefined> {
   const existing = await findRunHashByUuid(db, uuid)
   if (!existing) return undefined
   if (existing.bodyHash !== hash) return { status: 409, detail: `Run ${uuid} was already stored with a different body.` }
@@ -80,8 +80,10 @@ function checkTimes(run: StationRun, now: Date): { startedAt: Date; finishedAt: 
   return { startedAt, finishedAt }
 }
 
+export type Prepared = Awaited<ReturnType<typeof prepare>>
+
 /** Everything decided before the transaction: times, product, revision in force, judgement, lot, calibration. */
-async function prepare(db: Knex, station: StationRef, run: StationRun, now: Date) {
+export async function prepare(db: Knex, station: StationRef, run: StationRun, now: Date) {
   const { startedAt, finishedAt } = checkTimes(run, now)
   const product = await productFor(db, run.partNumber)
   if (!product) throw new RunRejected(`Unknown part number ${run.partNumber}.`, [{ pointer: '/partNumber', message: 'unknown part number' }])
@@ -94,6 +96,32 @@ async function prepare(db: Knex, station: StationRef, run: StationRun, now: Date
   return { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed }
 }
 
+/** The answer for a run just stored, built from what was judged rather than read back. */
+export function freshRunView(station: StationRef, run: StationRun, ctx: Prepared, attempt: number): RunView {
+  const { startedAt, finishedAt, product, revision, judged, calibrationLapsed } = ctx
+  return {
+    id: run.id, serial: run.serial, partNumber: product.partNumber, lot: run.lot, step: run.step, attempt, station: station.name,
+    startedAt: startedAt.toISOString(), finishedAt: finishedAt.toISOString(), verdict: judged.verdict,
+    stationVerdict: run.stationVerdict ?? null, verdictDisagrees: !!run.stationVerdict && run.stationVerdict !== judged.verdict,
+    incomplete: judged.missingRequired.length > 0,
+    missingRequired: judged.missingRequired.map((m) => ({ name: m.name, ...qualifierFields(m.name, m.qualifier) })),
+    calibrationLapsed, measurementIssue: judged.measurementIssue, revision: revision.revision,
+    measurements: judged.measurements.map(measurementView),
+  }
+}
+
+export function runRowFor(station: StationRef, run: StationRun, hash: string, ctx: Prepared, unitId: number, attempt: number): RunRow {
+  const { startedAt, finishedAt, revision, judged, lotId, calibrationLapsed } = ctx
+  return {
+    uuid: run.id, bodyHash: hash, unitId, lotId, stationId: station.id, revisionId: revision.id, step: run.step, attempt,
+    startedAt, finishedAt, operator: run.operator ?? null, softwareSequence: run.software?.sequence ?? null,
+    softwareVersion: run.software?.version ?? null, temperatureC: run.conditions?.temperatureC ?? null,
+    supplyV: run.conditions?.supplyV ?? null, stationVerdict: run.stationVerdict ?? null, serverVerdict: judged.verdict,
+    verdictDisagrees: !!run.stationVerdict && run.stationVerdict !== judged.verdict, missingRequired: judged.missingRequired,
+    calibrationLapsed, measurementIssue: judged.measurementIssue, reference: run.reference ?? null,
+  }
+}
+
 const RETRYABLE = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT'])
 
 /**
@@ -103,7 +131,7 @@ const RETRYABLE = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT'])
 export async function ingestRun(db: Knex, station: StationRef, run: StationRun, now = new Date()): Promise<IngestOutcome> {
   const hash = bodyHash(run)
   // a replay is found by the unique id when the insert collides; the first post pays no extra look-up
-  let ctx: Awaited<ReturnType<typeof prepare>>
+  let ctx: Prepared
   try {
     ctx = await prepare(db, station, run, now)
   } catch (e) {
@@ -111,7 +139,7 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
     if (e instanceof RunRejected) { const again = await replay(db, run.id, hash); if (again) return again }
     throw e
   }
-  const { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed } = ctx
+  const { startedAt, product, judged, lotId } = ctx
 
   for (let tries = 0; ; tries++) {
     try {
@@ -120,36 +148,18 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
         const unitId = unit.id
         const prev = unit.isNew ? undefined : await trx('unit_steps').where({ unit_id: unitId, step: run.step }).first('attempts', 'latest_verdict')
         const attempt = (prev?.attempts ?? 0) + 1
-        const runId = await insertRun(trx, {
-          uuid: run.id, bodyHash: hash, unitId, lotId, stationId: station.id, revisionId: revision.id, step: run.step, attempt,
-          startedAt, finishedAt, operator: run.operator ?? null, softwareSequence: run.software?.sequence ?? null,
-          softwareVersion: run.software?.version ?? null, temperatureC: run.conditions?.temperatureC ?? null,
-          supplyV: run.conditions?.supplyV ?? null, stationVerdict: run.stationVerdict ?? null, serverVerdict: judged.verdict,
-          verdictDisagrees: !!run.stationVerdict && run.stationVerdict !== judged.verdict, missingRequired: judged.missingRequired,
-          calibrationLapsed, measurementIssue: judged.measurementIssue, reference: run.reference ?? null,
-        })
-        const ctx = { lotId, stationId: station.id, step: run.step, attempt, startedAt }
-        await insertMeasurements(trx, runId, { ...ctx, firstAttempt: attempt === 1 }, judged.measurements)
+        const runId = await insertRun(trx, runRowFor(station, run, hash, ctx, unitId, attempt))
+        const agg = { lotId, stationId: station.id, step: run.step, attempt, startedAt }
+        await insertMeasurements(trx, runId, { ...agg, firstAttempt: attempt === 1 }, judged.measurements)
         await insertTraces(trx, runId, run.traces ?? [])
         const us = unitStepUpsert(unitId, run.step, attempt, judged.verdict, runId)
         await trx.raw(us.sql, us.values)
-        await updateStepStats(trx, ctx, judged.verdict, prev?.latest_verdict ?? null)
-        await updateParamStats(trx, ctx, judged.measurements)
+        await updateStepStats(trx, agg, judged.verdict, prev?.latest_verdict ?? null)
+        await updateParamStats(trx, agg, judged.measurements)
         return attempt
       })
       touchStation(db, station.id, now)
-      return {
-        status: 201,
-        run: {
-          id: run.id, serial: run.serial, partNumber: product.partNumber, lot: run.lot, step: run.step, attempt, station: station.name,
-          startedAt: startedAt.toISOString(), finishedAt: finishedAt.toISOString(), verdict: judged.verdict,
-          stationVerdict: run.stationVerdict ?? null, verdictDisagrees: !!run.stationVerdict && run.stationVerdict !== judged.verdict,
-          incomplete: judged.missingRequired.length > 0,
-          missingRequired: judged.missingRequired.map((m) => ({ name: m.name, ...qualifierFields(m.name, m.qualifier) })),
-          calibrationLapsed, measurementIssue: judged.measurementIssue, revision: revision.revision,
-          measurements: judged.measurements.map(measurementView),
-        },
-      }
+      return { status: 201, run: freshRunView(station, run, ctx, attempt) }
     } catch (e: any) {
       if (e?.code === 'ER_DUP_ENTRY') {
         // the same id posted before (a replay), or a concurrent post of the same unit's attempt
@@ -165,7 +175,7 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
 
 const lastTouch = new Map<number, number>()
 /** last_seen_at moves at most every 5 s per station, outside the run's transaction. */
-function touchStation(db: Knex, stationId: number, now: Date): void {
+export function touchStation(db: Knex, stationId: number, now: Date): void {
   const prev = lastTouch.get(stationId) ?? 0
   if (now.getTime() - prev < 5000) return
   lastTouch.set(stationId, now.getTime())
