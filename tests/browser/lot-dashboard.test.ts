@@ -28,3 +28,21 @@ describe('lot dashboard in the browser', () => {
     await page.context().close()
   })
 })
+
+describe('cross-lot views in the browser', () => {
+  it('trends and station comparison open from a shareable URL and render their tables', async () => {
+    const page = await signInPage(browser, baseUrl(), 'quality@tercet.test', { width: 1440, height: 900 })
+    const errors: string[] = []
+    page.on('pageerror', (e) => errors.push(e.message))
+    await page.goto(`${baseUrl()}/trends?part=VFW-T3-375&name=output_power&step=final`)
+    await expect.poll(() => page.locator('table tbody tr').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(2)
+    expect(await page.locator('table tbody').first().textContent()).toContain('T3-2611-A')
+    await shot(page, 'trends-T3-output-power')
+    await page.goto(`${baseUrl()}/stations/compare?part=VFW-T3-375&name=output_power&step=final`)
+    await expect.poll(() => page.locator('table tbody tr').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(2)
+    expect(await page.locator('table tbody').first().textContent()).toContain('ATE-T3-0')
+    await shot(page, 'stations-compare-T3-output-power')
+    expect(errors).toEqual([])
+    await page.context().close()
+  })
+})
