@@ -41,7 +41,7 @@ export async function startMariadb(port) {
   log(`starting MariaDB on 127.0.0.1:${port}…`)
   const child = spawn('mariadbd', ['--no-defaults', '--user=root', `--datadir=${datadir}`, '--bind-address=127.0.0.1',
     `--port=${port}`, `--socket=${socket}`, `--pid-file=${pidFile}`, `--log-error=${errLog}`, '--skip-name-resolve',
-    '--innodb-buffer-pool-size=512M', '--innodb-flush-log-at-trx-commit=2', '--max-connections=300',
+    '--innodb-buffer-pool-size=512M', '--innodb-flush-log-at-trx-commit=2', '--max-connections=300', '--thread-handling=pool-of-threads',
     '--character-set-server=utf8mb4', '--collation-server=utf8mb4_unicode_ci'],
   { detached: true, stdio: 'ignore' })
   child.unref()
