@@ -211,7 +211,7 @@ function isUnavailable(e: any): boolean {
 /** postRun, with an unexpected failure of one run reported as undefined; a lost database stops the import. */
 async function postOne(db: Knex, station: StationRef, body: unknown): Promise<PostResult | undefined> {
   try {
-    return await postRun(db, station, body)
+    return await postRun(db, station, body, '', { touchStation: false })
   } catch (e) {
     if (isUnavailable(e)) throw e
     console.error(e)

@@ -61,6 +61,21 @@ function csvRows(run: ReturnType<typeof tripleRun>): string[][] {
 
 const csv = (rows: string[][]) => rows.map((r) => r.join(',')).join('\r\n') + '\r\n'
 
+describe('imported history and station liveness', () => {
+  it('an import does not make its station look recently seen', async () => {
+    const name = `IMP-${Date.now().toString(36)}`
+    const made = await call('POST', '/api/stations', { cookie: admin, body: { name } })
+    expect(made.status).toBe(201)
+    const r = await upload(JSON.stringify(tripleRun()) + '\n', { station: name, format: 'jsonl' })
+    expect(r.status).toBe(202)
+    const job = await settled(r.body.jobId)
+    expect(job.runsCreated).toBe(1)
+    await new Promise((res) => setTimeout(res, 300))
+    const station = await db('stations').where({ name }).first('last_seen_at')
+    expect(station.last_seen_at).toBeNull()
+  })
+})
+
 describe('JSONL import', () => {
   const runs = [tripleRun(), tripleRun(), tripleRun()]
   const file = runs.map((r) => JSON.stringify(r)).join('\n') + '\n\n'

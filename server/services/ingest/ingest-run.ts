@@ -128,7 +128,10 @@ const RETRYABLE = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT'])
  * Stores one validated run: judged against the revision in force at its start, with the unit, attempt,
  * measurements, traces and lot aggregates written in one transaction. Same id and body again → 200.
  */
-export async function ingestRun(db: Knex, station: StationRef, run: StationRun, now = new Date()): Promise<IngestOutcome> {
+/** `touchStation: false` for runs that are history (imports, seeds): the station was not seen now. */
+export type IngestOptions = { touchStation?: boolean }
+
+export async function ingestRun(db: Knex, station: StationRef, run: StationRun, now = new Date(), options: IngestOptions = {}): Promise<IngestOutcome> {
   const hash = bodyHash(run)
   // a replay is found by the unique id when the insert collides; the first post pays no extra look-up
   let ctx: Prepared
@@ -158,7 +161,7 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
         await updateParamStats(trx, agg, judged.measurements)
         return attempt
       })
-      touchStation(db, station.id, now)
+      if (options.touchStation !== false) touchStation(db, station.id, now)
       return { status: 201, run: freshRunView(station, run, ctx, attempt) }
     } catch (e: any) {
       if (e?.code === 'ER_DUP_ENTRY') {
