@@ -1,4 +1,5 @@
 // Display-only rounding for analytics views: the API sends full precision, the screen shows what a reader needs.
+import { utcDate, utcMinute, utcSeconds } from './utc-time'
 
 export const DASH = '—'
 
@@ -70,13 +71,10 @@ export function logHzLabel(log10Hz: number): string {
 }
 
 export function utcStamp(iso: string | null | undefined, withSeconds = false): string {
-  if (!iso) return DASH
-  return new Date(iso).toISOString().slice(0, withSeconds ? 19 : 16).replace('T', ' ')
+  return withSeconds ? utcSeconds(iso) : utcMinute(iso)
 }
 
-export function utcDate(iso: string | null | undefined): string {
-  return iso ? new Date(iso).toISOString().slice(0, 10) : DASH
-}
+export { utcDate }
 
 /** "4 s", "3 min 12 s", "2 h 5 min", "3 d" since a moment. */
 export function ageText(fromIso: string | null | undefined, nowMs: number): string {

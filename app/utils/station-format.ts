@@ -1,7 +1,4 @@
-/** "YYYY-MM-DD HH:MM" in UTC, the way the floor and the stations log times; a dash for none. */
-export function utcMinute(value: string | Date | null | undefined): string {
-  return value ? new Date(value).toISOString().slice(0, 16).replace('T', ' ') : '—'
-}
+export { utcMinute } from './utc-time'
 
 /** Maps a problem's JSON-Pointer errors to a pointer → message table for field-level display. */
 export function pointerErrors(e: any): Record<string, string> {

@@ -20,7 +20,4 @@ export type UnitInfo = { serial: string; partNumber: string; productName: string
 /** unit is null only in the placeholder shown before the first answer. */
 export type UnitHistoryReply = { unit: UnitInfo | null; runs: UnitRun[] }
 
-/** "YYYY-MM-DD HH:MM:SS" in UTC. */
-export function utcSeconds(value: string | null | undefined): string {
-  return value ? new Date(value).toISOString().slice(0, 19).replace('T', ' ') : '—'
-}
+export { utcSeconds } from './utc-time'

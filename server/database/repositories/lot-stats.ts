@@ -5,7 +5,8 @@ export type LotHeader = {
   productId: number; partNumber: string; productName: string; steps: string[]
 }
 
-export async function findLotByCode(db: Knex, code: string): Promise<LotHeader | undefined> {
+/** A lot with the product facts its views need (part number, name, steps). */
+export async function findLotHeader(db: Knex, code: string): Promise<LotHeader | undefined> {
   const r = await db('lots as l').join('products as p', 'p.id', 'l.product_id').where('l.code', code)
     .first('l.id', 'l.code', 'l.status', 'l.planned_qty', 'l.created_at', 'p.id as product_id', 'p.part_number', 'p.name as product_name', 'p.steps')
   if (!r) return undefined

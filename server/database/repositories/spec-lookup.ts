@@ -1,4 +1,5 @@
 import type { Knex } from 'knex'
+import { findProductByPartNumber, listProductRecords, type ProductRecord } from './products'
 
 export type ProductInfo = {
   id: number; partNumber: string; name: string; multiplier: number; inputHz: number; outputHz: number
@@ -12,24 +13,21 @@ export type SpecLimit = {
 
 export type RevisionInForce = { id: number; revision: number; effectiveAt: Date; status: string; limits: SpecLimit[] }
 
-function parseSteps(v: unknown): string[] {
-  return Array.isArray(v) ? v : JSON.parse(String(v))
-}
-
-function toProduct(r: any): ProductInfo {
+/** The catalogue record in the shape judgement and station tooling read. */
+function toProductInfo(p: ProductRecord): ProductInfo {
   return {
-    id: r.id, partNumber: r.part_number, name: r.name, multiplier: r.multiplier, inputHz: r.input_hz, outputHz: r.output_hz,
-    steps: parseSteps(r.steps), jitterBand: [r.jitter_band_lo_hz, r.jitter_band_hi_hz],
+    id: p.id, partNumber: p.partNumber, name: p.name, multiplier: p.multiplier, inputHz: p.inputHz, outputHz: p.outputHz,
+    steps: p.steps, jitterBand: [p.jitterBandLoHz, p.jitterBandHiHz],
   }
 }
 
 export async function findProductByPart(db: Knex, partNumber: string): Promise<ProductInfo | undefined> {
-  const r = await db('products').where({ part_number: partNumber }).first()
-  return r ? toProduct(r) : undefined
+  const p = await findProductByPartNumber(db, partNumber)
+  return p && toProductInfo(p)
 }
 
 export async function listProducts(db: Knex): Promise<ProductInfo[]> {
-  return (await db('products').orderBy('part_number')).map(toProduct)
+  return (await listProductRecords(db)).map(toProductInfo)
 }
 
 export function toLimit(l: any): SpecLimit {

@@ -1,7 +1,7 @@
 import type { Knex } from 'knex'
 import { individualsLimits } from '../../../shared/utils/control'
 import { writeAudit } from '../../database/repositories/audit'
-import { findLotByCode } from '../../database/repositories/lot-stats'
+import { findLotHeader } from '../../database/repositories/lot-stats'
 import { deleteBaseline, findBaseline, parameterPoints, saveBaseline } from '../../database/repositories/parameter-values'
 
 export const BASELINE_DEFAULT = 25
@@ -14,7 +14,7 @@ export class BaselineError extends Error {
 
 /** Freezes the individuals-chart limits from the lot's first N first-attempt points. */
 export async function freezeBaseline(db: Knex, r: BaselineRequest) {
-  const lot = await findLotByCode(db, r.code)
+  const lot = await findLotHeader(db, r.code)
   if (!lot) throw new BaselineError(404, `No lot ${r.code}.`)
   const key = { lotId: lot.id, step: r.step, name: r.name, qualifier: r.qualifier }
   const pts = await parameterPoints(db, { ...key, firstOnly: true }, { head: r.points })
@@ -30,7 +30,7 @@ export async function freezeBaseline(db: Knex, r: BaselineRequest) {
 }
 
 export async function releaseBaseline(db: Knex, r: Omit<BaselineRequest, 'points'>) {
-  const lot = await findLotByCode(db, r.code)
+  const lot = await findLotHeader(db, r.code)
   if (!lot) throw new BaselineError(404, `No lot ${r.code}.`)
   const key = { lotId: lot.id, step: r.step, name: r.name, qualifier: r.qualifier }
   return db.transaction(async (trx) => {

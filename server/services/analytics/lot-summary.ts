@@ -3,7 +3,7 @@ import { capabilityFromStats, sigmaFromMovingRange } from '../../../shared/utils
 import { formatQualifier, KNOWN_MEASUREMENTS } from '../../../shared/utils/measurement-names'
 import { emptyMoments, mergeMoments, momentsFromShiftedSums, stdDev } from '../../../shared/utils/moments'
 import { paretoFailures, rolledThroughputYield, wilsonInterval } from '../../../shared/utils/yield'
-import { findLotByCode, paramStats, paramStatsAllAttempts, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
+import { findLotHeader, paramStats, paramStatsAllAttempts, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
 import { listEffectiveRevisions, revisionAt, type SpecLimit } from '../../database/repositories/spec-lookup'
 import { rebuildMovingRange } from '../ingest/aggregates'
 import { qualifierFields } from '../ingest/run-view'
@@ -62,7 +62,7 @@ function stepOrder(lot: LotHeader, step: string) {
 
 /** Yield, capability and failure Pareto of a lot, from the running aggregates (no scan of measurements by default). */
 export async function lotSummary(db: Knex, code: string, population: Population = 'first', now = new Date()) {
-  const lot = await findLotByCode(db, code)
+  const lot = await findLotHeader(db, code)
   if (!lot) return undefined
   const [steps, params, revisions] = await Promise.all([
     stepStats(db, lot.id),

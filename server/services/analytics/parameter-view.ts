@@ -2,7 +2,7 @@ import type { Knex } from 'knex'
 import { ewma, individualsLimits, westernElectricHits } from '../../../shared/utils/control'
 import { qualifierKind } from '../../../shared/utils/measurement-names'
 import { slopeFromCentredSums } from '../../../shared/utils/regression'
-import { findLotByCode } from '../../database/repositories/lot-stats'
+import { findLotHeader } from '../../database/repositories/lot-stats'
 import { findBaseline, parameterHistogram, parameterMoments, parameterPoints, parameterTrendSums, type ParamKey } from '../../database/repositories/parameter-values'
 import { listEffectiveRevisions, revisionAt } from '../../database/repositories/spec-lookup'
 import { parameterLabel } from './lot-summary'
@@ -15,7 +15,7 @@ export type ParameterQuery = { code: string; name: string; step: string; qualifi
 
 /** Histogram, individuals chart with rule hits, EWMA and drift of one parameter in one lot. Sends at most CHART_POINTS points. */
 export async function parameterView(db: Knex, q: ParameterQuery, now = new Date()) {
-  const lot = await findLotByCode(db, q.code)
+  const lot = await findLotHeader(db, q.code)
   if (!lot) return undefined
   const key: ParamKey = { lotId: lot.id, step: q.step, name: q.name, qualifier: q.qualifier, firstOnly: q.attempts === 'first' }
   const [moments, revisions, frozen] = await Promise.all([parameterMoments(db, key), listEffectiveRevisions(db, lot.productId), findBaseline(db, key)])
