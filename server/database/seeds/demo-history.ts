@@ -3,6 +3,7 @@ import { DEMO_LOTS, DEMO_PRODUCTS, DEMO_STATIONS, type DemoProduct } from '../..
 import { generateRun, mulberry32, type GeneratedRun } from '../../../fixtures/run-generator'
 import { ingestRun } from '../../services/ingest/ingest-run'
 import { validateRun } from '../../utils/run-validator'
+import { writeAudit } from '../repositories/audit'
 
 const HOUR = 3_600_000
 
@@ -73,6 +74,8 @@ async function seedDemoShipments(db: Knex, now: Date): Promise<void> {
       const passing = await trx('units as u').join('unit_steps as us', 'us.unit_id', 'u.id')
         .where({ 'u.lot_id': lot.id, 'us.step': 'final', 'us.latest_verdict': 'pass' }).orderBy('u.serial').limit(p.units).select('u.id')
       await trx('shipment_units').insert(passing.map((u: any) => ({ shipment_id: shipmentId, unit_id: u.id })))
+      await writeAudit(trx, { userId: quality.id, action: 'release', entity: 'lot', entityId: p.lot, before: { status: 'open' }, after: { status: 'released' } })
+      if (p.shipped) await writeAudit(trx, { userId: quality.id, action: 'ship', entity: 'lot', entityId: p.lot, before: { status: 'released' }, after: { status: 'shipped' } })
     }
   })
 }

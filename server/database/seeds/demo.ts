@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import { DEMO_CUSTOMERS, DEMO_LOTS, DEMO_PASSWORD, DEMO_PRODUCTS, DEMO_STAFF, DEMO_STATIONS } from '../../../fixtures/demo-catalogue'
 import { hashPasswordOffline } from '../../utils/password-hash'
 import { generateStationToken } from '../../utils/station-token'
+import { writeAudit } from '../repositories/audit'
 
 export type SeedResult = { stationTokens: Record<string, string> }
 
@@ -34,6 +35,7 @@ export async function seedDemoCatalogue(db: Knex, now = new Date()): Promise<See
         product_id: productId, revision: 1, status: 'approved', effective_at: effective,
         author_id: userIds.engineer, approved_by: userIds.quality, approved_at: effective, note: 'Initial production limits',
       })
+      await writeAudit(trx, { userId: userIds.quality, action: 'approve', entity: 'spec_revision', entityId: revisionId!, after: { partNumber: p.partNumber, revision: 1, status: 'approved', effectiveAt: effective } })
       await trx('spec_limits').insert(p.limits.map((l) => ({
         revision_id: revisionId, step: l.step, name: l.name, qualifier: l.qualifier ?? 0, lsl: l.lsl ?? null, usl: l.usl ?? null,
         target: l.target ?? null, unit: l.unit, required: l.required ?? true, rule: l.rule ?? 'simple',
@@ -45,6 +47,7 @@ export async function seedDemoCatalogue(db: Knex, now = new Date()): Promise<See
       const t = generateStationToken()
       await trx('station_tokens').insert({ station_id: stationId, token_hash: t.hash, hint: t.hint, created_by: userIds.admin })
       stationTokens[s.name] = t.token
+      await writeAudit(trx, { userId: userIds.admin, action: 'create', entity: 'station', entityId: stationId!, after: { name: s.name, activeTokenHints: [t.hint] } })
       const lapsing = s.name === 'ATE-T3-02'
       await trx('instruments').insert([
         { station_id: stationId, kind: 'Signal source analyser', model: 'PNA-40 bench analyser', serial: `SA-${stationId}0417`, calibration_due: new Date(now.getTime() + 140 * DAY) },
