@@ -16,8 +16,9 @@ import { createKnex } from '../server/database/connection'
 import { generateStationToken } from '../server/utils/station-token'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../server/database/repositories/spec-lookup'
 import { judgeRun, type JudgedMeasurement } from '../server/services/ingest/judge-run'
-import { measurementsInsert, RUN_INSERT_SQL, runInsertValues, UNIT_INSERT_SQL, unitStepUpsert, type RunRow } from '../server/database/repositories/runs'
-import { paramStatsStatement, stepStatsStatement } from '../server/services/ingest/aggregates'
+import type { RunRow } from '../server/database/repositories/runs'
+import { lockedUnit, runWriteStatements, unitLockStatements } from '../server/services/ingest/run-statements'
+import { joinStatements } from '../server/database/raw-connection'
 import { validateRun, type StationRun } from '../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../fixtures/demo-catalogue'
 import { gaussian, generateRun, mulberry32 } from '../fixtures/run-generator'
@@ -91,7 +92,7 @@ function benchRun(i: number, rand: () => number, startedAt: Date, product: Produ
   const j = judgeRun(v.value, product, revision)
   body.stationVerdict = j.verdict
   v.value.stationVerdict = j.verdict
-  return { json: Buffer.from(JSON.stringify(body)), run: v.value, judged: j.measurements.filter((m) => !m.derived), verdict: j.verdict }
+  return { json: Buffer.from(JSON.stringify(body)), run: v.value, judged: j.measurements, verdict: j.verdict }
 }
 
 function makeBodies(count: number, seed: number, product: ProductInfo, revision: RevisionInForce, tag: string): Prepared[] {
@@ -147,8 +148,8 @@ async function waitHealthy(base: string): Promise<void> {
 
 // ---- raw side ----------------------------------------------------------------------------------
 // The same rows the server writes for a run — a new unit, the run, its measurements, the unit's step row and the
-// lot aggregates — with the very statements the server uses, sent straight through mysql2: what is left between
-// the two figures is the server's own cost (HTTP, parsing, validation, judgement, query building).
+// lot aggregates — with the very statement texts and round trips the server sends, straight through mysql2:
+// what is left between the two figures is the server's own cost (HTTP, parsing, validation, judgement, SQL building).
 
 type RawCtx = { pool: mysql.Pool; lotId: number; productId: number; stationIds: number[]; revisionId: number }
 
@@ -165,25 +166,33 @@ function runRowFor(p: Prepared, ctx: RawCtx, unitId: number, stationId: number):
   }
 }
 
-/** One run's rows in the caller's open transaction. */
+/** One run as the server stores it: the unit-lock round trip, then the writes ending in COMMIT. */
 async function rawRun(conn: mysql.PoolConnection, ctx: RawCtx, p: Prepared, stationId: number): Promise<void> {
-  const [u] = await conn.query<mysql.ResultSetHeader>(UNIT_INSERT_SQL, [ctx.productId, ctx.lotId, `RAW-${process.pid}-${++rawSerial}`])
-  const [r] = await conn.query<mysql.ResultSetHeader>(RUN_INSERT_SQL, runInsertValues(runRowFor(p, ctx, u.insertId, stationId)))
-  const agg = { lotId: ctx.lotId, stationId, step: p.run.step, attempt: 1, startedAt: new Date(p.run.startedAt) }
-  const m = measurementsInsert(r.insertId, { ...agg, firstAttempt: true }, p.judged)
-  await conn.query(m.sql, m.values)
-  const us = unitStepUpsert(u.insertId, p.run.step, 1, p.verdict, r.insertId)
-  await conn.query(us.sql, us.values)
-  const st = stepStatsStatement(agg, p.verdict, null)
-  await conn.query(st.sql, st.values)
-  const ps = paramStatsStatement(agg, p.judged)
-  if (ps) await conn.query(ps.sql, ps.values)
+  const lock = joinStatements(['START TRANSACTION', unitLockStatements(ctx.productId, ctx.lotId, `RAW-${process.pid}-${++rawSerial}`, p.run.step)])
+  const [results] = await conn.query(lock.sql, lock.values)
+  const unit = lockedUnit(results)
+  const write = joinStatements([runWriteStatements({ row: runRowFor(p, ctx, unit.id, stationId), measurements: p.judged, traces: p.run.traces ?? [], previousLatest: null }), 'COMMIT'])
+  await conn.query(write.sql, write.values)
+}
+
+/** Several runs in one transaction, each with the same two round trips inside it. */
+async function rawRunsInOneTransaction(conn: mysql.PoolConnection, ctx: RawCtx, runs: Prepared[], stationId: number): Promise<void> {
+  await conn.query('START TRANSACTION')
+  for (const p of runs) {
+    const lock = unitLockStatements(ctx.productId, ctx.lotId, `RAW-${process.pid}-${++rawSerial}`, p.run.step)
+    const [results] = await conn.query(lock.sql, lock.values)
+    const unit = lockedUnit(results)
+    const write = runWriteStatements({ row: runRowFor(p, ctx, unit.id, stationId), measurements: p.judged, traces: p.run.traces ?? [], previousLatest: null })
+    await conn.query(write.sql, write.values)
+  }
+  await conn.query('COMMIT')
 }
 
 /** 32 workers, each writing `perTx` runs per transaction, for `seconds`. */
-async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds: number): Promise<number> {
+async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds: number): Promise<{ runsPerSec: number; p50Ms: number; p99Ms: number }> {
   let next = 0
   let runs = 0
+  const took: number[] = []
   const started = Date.now()
   const until = started + seconds * 1000
   const worker = async (w: number) => {
@@ -192,9 +201,10 @@ async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds
     try {
       while (Date.now() < until) {
         const stationId = ctx.stationIds[w % ctx.stationIds.length]!
-        await conn.beginTransaction()
-        for (let k = 0; k < perTx; k++) await rawRun(conn, ctx, bodies[next++ % bodies.length]!, stationId)
-        await conn.commit()
+        const t0 = performance.now()
+        if (perTx === 1) await rawRun(conn, ctx, bodies[next++ % bodies.length]!, stationId)
+        else await rawRunsInOneTransaction(conn, ctx, Array.from({ length: perTx }, () => bodies[next++ % bodies.length]!), stationId)
+        took.push(performance.now() - t0)
         runs += perTx
       }
     } finally {
@@ -202,7 +212,9 @@ async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds
     }
   }
   await Promise.all(Array.from({ length: CONNECTIONS }, (_, w) => worker(w)))
-  return runs / ((Date.now() - started) / 1000)
+  took.sort((a, b) => a - b)
+  const at = (q: number) => Math.round(took[Math.min(took.length - 1, Math.floor(q * took.length))] ?? Number.NaN)
+  return { runsPerSec: runs / ((Date.now() - started) / 1000), p50Ms: at(0.5), p99Ms: at(0.99) }
 }
 
 // ---- main --------------------------------------------------------------------------------------
@@ -216,10 +228,20 @@ const round = (x: number, d = 1) => Math.round(x * 10 ** d) / 10 ** d
 
 /** User + system CPU seconds a process has used so far (Linux /proc, 100 ticks per second). */
 function cpuSeconds(pid: number): number {
+  const t = cpuTimes(pid)
+  return t.user + t.system
+}
+
+function cpuTimes(pid: number): { user: number; system: number } {
   try {
     const f = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]!.split(' ')
-    return (Number(f[11]) + Number(f[12])) / 100
-  } catch { return Number.NaN }
+    return { user: Number(f[11]) / 100, system: Number(f[12]) / 100 }
+  } catch { return { user: Number.NaN, system: Number.NaN } }
+}
+
+/** The project's MariaDB server process, for its CPU use. */
+function databasePid(): number {
+  try { return Number(readFileSync(resolve(root, '.data/mariadb/mysqld.pid'), 'utf8').trim()) } catch { return -1 }
 }
 
 async function main() {
@@ -235,7 +257,7 @@ async function main() {
   const env = loadEnv()
   const settings = dbSettings(env, DATABASE)
   const knex = createKnex({ host: HOST, port: settings.port, user: settings.user, password: settings.password, database: DATABASE })
-  const pool = mysql.createPool({ host: HOST, port: settings.port, user: settings.user, password: settings.password, database: DATABASE, connectionLimit: CONNECTIONS, timezone: 'Z' })
+  const pool = mysql.createPool({ host: HOST, port: settings.port, user: settings.user, password: settings.password, database: DATABASE, connectionLimit: CONNECTIONS, timezone: 'Z', multipleStatements: true })
   try {
     const product = (await findProductByPart(knex, PART))!
     const revision = revisionAt(await listEffectiveRevisions(knex, product.id), new Date())!
@@ -263,7 +285,7 @@ async function main() {
     const base = `http://${HOST}:${port}`
     const profileDir = process.env.TERCET_BENCH_PROFILE
     server = spawn(process.execPath, [...(profileDir ? ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] : []), entry], {
-      env: { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD },
+      env: { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD, ...(process.env.TERCET_INGEST_WRITERS ? { TERCET_INGEST_WRITERS: process.env.TERCET_INGEST_WRITERS } : {}) },
       stdio: ['ignore', 2, 2],
     })
     await waitHealthy(base)
@@ -278,13 +300,25 @@ async function main() {
     say(`POST /api/v1/runs: ${CONNECTIONS} connections for ${SECONDS} s…`)
     const q0 = await questions(pool)
     const c0 = cpuSeconds(server.pid!)
+    const k0 = cpuTimes(server.pid!).system
+    const d0 = cpuSeconds(databasePid())
     const s = await cannon(port, '/api/v1/runs', rest, tokens, { seconds: SECONDS })
     const c1 = cpuSeconds(server.pid!)
+    const k1 = cpuTimes(server.pid!).system
+    const d1 = cpuSeconds(databasePid())
     const q1 = await questions(pool)
     const runsPerSec = s['2xx'] / s.duration
-    say(`  ${s['2xx']} runs stored, ${round((q1 - q0) / Math.max(1, s['2xx']))} statements per run (all clients of the database), server busy ${Math.round((100 * (c1 - c0)) / s.duration)}% of one core`)
+    say(`  ${s['2xx']} runs stored, ${round((q1 - q0) / Math.max(1, s['2xx']))} statements per run (all clients of the database); CPU per run: server ${round((1000 * (c1 - c0)) / s['2xx'], 2)} ms (of it in the kernel ${round((1000 * (k1 - k0)) / s['2xx'], 2)} ms), MariaDB ${round((1000 * (d1 - d0)) / s['2xx'], 2)} ms`)
     say(`raw: ${CONNECTIONS} connections, one run's rows (unit, run, ${MEASUREMENTS}+ measurements, step row, aggregates) per transaction, for ${RAW_SECONDS} s…`)
-    const rawSingle = await rawInsert(ctx, single, 1, RAW_SECONDS)
+    const d2 = cpuSeconds(databasePid())
+    const r0 = Date.now()
+    const u0 = process.cpuUsage()
+    const raw1 = await rawInsert(ctx, single, 1, RAW_SECONDS)
+    const u1 = process.cpuUsage(u0)
+    const rawSingle = raw1.runsPerSec
+    const d3 = cpuSeconds(databasePid())
+    const rawRuns = rawSingle * ((Date.now() - r0) / 1000)
+    say(`  ${round(rawSingle)} runs/s, transaction p50 ${raw1.p50Ms} ms, p99 ${raw1.p99Ms} ms; CPU per run: direct writer ${round((u1.user + u1.system) / 1000 / rawRuns, 2)} ms, MariaDB ${round((1000 * (d3 - d2)) / rawRuns, 2)} ms`)
     process.stdout.write(JSON.stringify({
       endpoint: 'runs', runsPerSec: round(runsPerSec), p50Ms: s.latency.p50, p99Ms: s.latency.p99, errors: s.errors + s.timeouts,
       non2xx: s.non2xx, rawRunsPerSec: round(rawSingle), ratio: round(runsPerSec / rawSingle, 3),
@@ -303,7 +337,7 @@ async function main() {
     const batchPerSec = stored / b.duration
     say(`  ${stored} runs stored in ${b['2xx']} requests, ${refused} runs refused inside batches`)
     say(`raw: ${CONNECTIONS} connections, ${BATCH} runs' rows per transaction, for ${RAW_SECONDS} s…`)
-    const rawBatch = await rawInsert(ctx, batchRuns, BATCH, RAW_SECONDS)
+    const rawBatch = (await rawInsert(ctx, batchRuns, BATCH, RAW_SECONDS)).runsPerSec
     process.stdout.write(JSON.stringify({
       // non2xx counts refused requests and refused runs inside 200 batch answers alike
       endpoint: 'runs/batch', runsPerSec: round(batchPerSec), p50Ms: b.latency.p50, p99Ms: b.latency.p99, errors: b.errors + b.timeouts,

@@ -1,5 +1,5 @@
 // Display-only rounding for analytics views: the API sends full precision, the screen shows what a reader needs.
-import { utcDate, utcMinute, utcSeconds } from './utc-time'
+import { utcMinute, utcSeconds } from './utc-time'
 
 export const DASH = '—'
 
@@ -74,7 +74,6 @@ export function utcStamp(iso: string | null | undefined, withSeconds = false): s
   return withSeconds ? utcSeconds(iso) : utcMinute(iso)
 }
 
-export { utcDate }
 
 /** "4 s", "3 min 12 s", "2 h 5 min", "3 d" since a moment. */
 export function ageText(fromIso: string | null | undefined, nowMs: number): string {

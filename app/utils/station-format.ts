@@ -1,5 +1,3 @@
-export { utcMinute } from './utc-time'
-
 /** Maps a problem's JSON-Pointer errors to a pointer → message table for field-level display. */
 export function pointerErrors(e: any): Record<string, string> {
   const out: Record<string, string> = {}

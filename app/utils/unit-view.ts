@@ -20,4 +20,3 @@ export type UnitInfo = { serial: string; partNumber: string; productName: string
 /** unit is null only in the placeholder shown before the first answer. */
 export type UnitHistoryReply = { unit: UnitInfo | null; runs: UnitRun[] }
 
-export { utcSeconds } from './utc-time'

@@ -13,6 +13,9 @@ export function createKnex(conn: DbConnection, pool = { min: 0, max: 20 }): Knex
       supportBigNumbers: true,
       bigNumberStrings: false,
       charset: 'utf8mb4',
+      // the single-run writer sends a transaction's statements in one round trip; every value in this
+      // code base travels as a placeholder binding, never spliced into SQL text
+      multipleStatements: true,
     },
     pool: {
       ...pool,

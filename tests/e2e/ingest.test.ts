@@ -1,8 +1,8 @@
 import { spawn } from 'node:child_process'
 import { resolve } from 'node:path'
 import { describe, expect, it } from 'vitest'
-import { call } from '../support/http'
-import { stationTokens, tripleRun } from '../support/stations'
+import { call, ROLE_ACCOUNTS, signIn } from '../support/http'
+import { stationTokens, tripleRun, uniqueSerial } from '../support/stations'
 
 const tokens = stationTokens()
 const T3 = tokens['ATE-T3-01']!
@@ -43,6 +43,17 @@ describe('POST /api/v1/runs', () => {
     const r = await post(changed)
     expect(r.status).toBe(409)
     expect(r.headers.get('content-type')).toContain('application/problem+json')
+  })
+
+  it('a 409 leaves nothing behind: the unit it would have created is rolled back with the refused run', async () => {
+    const run = tripleRun()
+    expect((await post(run)).status).toBe(201)
+    // the new serial's unit is created before the run insert meets the stored id, in the same transaction
+    const other = { ...run, serial: uniqueSerial('RB') }
+    expect((await post(other)).status).toBe(409)
+    const engineer = await signIn(ROLE_ACCOUNTS.engineer)
+    expect((await call('GET', `/api/units/${other.serial}`, { cookie: engineer })).status).toBe(404)
+    expect((await call('GET', `/api/units/${run.serial}`, { cookie: engineer })).status).toBe(200)
   })
 
   it('derives frequency error in ppm from the output frequency (ppm against N × nominal)', async () => {

@@ -1,5 +1,16 @@
 import type { Knex } from 'knex'
+import mysql from 'mysql2'
 import type { JudgedMeasurement } from '../../services/ingest/judge-run'
+import { repeatedTuples } from '../raw-connection'
+
+/** A run's id as a number, or the id of the run inserted just before in the same round trip. */
+export type RunIdRef = number | { toSqlString(): string }
+
+const RUN_ID_VARIABLE = '@tercet_run'
+/** Stands for the id of the run inserted earlier in the same round trip (see `rememberRunId`). */
+export const INSERTED_RUN_ID: RunIdRef = mysql.raw(RUN_ID_VARIABLE)
+/** Keeps the id the run insert just generated, before the measurements' own ids replace LAST_INSERT_ID(). */
+export const REMEMBER_RUN_ID = `SET ${RUN_ID_VARIABLE} = LAST_INSERT_ID()`
 
 export type RunRow = {
   uuid: string; bodyHash: string; unitId: number; lotId: number; stationId: number; revisionId: number | null
@@ -40,7 +51,7 @@ export async function insertRun(trx: Knex, r: RunRow): Promise<number> {
 export const UNIT_INSERT_SQL = 'INSERT IGNORE INTO units (product_id, lot_id, serial) VALUES (?, ?, ?)'
 
 /** The unit's attempt count and latest result at a step; the first result is kept from the first insert. */
-export function unitStepUpsert(unitId: number, step: string, attempt: number, verdict: 'pass' | 'fail', runId: number): { sql: string; values: Knex.RawBinding[] } {
+export function unitStepUpsert(unitId: number, step: string, attempt: number, verdict: 'pass' | 'fail', runId: RunIdRef): { sql: string; values: Knex.RawBinding[] } {
   return {
     sql: `INSERT INTO unit_steps (unit_id, step, attempts, first_verdict, latest_verdict, latest_run_id) VALUES (?, ?, ?, ?, ?, ?)
       ON DUPLICATE KEY UPDATE attempts = VALUES(attempts), latest_verdict = VALUES(latest_verdict), latest_run_id = VALUES(latest_run_id)`,
@@ -62,16 +73,17 @@ export type MeasurementContext = { lotId: number; stationId: number; step: strin
 const M_TUPLE = `(${new Array(20).fill('?').join(', ')})`
 
 /** One multi-row INSERT for a run's measurements, with the limits applied copied beside each value. */
-export function measurementsInsert(runId: number, ctx: MeasurementContext, ms: JudgedMeasurement[]): { sql: string; values: Knex.RawBinding[] } {
+export function measurementsInsert(runId: RunIdRef, ctx: MeasurementContext, ms: JudgedMeasurement[]): { sql: string; values: Knex.RawBinding[] } {
   const values: Knex.RawBinding[] = []
   for (const m of ms) {
-    values.push(runId, ctx.lotId, ctx.stationId, ctx.step, ctx.firstAttempt, ctx.startedAt, m.name, m.qualifier, m.value, m.unit, m.uncertainty,
-      m.limit?.lsl ?? null, m.limit?.usl ?? null, m.limit?.target ?? null, m.limit?.rule ?? null, m.limit?.guardBand ?? null,
+    const l = m.limit
+    values.push(runId as Knex.RawBinding, ctx.lotId, ctx.stationId, ctx.step, ctx.firstAttempt, ctx.startedAt, m.name, m.qualifier, m.value, m.unit, m.uncertainty,
+      l ? l.lsl : null, l ? l.usl : null, l ? l.target : null, l ? l.rule : null, l ? l.guardBand : null,
       m.verdict, m.zone, m.derived, m.excessDb)
   }
   return {
     sql: `INSERT INTO measurements (run_id, lot_id, station_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
-      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db) VALUES ${ms.map(() => M_TUPLE).join(', ')}`,
+      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db) VALUES ${repeatedTuples(M_TUPLE, ms.length)}`,
     values,
   }
 }
@@ -87,6 +99,23 @@ export async function insertMeasurements(trx: Knex, runId: number, ctx: Measurem
   if (!ms.length) return
   const st = measurementsInsert(runId, ctx, ms)
   await trx.raw(st.sql, st.values)
+}
+
+/** Creates the unit on first sight and locks it, reading its attempts so far at the step (two statements). */
+export function unitLockStatements(productId: number, lotId: number, serial: string, step: string): { sql: string; values: Knex.RawBinding[] } {
+  return {
+    sql: `${UNIT_INSERT_SQL};
+      SELECT u.id, u.lot_id, s.attempts, s.latest_verdict FROM units u LEFT JOIN unit_steps s ON s.unit_id = u.id AND s.step = ?
+        WHERE u.product_id = ? AND u.serial = ? FOR UPDATE`,
+    values: [productId, lotId, serial, step, productId, serial],
+  }
+}
+
+export function tracesInsert(runId: RunIdRef, traces: { name: string; points: [number, number][] }[]): { sql: string; values: Knex.RawBinding[] } {
+  return {
+    sql: `INSERT INTO traces (run_id, name, points) VALUES ${traces.map(() => '(?, ?, ?)').join(', ')}`,
+    values: traces.flatMap((t) => [runId as Knex.RawBinding, t.name, JSON.stringify(t.points)]),
+  }
 }
 
 export async function insertTraces(trx: Knex, runId: number, traces: { name: string; points: [number, number][] }[]): Promise<void> {

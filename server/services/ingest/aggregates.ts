@@ -2,6 +2,13 @@
 // concurrent stations off each other's rows; readers add the station rows together.
 import type { Knex } from 'knex'
 import type { JudgedMeasurement } from './judge-run'
+import { repeatedTuples } from '../../database/raw-connection'
+
+function flatten(rows: Knex.RawBinding[][]): Knex.RawBinding[] {
+  const out: Knex.RawBinding[] = []
+  for (const r of rows) for (let i = 0; i < r.length; i++) out.push(r[i]!)
+  return out
+}
 
 export type AggregateContext = { lotId: number; stationId: number; step: string; attempt: number; startedAt: Date }
 
@@ -75,8 +82,8 @@ export function paramStatsStatementMany(rows: Knex.RawBinding[][]): Statement {
   return {
     sql: `INSERT INTO lot_param_stats (lot_id, step, name, qualifier, station_id, unit, n, shift, sum_d, sumsq_d, min_value, max_value,
        mr_sum, mr_n, last_value, last_started_at, mr_stale, out_of_spec, fail_all)
-     VALUES ${rows.map(() => PARAM_TUPLE).join(', ')}${PARAM_UPSERT_TAIL}`,
-    values: rows.flat(),
+     VALUES ${repeatedTuples(PARAM_TUPLE, rows.length)}${PARAM_UPSERT_TAIL}`,
+    values: flatten(rows),
   }
 }
 

@@ -1,11 +1,13 @@
 import type { Knex } from 'knex'
 import type { StationRun } from '../../utils/run-validator'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
-import { findRunHashByUuid, insertMeasurements, insertRun, insertTraces, loadRunsWithMeasurements, UNIT_INSERT_SQL, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
+import { findRunHashByUuid, loadRunsWithMeasurements, type RunRow } from '../../database/repositories/runs'
+import { joinStatements, withDriverConnection } from '../../database/raw-connection'
+import { FifoGate } from '../../utils/fifo-gate'
+import { lockedUnit, runWriteStatements, unitLockStatements } from './run-statements'
 import { calibrationCache, lotCache, productCache, specCache } from './caches'
 import { bodyHash } from './canonical'
 import { judgeRun, RunRejected } from './judge-run'
-import { updateParamStats, updateStepStats } from './aggregates'
 import { measurementView, qualifierFields, runViewFromRows, type RunView } from './run-view'
 
 export { RunRejected }
@@ -47,17 +49,6 @@ async function lotFor(db: Knex, code: string, product: ProductInfo): Promise<num
     throw new RunRejected(`Lot ${code} belongs to another part number.`, [{ pointer: '/lot', message: 'lot belongs to another part' }])
   }
   return lot.id
-}
-
-/** The unit's id, creating it on first sight; either way the unit's row stays locked, so its attempts number in order. */
-async function unitFor(trx: Knex, product: ProductInfo, lotId: number, run: StationRun): Promise<{ id: number; isNew: boolean }> {
-  const [r] = await trx.raw(UNIT_INSERT_SQL, [product.id, lotId, run.serial])
-  if (r.affectedRows === 1 && r.insertId) return { id: Number(r.insertId), isNew: true }
-  const unit = await trx('units').where({ product_id: product.id, serial: run.serial }).forUpdate().first('id', 'lot_id')
-  if (unit.lot_id !== lotId) {
-    throw new RunRejected(`Serial ${run.serial} is recorded in another lot.`, [{ pointer: '/lot', message: 'the serial belongs to another lot' }])
-  }
-  return { id: unit.id, isNew: false }
 }
 
 export async function loadRunView(db: Knex, runId: number): Promise<RunView> {
@@ -142,25 +133,10 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
     if (e instanceof RunRejected) { const again = await replay(db, run.id, hash); if (again) return again }
     throw e
   }
-  const { startedAt, product, judged, lotId } = ctx
 
   for (let tries = 0; ; tries++) {
     try {
-      const attempt = await db.transaction(async (trx) => {
-        const unit = await unitFor(trx, product, lotId, run)
-        const unitId = unit.id
-        const prev = unit.isNew ? undefined : await trx('unit_steps').where({ unit_id: unitId, step: run.step }).first('attempts', 'latest_verdict')
-        const attempt = (prev?.attempts ?? 0) + 1
-        const runId = await insertRun(trx, runRowFor(station, run, hash, ctx, unitId, attempt))
-        const agg = { lotId, stationId: station.id, step: run.step, attempt, startedAt }
-        await insertMeasurements(trx, runId, { ...agg, firstAttempt: attempt === 1 }, judged.measurements)
-        await insertTraces(trx, runId, run.traces ?? [])
-        const us = unitStepUpsert(unitId, run.step, attempt, judged.verdict, runId)
-        await trx.raw(us.sql, us.values)
-        await updateStepStats(trx, agg, judged.verdict, prev?.latest_verdict ?? null)
-        await updateParamStats(trx, agg, judged.measurements)
-        return attempt
-      })
+      const attempt = await storeRun(db, station, run, hash, ctx)
       if (options.touchStation !== false) touchStation(db, station.id, now)
       return { status: 201, run: freshRunView(station, run, ctx, attempt) }
     } catch (e: any) {
@@ -174,6 +150,36 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
       throw e
     }
   }
+}
+
+/**
+ * One transaction in two round trips: the first creates or locks the unit and reads its attempts at the step,
+ * the second writes the run, its measurements, traces, the unit's step row and the lot aggregates, and commits.
+ * Returns the attempt number given to the run.
+ */
+const writers = new FifoGate(Number(process.env.TERCET_INGEST_WRITERS || 6))
+
+async function storeRun(db: Knex, station: StationRef, run: StationRun, hash: string, ctx: Prepared): Promise<number> {
+  return writers.run(() => withDriverConnection(db, async (send, discard) => {
+    try {
+      const lock = joinStatements(['START TRANSACTION', unitLockStatements(ctx.product.id, ctx.lotId, run.serial, run.step)])
+      const unit = lockedUnit(await send(lock.sql, lock.values))
+      if (unit.lotId !== ctx.lotId) {
+        throw new RunRejected(`Serial ${run.serial} is recorded in another lot.`, [{ pointer: '/lot', message: 'the serial belongs to another lot' }])
+      }
+      const attempt = unit.attempts + 1
+      const write = joinStatements([runWriteStatements({
+        row: runRowFor(station, run, hash, ctx, unit.id, attempt), measurements: ctx.judged.measurements,
+        traces: run.traces ?? [], previousLatest: unit.latestVerdict,
+      }), 'COMMIT'])
+      await send(write.sql, write.values)
+      return attempt
+    } catch (e) {
+      // nothing of the run stays: whatever ran before the failing statement is undone
+      await send('ROLLBACK').catch(discard)
+      throw e
+    }
+  }))
 }
 
 const lastTouch = new Map<number, number>()

@@ -1,0 +1,39 @@
+// The SQL of storing one run. The single-run writer sends it as two round trips, the first opening the transaction
+// and the second committing it; the bench's direct writer sends these very texts, so the two differ only by what
+// the server adds around them.
+import type { Knex } from 'knex'
+import { INSERTED_RUN_ID, measurementsInsert, REMEMBER_RUN_ID, RUN_INSERT_SQL, runInsertValues, tracesInsert, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
+import { joinStatements, type Statement } from '../../database/raw-connection'
+import { paramStatsStatement, stepStatsStatement, type AggregateContext } from './aggregates'
+import type { JudgedMeasurement } from './judge-run'
+
+export { unitLockStatements } from '../../database/repositories/runs'
+
+/** What the unit-lock statements answer: the unit, and its attempts so far at the step. */
+export type LockedUnit = { id: number; lotId: number; attempts: number; latestVerdict: 'pass' | 'fail' | null }
+
+/** Reads the unit row out of the results of a round trip that ends with `unitLockStatements`. */
+export function lockedUnit(results: unknown): LockedUnit {
+  const all = results as any[]
+  const row = all[all.length - 1][0] as { id: number; lot_id: number; attempts: number | null; latest_verdict: 'pass' | 'fail' | null }
+  return { id: Number(row.id), lotId: Number(row.lot_id), attempts: Number(row.attempts ?? 0), latestVerdict: row.latest_verdict ?? null }
+}
+
+export type RunWrite = {
+  row: RunRow
+  measurements: JudgedMeasurement[]
+  traces: { name: string; points: [number, number][] }[]
+  previousLatest: 'pass' | 'fail' | null
+}
+
+/** The run, its measurements and traces, the unit's step row and the lot aggregates. */
+export function runWriteStatements({ row, measurements, traces, previousLatest }: RunWrite): Statement {
+  const agg: AggregateContext = { lotId: row.lotId, stationId: row.stationId, step: row.step, attempt: row.attempt, startedAt: row.startedAt }
+  const list: (Statement | string)[] = [{ sql: RUN_INSERT_SQL, values: runInsertValues(row) }, REMEMBER_RUN_ID]
+  if (measurements.length) list.push(measurementsInsert(INSERTED_RUN_ID, { ...agg, firstAttempt: row.attempt === 1 }, measurements))
+  if (traces.length) list.push(tracesInsert(INSERTED_RUN_ID, traces))
+  list.push(unitStepUpsert(row.unitId, row.step, row.attempt, row.serverVerdict, INSERTED_RUN_ID), stepStatsStatement(agg, row.serverVerdict, previousLatest))
+  const params = paramStatsStatement(agg, measurements)
+  if (params) list.push(params)
+  return joinStatements(list as { sql: string; values: Knex.RawBinding[] }[])
+}
