@@ -2,7 +2,7 @@
 // straight through mysql2, on a fresh bench database and the built server, loopback only.
 // Prints one JSON line per endpoint on stdout; progress goes to stderr.
 // TERCET_BENCH_SECONDS sets the length of each HTTP stage (default 20); TERCET_BENCH_PROFILE=<dir>
-// starts the server with --cpu-prof into that folder.
+// starts the server with --cpu-prof into that folder; TERCET_INGEST_WRITERS overrides the server's number of write slots.
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { randomUUID } from 'node:crypto'
 import { existsSync, readFileSync } from 'node:fs'
@@ -19,6 +19,8 @@ import { judgeRun, type JudgedMeasurement } from '../server/services/ingest/judg
 import type { RunRow } from '../server/database/repositories/runs'
 import { lockedUnit, runWriteStatements, unitLockStatements } from '../server/services/ingest/run-statements'
 import { joinStatements } from '../server/database/raw-connection'
+import { foldPendingStats } from '../server/services/ingest/fold-param-stats'
+import type { Knex } from 'knex'
 import { validateRun, type StationRun } from '../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../fixtures/demo-catalogue'
 import { gaussian, generateRun, mulberry32 } from '../fixtures/run-generator'
@@ -151,7 +153,7 @@ async function waitHealthy(base: string): Promise<void> {
 // lot aggregates — with the very statement texts and round trips the server sends, straight through mysql2:
 // what is left between the two figures is the server's own cost (HTTP, parsing, validation, judgement, SQL building).
 
-type RawCtx = { pool: mysql.Pool; lotId: number; productId: number; stationIds: number[]; revisionId: number }
+type RawCtx = { pool: mysql.Pool; knex: Knex; lotId: number; productId: number; stationIds: number[]; revisionId: number }
 
 let rawSerial = 0
 
@@ -188,7 +190,10 @@ async function rawRunsInOneTransaction(conn: mysql.PoolConnection, ctx: RawCtx, 
   await conn.query('COMMIT')
 }
 
-/** 32 workers, each writing `perTx` runs per transaction, for `seconds`. */
+/**
+ * 32 workers, each writing `perTx` runs per transaction, for `seconds`, while the queued runs are folded into the
+ * parameter statistics every 250 ms as the server's folder does: the same rows in the end.
+ */
 async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds: number): Promise<{ runsPerSec: number; p50Ms: number; p99Ms: number }> {
   let next = 0
   let runs = 0
@@ -211,10 +216,21 @@ async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds
       conn.release()
     }
   }
+  let writing = true
+  const folder = (async () => {
+    while (writing) {
+      await foldPendingStats(ctx.knex, { background: true })
+      await new Promise((r) => setTimeout(r, 250))
+    }
+  })()
   await Promise.all(Array.from({ length: CONNECTIONS }, (_, w) => worker(w)))
+  // as on the HTTP side, runs still queued when the stage ends are not waited for
+  const elapsed = (Date.now() - started) / 1000
+  writing = false
+  await folder
   took.sort((a, b) => a - b)
   const at = (q: number) => Math.round(took[Math.min(took.length - 1, Math.floor(q * took.length))] ?? Number.NaN)
-  return { runsPerSec: runs / ((Date.now() - started) / 1000), p50Ms: at(0.5), p99Ms: at(0.99) }
+  return { runsPerSec: runs / elapsed, p50Ms: at(0.5), p99Ms: at(0.99) }
 }
 
 // ---- main --------------------------------------------------------------------------------------
@@ -271,7 +287,7 @@ async function main() {
       tokens.push(t.token)
       stationIds.push(id!)
     }
-    const ctx: RawCtx = { pool, lotId: lotId!, productId: product.id, stationIds, revisionId: revision.id }
+    const ctx: RawCtx = { pool, knex, lotId: lotId!, productId: product.id, stationIds, revisionId: revision.id }
 
     say(`generating ${SINGLE_BODIES} single-run bodies and ${BATCH_RUNS} batch runs (${MEASUREMENTS} measurements each)…`)
     const single = makeBodies(SINGLE_BODIES, 1, product, revision, 'S')
@@ -310,6 +326,8 @@ async function main() {
     const runsPerSec = s['2xx'] / s.duration
     say(`  ${s['2xx']} runs stored, ${round((q1 - q0) / Math.max(1, s['2xx']))} statements per run (all clients of the database); CPU per run: server ${round((1000 * (c1 - c0)) / s['2xx'], 2)} ms (of it in the kernel ${round((1000 * (k1 - k0)) / s['2xx'], 2)} ms), MariaDB ${round((1000 * (d1 - d0)) / s['2xx'], 2)} ms`)
     say(`raw: ${CONNECTIONS} connections, one run's rows (unit, run, ${MEASUREMENTS}+ measurements, step row, aggregates) per transaction, for ${RAW_SECONDS} s…`)
+    // the raw stage starts from an empty queue: what the server left queued is folded first, untimed
+    await foldPendingStats(knex)
     const d2 = cpuSeconds(databasePid())
     const r0 = Date.now()
     const u0 = process.cpuUsage()
@@ -337,6 +355,7 @@ async function main() {
     const batchPerSec = stored / b.duration
     say(`  ${stored} runs stored in ${b['2xx']} requests, ${refused} runs refused inside batches`)
     say(`raw: ${CONNECTIONS} connections, ${BATCH} runs' rows per transaction, for ${RAW_SECONDS} s…`)
+    await foldPendingStats(knex)
     const rawBatch = (await rawInsert(ctx, batchRuns, BATCH, RAW_SECONDS)).runsPerSec
     process.stdout.write(JSON.stringify({
       // non2xx counts refused requests and refused runs inside 200 batch answers alike

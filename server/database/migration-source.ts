@@ -8,6 +8,7 @@ import * as m006 from './migrations/20261201_006_shipping'
 import * as m007 from './migrations/20261201_007_alerts_audit'
 import * as m008 from './migrations/20261201_008_imports'
 import * as m009 from './migrations/20261201_009_control_baselines'
+import * as m010 from './migrations/20261201_010_stats_pending'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -22,6 +23,7 @@ const migrations: Record<string, Migration> = {
   '20261201_007_alerts_audit': m007,
   '20261201_008_imports': m008,
   '20261201_009_control_baselines': m009,
+  '20261201_010_stats_pending': m010,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

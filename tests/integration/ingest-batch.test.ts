@@ -5,6 +5,7 @@ import { createKnex, connectionFromEnv } from '../../server/database/connection'
 import { ingestRun } from '../../server/services/ingest/ingest-run'
 import { ingestBatch } from '../../server/services/ingest/ingest-batch'
 import { lotSummary } from '../../server/services/analytics/lot-summary'
+import { foldPendingStats } from '../../server/services/ingest/fold-param-stats'
 import { validateRun } from '../../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../../fixtures/demo-catalogue'
 import { generateRun, mulberry32 } from '../../fixtures/run-generator'
@@ -90,6 +91,10 @@ describe('batch ingest against one by one', () => {
     expect(await counters(batchLot)).toEqual(await counters(singleLot))
     const params = (lot: string) => db('lot_param_stats as s').join('lots as l', 'l.id', 's.lot_id').where('l.code', lot).orderBy(['s.step', 's.name', 's.qualifier'])
       .select('s.step', 's.name', 's.qualifier', 's.n', 's.shift', 's.sum_d', 's.sumsq_d', 's.min_value', 's.max_value', 's.mr_sum', 's.mr_n', 's.last_value', 's.mr_stale', 's.out_of_spec', 's.fail_all')
+    // both lots' queued runs go through the same fold
+    const lotIds = (await db('lots').whereIn('code', [batchLot, singleLot]).select('id')).map((r: any) => r.id)
+    await foldPendingStats(db, { lotIds })
+    expect(await db('lot_stats_pending').whereIn('lot_id', lotIds).count({ n: '*' }).first()).toMatchObject({ n: 0 })
     expect(await params(batchLot)).toEqual(await params(singleLot))
   })
 })

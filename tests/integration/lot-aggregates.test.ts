@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createKnex, connectionFromEnv } from '../../server/database/connection'
 import { ingestRun } from '../../server/services/ingest/ingest-run'
+import { foldPendingStats } from '../../server/services/ingest/fold-param-stats'
 import { lotSummary } from '../../server/services/analytics/lot-summary'
 import { validateRun } from '../../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../../fixtures/demo-catalogue'
@@ -40,8 +41,8 @@ beforeAll(async () => {
 
 afterAll(async () => { await db.destroy() })
 
-async function recompute(firstOnly: boolean) {
-  const lot = await db('lots').where({ code: lotCode }).first('id')
+async function recompute(firstOnly: boolean, code = lotCode) {
+  const lot = await db('lots').where({ code }).first('id')
   const q = db('measurements').where({ lot_id: lot.id }).orderBy('started_at').orderBy('id').select('step', 'name', 'qualifier', 'station_id', 'value')
   const rows = firstOnly ? await q.where('first_attempt', true) : await q
   const groups = new Map<string, { all: number[]; byStation: Map<number, number[]> }>()
@@ -57,30 +58,34 @@ async function recompute(firstOnly: boolean) {
   return groups
 }
 
+async function expectSummaryEqualsRecomputation(code: string) {
+  const summary = (await lotSummary(db, code, 'first'))!
+  const groups = await recompute(true, code)
+  expect(summary.capability.length).toBe(groups.size)
+  for (const c of summary.capability) {
+    const g = groups.get(`${c.step}|${c.name}|${c.qualifier}`)!
+    const full = capabilityFromValues(g.all, { lsl: c.lsl, usl: c.usl })
+    let mrSum = 0
+    let mrN = 0
+    for (const values of g.byStation.values()) { const mr = movingRangeSum(values); mrSum += mr.sum; mrN += mr.count }
+    const scale = Math.max(1, Math.abs(full.mean!))
+    expect(c.n).toBe(full.n)
+    expect(c.mean!).toBeCloseTo(full.mean!, 12 - Math.ceil(Math.log10(scale)))
+    expect(c.sigmaOverall! / full.sigmaOverall!).toBeCloseTo(1, 9)
+    expect(c.sigmaWithin! / sigmaFromMovingRange(mrSum, mrN)).toBeCloseTo(1, 9)
+    if (c.cpk !== null) {
+      const within = sigmaFromMovingRange(mrSum, mrN)
+      const expected = Math.min(...[c.usl !== null ? (c.usl - full.mean!) / (3 * within) : Infinity, c.lsl !== null ? (full.mean! - c.lsl) / (3 * within) : Infinity])
+      expect(c.cpk).toBeCloseTo(expected, 9)
+    }
+    expect(c.min).toBe(Math.min(...g.all))
+    expect(c.max).toBe(Math.max(...g.all))
+  }
+}
+
 describe('incremental lot aggregates', () => {
   it('equal a full recomputation after retests and out-of-order arrival', async () => {
-    const summary = (await lotSummary(db, lotCode, 'first'))!
-    const groups = await recompute(true)
-    expect(summary.capability.length).toBe(groups.size)
-    for (const c of summary.capability) {
-      const g = groups.get(`${c.step}|${c.name}|${c.qualifier}`)!
-      const full = capabilityFromValues(g.all, { lsl: c.lsl, usl: c.usl })
-      let mrSum = 0
-      let mrN = 0
-      for (const values of g.byStation.values()) { const mr = movingRangeSum(values); mrSum += mr.sum; mrN += mr.count }
-      const scale = Math.max(1, Math.abs(full.mean!))
-      expect(c.n).toBe(full.n)
-      expect(c.mean!).toBeCloseTo(full.mean!, 12 - Math.ceil(Math.log10(scale)))
-      expect(c.sigmaOverall! / full.sigmaOverall!).toBeCloseTo(1, 9)
-      expect(c.sigmaWithin! / sigmaFromMovingRange(mrSum, mrN)).toBeCloseTo(1, 9)
-      if (c.cpk !== null) {
-        const within = sigmaFromMovingRange(mrSum, mrN)
-        const expected = Math.min(...[c.usl !== null ? (c.usl - full.mean!) / (3 * within) : Infinity, c.lsl !== null ? (full.mean! - c.lsl) / (3 * within) : Infinity])
-        expect(c.cpk).toBeCloseTo(expected, 9)
-      }
-      expect(c.min).toBe(Math.min(...g.all))
-      expect(c.max).toBe(Math.max(...g.all))
-    }
+    await expectSummaryEqualsRecomputation(lotCode)
   })
 
   it('keeps yields equal to counts over the stored runs', async () => {
@@ -130,5 +135,52 @@ describe('rebuilding the aggregates from the stored rows', () => {
       expect(c.sigmaOverall! / b.sigmaOverall!).toBeCloseTo(1, 9)
       expect(c.sigmaWithin! / b.sigmaWithin!).toBeCloseTo(1, 9)
     })
+  })
+})
+
+describe('the queue of runs awaiting the fold', () => {
+  const code = `FOLD-${Date.now().toString(36)}`
+
+  async function postRuns(count: number, seed: number, concurrency: number) {
+    const stations = await db('stations').whereIn('name', ['ATE-T3-01', 'ATE-T3-02']).select('id', 'name')
+    const rand = mulberry32(seed)
+    const base = Date.now() - 86_400_000 + seed * 1000
+    const runs = Array.from({ length: count }, (_, u) => generateRun({ product: tripler, lot: code, serial: `${code}-${seed}-${u}`, step: 'final', startedAt: new Date(base + u * 1000), rand, failRate: 0.1, withTrace: false }))
+    let next = 0
+    await Promise.all(Array.from({ length: concurrency }, async (_, w) => {
+      while (next < runs.length) {
+        const v = validateRun(runs[next++]!)
+        if (!v.ok) throw new Error(JSON.stringify(v.errors))
+        await ingestRun(db, stations[w % stations.length], v.value)
+      }
+    }))
+  }
+
+  it('folds runs stored concurrently with background folds into rows equal to a recomputation', async () => {
+    let storing = true
+    // folds only this lot: other test files running beside this one compare their own lots' fold results exactly
+    const folder = (async () => {
+      while (storing) {
+        const lot = await db('lots').where({ code }).first('id')
+        if (lot) await foldPendingStats(db, { lotIds: [lot.id], background: true })
+        await new Promise((r) => setTimeout(r, 5))
+      }
+    })()
+    await postRuns(80, 1, 8)
+    storing = false
+    await folder
+    await expectSummaryEqualsRecomputation(code)
+    const lot = await db('lots').where({ code }).first('id')
+    expect(await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()).toMatchObject({ n: 0 })
+  })
+
+  it('a rebuild leaves queued runs to the fold, which then counts them once', async () => {
+    await postRuns(20, 2, 4)
+    const lot = await db('lots').where({ code }).first('id')
+    const queued = await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()
+    expect(Number((queued as any).n)).toBe(20)
+    const { rebuildLotAggregates } = await import('../../server/services/analytics/rebuild-aggregates')
+    await rebuildLotAggregates(db, lot.id)
+    await expectSummaryEqualsRecomputation(code)
   })
 })

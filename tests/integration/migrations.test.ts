@@ -31,7 +31,7 @@ describe('migrations', () => {
     const up = await tables()
     expect(up).toEqual(expect.arrayContaining(['users', 'products', 'spec_revisions', 'spec_limits', 'stations', 'station_tokens', 'instruments',
       'lots', 'units', 'test_runs', 'measurements', 'traces', 'shipments', 'shipment_units', 'certificates', 'alert_rules', 'alert_events', 'audit_log',
-      'customers', 'customer_contacts', 'lot_param_stats', 'lot_step_stats', 'unit_steps']))
+      'customers', 'customer_contacts', 'lot_param_stats', 'lot_step_stats', 'lot_stats_pending', 'unit_steps']))
     await db.migrate.rollback({ migrationSource }, true)
     expect(await tables()).toEqual([])
     await db.migrate.latest({ migrationSource })

@@ -42,11 +42,6 @@ export function runsInsertMany(rows: RunRow[]): { sql: string; values: Knex.RawB
   return { sql: RUN_INSERT_SQL.slice(0, RUN_INSERT_SQL.lastIndexOf('VALUES') + 7) + rows.map(() => RUN_TUPLE).join(', '), values: rows.flatMap(runInsertValues) }
 }
 
-// Hot path: plain SQL with placeholders rather than the query builder, which costs more CPU than the insert itself.
-export async function insertRun(trx: Knex, r: RunRow): Promise<number> {
-  const [res] = await trx.raw(RUN_INSERT_SQL, runInsertValues(r))
-  return Number(res.insertId)
-}
 
 export const UNIT_INSERT_SQL = 'INSERT IGNORE INTO units (product_id, lot_id, serial) VALUES (?, ?, ?)'
 
@@ -70,20 +65,29 @@ export function unitStepsUpsertMany(rows: { unitId: number; step: string; attemp
 
 export type MeasurementContext = { lotId: number; stationId: number; step: string; firstAttempt: boolean; startedAt: Date }
 
-const M_TUPLE = `(${new Array(20).fill('?').join(', ')})`
+/** A DATETIME(3) literal in UTC, as the connection's time zone reads it. */
+function utcLiteral(d: Date): string {
+  return `'${d.toISOString().slice(0, 23).replace('T', ' ')}'`
+}
 
-/** One multi-row INSERT for a run's measurements, with the limits applied copied beside each value. */
+/**
+ * One multi-row INSERT for a run's measurements, with the limits applied copied beside each value. The run's own
+ * columns are the same on every row, so they are written into the SQL once, escaped, rather than bound per row.
+ */
 export function measurementsInsert(runId: RunIdRef, ctx: MeasurementContext, ms: JudgedMeasurement[]): { sql: string; values: Knex.RawBinding[] } {
+  const runRef = typeof runId === 'number' ? String(runId) : runId.toSqlString()
+  if (!Number.isInteger(ctx.lotId) || !Number.isInteger(ctx.stationId)) throw new TypeError('lot and station ids must be integers')
+  const tuple = `(${runRef}, ${ctx.lotId}, ${ctx.stationId}, ${mysql.escape(ctx.step)}, ${ctx.firstAttempt ? 1 : 0}, ${utcLiteral(ctx.startedAt)}, ${new Array(14).fill('?').join(', ')})`
   const values: Knex.RawBinding[] = []
   for (const m of ms) {
     const l = m.limit
-    values.push(runId as Knex.RawBinding, ctx.lotId, ctx.stationId, ctx.step, ctx.firstAttempt, ctx.startedAt, m.name, m.qualifier, m.value, m.unit, m.uncertainty,
+    values.push(m.name, m.qualifier, m.value, m.unit, m.uncertainty,
       l ? l.lsl : null, l ? l.usl : null, l ? l.target : null, l ? l.rule : null, l ? l.guardBand : null,
       m.verdict, m.zone, m.derived, m.excessDb)
   }
   return {
     sql: `INSERT INTO measurements (run_id, lot_id, station_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
-      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db) VALUES ${repeatedTuples(M_TUPLE, ms.length)}`,
+      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db) VALUES ${new Array(ms.length).fill(tuple).join(', ')}`,
     values,
   }
 }
@@ -95,11 +99,6 @@ export function measurementsInsertMany(items: { runId: number; ctx: MeasurementC
   return { sql: head + parts.map((p) => p.sql.slice(head.length)).join(', '), values: parts.flatMap((p) => p.values) }
 }
 
-export async function insertMeasurements(trx: Knex, runId: number, ctx: MeasurementContext, ms: JudgedMeasurement[]): Promise<void> {
-  if (!ms.length) return
-  const st = measurementsInsert(runId, ctx, ms)
-  await trx.raw(st.sql, st.values)
-}
 
 /** Creates the unit on first sight and locks it, reading its attempts so far at the step (two statements). */
 export function unitLockStatements(productId: number, lotId: number, serial: string, step: string): { sql: string; values: Knex.RawBinding[] } {
@@ -118,10 +117,13 @@ export function tracesInsert(runId: RunIdRef, traces: { name: string; points: [n
   }
 }
 
-export async function insertTraces(trx: Knex, runId: number, traces: { name: string; points: [number, number][] }[]): Promise<void> {
-  if (!traces.length) return
-  await trx('traces').insert(traces.map((t) => ({ run_id: runId, name: t.name, points: JSON.stringify(t.points) })))
+/** Marks runs as not yet folded into the lot's parameter statistics. */
+export function pendingStatsInsert(rows: { runId: RunIdRef; lotId: number }[]): { sql: string; values: Knex.RawBinding[] } {
+  const values: Knex.RawBinding[] = []
+  for (const r of rows) values.push(r.runId as Knex.RawBinding, r.lotId)
+  return { sql: `INSERT INTO lot_stats_pending (run_id, lot_id) VALUES ${repeatedTuples('(?, ?)', rows.length)}`, values }
 }
+
 
 /** The stored runs with everything a result view shows, by internal id. */
 export async function loadRunsWithMeasurements(db: Knex, runIds: number[]) {

@@ -6,6 +6,7 @@ import { paretoFailures, rolledThroughputYield, wilsonInterval } from '../../../
 import { findLotHeader, paramStats, paramStatsAllAttempts, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
 import { listEffectiveRevisions, revisionAt, type SpecLimit } from '../../database/repositories/spec-lookup'
 import { rebuildMovingRange } from '../ingest/aggregates'
+import { foldPendingStats } from '../ingest/fold-param-stats'
 import { qualifierFields } from '../ingest/run-view'
 
 export type Population = 'first' | 'all'
@@ -38,6 +39,7 @@ export function mergeStationRows(rows: ParamStatsRow[]): Merged[] {
 }
 
 async function firstAttemptStats(db: Knex, lotId: number): Promise<Merged[]> {
+  await foldPendingStats(db, { lotIds: [lotId] })
   let rows = await paramStats(db, lotId)
   const stale = rows.filter((r) => r.mrStale)
   if (stale.length) {

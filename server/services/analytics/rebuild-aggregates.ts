@@ -4,7 +4,8 @@ const PARTITION = 'PARTITION BY step, name, qualifier, station_id'
 
 /**
  * Recomputes a lot's aggregate rows from its stored runs and measurements, in one transaction.
- * For bulk loads and repair; the ingest path keeps the same rows up to date incrementally.
+ * For bulk loads and repair; the ingest path keeps the same rows up to date incrementally. Runs still queued for
+ * the fold are left out here and left in the queue, so the fold adds them once, afterwards.
  */
 export async function rebuildLotAggregates(db: Knex, lotId: number): Promise<void> {
   await db.transaction(async (trx) => {
@@ -23,9 +24,9 @@ export async function rebuildLotAggregates(db: Knex, lotId: number): Promise<voi
            AVG(IF(first_attempt, value, NULL)) OVER (${PARTITION}) AS shift,
            IF(first_attempt, ABS(value - LAG(value) OVER (PARTITION BY step, name, qualifier, station_id, first_attempt ORDER BY started_at, id)), NULL) AS mr,
            IF(first_attempt AND ROW_NUMBER() OVER (PARTITION BY step, name, qualifier, station_id, first_attempt ORDER BY started_at DESC, id DESC) = 1, value, NULL) AS last_value
-         FROM measurements WHERE lot_id = ?
+         FROM measurements WHERE lot_id = ? AND run_id NOT IN (SELECT run_id FROM lot_stats_pending WHERE lot_id = ?)
        ) t
-       GROUP BY step, name, qualifier, station_id`, [lotId, lotId])
+       GROUP BY step, name, qualifier, station_id`, [lotId, lotId, lotId])
     await trx.raw(
       `INSERT INTO lot_step_stats (lot_id, step, station_id, runs, units, first_pass, latest_pass)
        SELECT ?, r.step, r.station_id, COUNT(*), SUM(r.attempt = 1), SUM(r.attempt = 1 AND r.server_verdict = 'pass'),

@@ -6,11 +6,13 @@ import { linearRegression } from '../../../shared/utils/regression'
 import { lotsOfProduct, paramRowsForLots, type ParamKey, type StationStatRow } from '../../database/repositories/analytics-params'
 import type { FieldError } from '../../utils/problem'
 import { rebuildMovingRange } from '../ingest/aggregates'
+import { foldPendingStats } from '../ingest/fold-param-stats'
 import { parseInstant, parseSeriesQuery, resolveSeries } from './series-query'
 import { poolBy, summarise } from './station-rows'
 
-/** Rows whose moving ranges were left stale by a late arrival are rebuilt before they are read. */
+/** Queued runs are folded in and rows whose moving ranges a late arrival left stale are rebuilt, before they are read. */
 export async function freshParamRows(db: Knex, lotIds: number[], key: ParamKey): Promise<StationStatRow[]> {
+  if (lotIds.length) await foldPendingStats(db, { lotIds })
   const rows = await paramRowsForLots(db, lotIds, key)
   const stale = rows.filter((r) => r.mrStale)
   if (!stale.length) return rows

@@ -1,10 +1,10 @@
 import type { Knex } from 'knex'
 import { validateRun, type StationRun } from '../../utils/run-validator'
-import { measurementsInsertMany, runsInsertMany, unitStepsUpsertMany } from '../../database/repositories/runs'
+import { measurementsInsertMany, pendingStatsInsert, runsInsertMany, unitStepsUpsertMany } from '../../database/repositories/runs'
 import { bodyHash } from './canonical'
 import { freshRunView, loadRunView, prepare, RunRejected, runRowFor, touchStation, type Prepared, type StationRef } from './ingest-run'
 import { isStored, postRun, type PostResult } from './post-run'
-import { paramStatsRows, paramStatsStatementMany, stepStatsStatementMany, stepStatsValues } from './aggregates'
+import { stepStatsStatementMany, stepStatsValues } from './aggregates'
 import type { RunView } from './run-view'
 
 export type BatchItemResult =
@@ -18,7 +18,6 @@ type Accepted = {
 
 // keeps each statement well under max_allowed_packet
 const MEASUREMENT_ROWS_PER_STATEMENT = 4000
-const PARAM_ROWS_PER_STATEMENT = 4000
 const TRACE_BYTES_PER_STATEMENT = 2 * 1024 * 1024
 
 const idOf = (item: unknown) => {
@@ -254,11 +253,8 @@ async function writeBatch(db: Knex, station: StationRef, accepted: Accepted[]): 
     const st = stepStatsStatementMany(accepted.map((a) => stepStatsValues(agg(a), a.ctx.judged.verdict, a.previousLatest!)))
     await trx.raw(st.sql, st.values)
 
-    const paramRows = accepted.flatMap((a) => paramStatsRows(agg(a), a.ctx.judged.measurements))
-    for (const part of chunks(paramRows, PARAM_ROWS_PER_STATEMENT)) {
-      const ps = paramStatsStatementMany(part)
-      await trx.raw(ps.sql, ps.values)
-    }
+    const pending = pendingStatsInsert(accepted.map((a) => ({ runId: a.runId!, lotId: a.ctx.lotId })))
+    await trx.raw(pending.sql, pending.values)
   })
   for (const a of accepted) a.view = freshRunView(station, a.run, a.ctx, a.attempt!)
 }

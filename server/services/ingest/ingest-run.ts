@@ -157,7 +157,7 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
  * the second writes the run, its measurements, traces, the unit's step row and the lot aggregates, and commits.
  * Returns the attempt number given to the run.
  */
-const writers = new FifoGate(Number(process.env.TERCET_INGEST_WRITERS || 6))
+const writers = new FifoGate(Number(process.env.TERCET_INGEST_WRITERS || 8))
 
 async function storeRun(db: Knex, station: StationRef, run: StationRun, hash: string, ctx: Prepared): Promise<number> {
   return writers.run(() => withDriverConnection(db, async (send, discard) => {

@@ -28,14 +28,21 @@ export class RunRejected extends Error {
 
 const key = (name: string, q: number) => `${name}@${q}`
 
-function applyLimit(m: Omit<JudgedMeasurement, 'limit' | 'verdict' | 'zone' | 'outOfSpec'>, limit: SpecLimit | undefined): JudgedMeasurement {
-  if (!limit || !hasLimit(limit)) return { ...m, limit: null, verdict: 'info', zone: null, outOfSpec: false }
+type Unjudged = Omit<JudgedMeasurement, 'limit' | 'verdict' | 'zone' | 'outOfSpec'>
+
+// Every judged measurement is built with the same fields in the same order: one object shape for the hot path.
+function judged(m: Unjudged, limit: AppliedLimit | null, verdict: JudgedMeasurement['verdict'], zone: JudgedMeasurement['zone'], outOfSpec: boolean): JudgedMeasurement {
+  return {
+    name: m.name, qualifier: m.qualifier, value: m.value, unit: m.unit, uncertainty: m.uncertainty,
+    limit, verdict, zone, derived: m.derived, excessDb: m.excessDb, outOfSpec,
+  }
+}
+
+function applyLimit(m: Unjudged, limit: SpecLimit | undefined): JudgedMeasurement {
+  if (!limit || !hasLimit(limit)) return judged(m, null, 'info', null, false)
   const j = judge(m.value, { lsl: limit.lsl, usl: limit.usl, rule: limit.rule, defaultUncertainty: limit.defaultUncertainty }, m.uncertainty)
   const outOfSpec = (limit.lsl != null && m.value < limit.lsl) || (limit.usl != null && m.value > limit.usl) || !Number.isFinite(m.value)
-  return {
-    ...m, limit: { lsl: limit.lsl, usl: limit.usl, target: limit.target, rule: limit.rule, guardBand: j.guardBand },
-    verdict: j.verdict, zone: j.zone, outOfSpec,
-  }
+  return judged(m, { lsl: limit.lsl, usl: limit.usl, target: limit.target, rule: limit.rule, guardBand: j.guardBand }, j.verdict, j.zone, outOfSpec)
 }
 
 function jitterPoints(run: StationRun, posted: JudgedMeasurement[]): PhaseNoisePointTuple[] {

@@ -2,9 +2,9 @@
 // and the second committing it; the bench's direct writer sends these very texts, so the two differ only by what
 // the server adds around them.
 import type { Knex } from 'knex'
-import { INSERTED_RUN_ID, measurementsInsert, REMEMBER_RUN_ID, RUN_INSERT_SQL, runInsertValues, tracesInsert, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
+import { INSERTED_RUN_ID, measurementsInsert, pendingStatsInsert, REMEMBER_RUN_ID, RUN_INSERT_SQL, runInsertValues, tracesInsert, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
 import { joinStatements, type Statement } from '../../database/raw-connection'
-import { paramStatsStatement, stepStatsStatement, type AggregateContext } from './aggregates'
+import { stepStatsStatement, type AggregateContext } from './aggregates'
 import type { JudgedMeasurement } from './judge-run'
 
 export { unitLockStatements } from '../../database/repositories/runs'
@@ -26,14 +26,16 @@ export type RunWrite = {
   previousLatest: 'pass' | 'fail' | null
 }
 
-/** The run, its measurements and traces, the unit's step row and the lot aggregates. */
+/**
+ * The run, its measurements and traces, the unit's step row, the lot's yield counters, and the run's place in the
+ * queue of runs whose measurements the parameter statistics have yet to take in (see fold-param-stats).
+ */
 export function runWriteStatements({ row, measurements, traces, previousLatest }: RunWrite): Statement {
   const agg: AggregateContext = { lotId: row.lotId, stationId: row.stationId, step: row.step, attempt: row.attempt, startedAt: row.startedAt }
   const list: (Statement | string)[] = [{ sql: RUN_INSERT_SQL, values: runInsertValues(row) }, REMEMBER_RUN_ID]
   if (measurements.length) list.push(measurementsInsert(INSERTED_RUN_ID, { ...agg, firstAttempt: row.attempt === 1 }, measurements))
   if (traces.length) list.push(tracesInsert(INSERTED_RUN_ID, traces))
   list.push(unitStepUpsert(row.unitId, row.step, row.attempt, row.serverVerdict, INSERTED_RUN_ID), stepStatsStatement(agg, row.serverVerdict, previousLatest))
-  const params = paramStatsStatement(agg, measurements)
-  if (params) list.push(params)
+  list.push(pendingStatsInsert([{ runId: INSERTED_RUN_ID, lotId: row.lotId }]))
   return joinStatements(list as { sql: string; values: Knex.RawBinding[] }[])
 }

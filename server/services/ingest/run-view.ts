@@ -29,10 +29,20 @@ type MeasurementLike = {
 }
 
 export function measurementView(m: MeasurementLike): MeasurementView {
-  return {
-    name: m.name, ...qualifierFields(m.name, m.qualifier), value: m.value, unit: m.unit, uncertainty: m.uncertainty,
-    limit: m.limit, verdict: m.verdict, zone: m.zone, derived: m.derived, excessDb: m.excessDb,
-  }
+  const view: MeasurementView = { name: m.name } as MeasurementView
+  // the qualifier key comes right after the name, as readers of the JSON expect it
+  const kind = qualifierKind(m.name)
+  if (kind === 'offsetHz') view.offsetHz = m.qualifier
+  else if (kind === 'harmonic') view.harmonic = m.qualifier
+  view.value = m.value
+  view.unit = m.unit
+  view.uncertainty = m.uncertainty
+  view.limit = m.limit
+  view.verdict = m.verdict
+  view.zone = m.zone
+  view.derived = m.derived
+  view.excessDb = m.excessDb
+  return view
 }
 
 export function measurementFromRow(r: any): MeasurementLike {

@@ -1,0 +1,62 @@
+// Pure arithmetic of one lot × station parameter row: shifted sums for the moments, min and max, the moving range
+// in time order, and failure counts. The fold applies measurements one by one, exactly as a per-run update would.
+
+export type ParamRowKey = { lotId: number; step: string; name: string; qualifier: number; stationId: number }
+
+export type ParamRow = ParamRowKey & {
+  unit: string
+  /** first-attempt values counted */
+  n: number
+  /** the value the sums are taken about (the first value seen), so that large offsets lose no precision */
+  shift: number
+  sumD: number
+  sumSqD: number
+  min: number
+  max: number
+  mrSum: number
+  mrN: number
+  lastValue: number | null
+  lastStartedAt: number | null
+  /** a value arrived older than the latest one: the moving range must be recomputed from the measurements */
+  mrStale: boolean
+  outOfSpec: number
+  failAll: number
+}
+
+export type StoredValue = {
+  value: number; unit: string; firstAttempt: boolean; startedAt: number; id: number
+  lsl: number | null; usl: number | null; failed: boolean
+}
+
+/** A fresh row for a parameter first seen with this value. */
+export function emptyParamRow(key: ParamRowKey, first: StoredValue): ParamRow {
+  return {
+    ...key, unit: first.unit, n: 0, shift: first.value, sumD: 0, sumSqD: 0, min: first.value, max: first.value,
+    mrSum: 0, mrN: 0, lastValue: null, lastStartedAt: null, mrStale: false, outOfSpec: 0, failAll: 0,
+  }
+}
+
+/** Adds one stored measurement to the row, in place. Only first attempts enter the sample; every failure counts. */
+export function addValue(row: ParamRow, m: StoredValue): void {
+  if (!Number.isFinite(m.value)) return
+  if (m.failed) row.failAll++
+  if (!m.firstAttempt) return
+  if ((m.lsl != null && m.value < m.lsl) || (m.usl != null && m.value > m.usl)) row.outOfSpec++
+  if (row.n === 0) { row.min = m.value; row.max = m.value } else { row.min = Math.min(row.min, m.value); row.max = Math.max(row.max, m.value) }
+  const d = m.value - row.shift
+  row.sumD += d
+  row.sumSqD += d * d
+  row.n++
+  if (row.lastStartedAt === null || m.startedAt >= row.lastStartedAt) {
+    if (row.lastStartedAt !== null && row.lastValue !== null) { row.mrSum += Math.abs(m.value - row.lastValue); row.mrN++ }
+    row.lastValue = m.value
+    row.lastStartedAt = m.startedAt
+  } else {
+    row.mrStale = true
+  }
+}
+
+/** Orders values as the moving range reads them: by start time, then by storage order. */
+export function inTimeOrder(a: StoredValue, b: StoredValue): number {
+  return a.startedAt - b.startedAt || a.id - b.id
+}
