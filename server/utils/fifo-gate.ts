@@ -22,6 +22,4 @@ export class FifoGate {
       else this.active--
     }
   }
-
-  get waiting(): number { return this.queue.length }
 }

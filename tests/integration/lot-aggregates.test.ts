@@ -88,6 +88,15 @@ describe('incremental lot aggregates', () => {
     await expectSummaryEqualsRecomputation(lotCode)
   })
 
+  it('copies the lot, station, step, start and first-attempt flag of each run onto its measurements', async () => {
+    const lot = await db('lots').where({ code: lotCode }).first('id')
+    const [rows] = await db.raw(`SELECT COUNT(*) AS bad FROM measurements m JOIN test_runs r ON r.id = m.run_id
+      WHERE r.lot_id = ? AND (m.started_at <> r.started_at OR m.lot_id <> r.lot_id OR m.station_id <> r.station_id OR m.step <> r.step
+        OR m.first_attempt <> (r.attempt = 1))`, [lot.id])
+    expect(Number(rows[0].bad)).toBe(0)
+    expect(Number((await db('measurements').where({ lot_id: lot.id }).count({ n: '*' }).first() as any).n)).toBeGreaterThan(500)
+  })
+
   it('keeps yields equal to counts over the stored runs', async () => {
     const summary = (await lotSummary(db, lotCode, 'first'))!
     const lot = await db('lots').where({ code: lotCode }).first('id')
