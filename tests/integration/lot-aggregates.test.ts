@@ -184,12 +184,20 @@ describe('the queue of runs awaiting the fold', () => {
   })
 
   it('a rebuild leaves queued runs to the fold, which then counts them once', async () => {
-    await postRuns(20, 2, 4)
-    const lot = await db('lots').where({ code }).first('id')
-    const queued = await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()
-    expect(Number((queued as any).n)).toBe(20)
-    const { rebuildLotAggregates } = await import('../../server/services/analytics/rebuild-aggregates')
-    await rebuildLotAggregates(db, lot.id)
-    await expectSummaryEqualsRecomputation(code)
+    // holding the background folders' lock keeps a server running beside this test from folding the runs first
+    await db.transaction(async (hold) => {
+      await hold.raw("SELECT GET_LOCK('tercet_param_stats_fold', 30)")
+      try {
+        await postRuns(20, 2, 4)
+        const lot = await db('lots').where({ code }).first('id')
+        const queued = await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()
+        expect(Number((queued as any).n)).toBe(20)
+        const { rebuildLotAggregates } = await import('../../server/services/analytics/rebuild-aggregates')
+        await rebuildLotAggregates(db, lot.id)
+        await expectSummaryEqualsRecomputation(code)
+      } finally {
+        await hold.raw("DO RELEASE_LOCK('tercet_param_stats_fold')")
+      }
+    })
   })
 })

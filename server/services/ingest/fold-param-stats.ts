@@ -11,28 +11,42 @@ const RETRIES = 3
 
 const keyText = (k: ParamRowKey) => `${k.lotId}\u0000${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.stationId}`
 
+const BACKGROUND_LOCK = 'tercet_param_stats_fold'
+
 /** One transaction: claim queued runs, add their measurements to the rows, drop them from the queue. */
 async function foldOnce(db: Knex, opts: { lotIds?: number[]; skipLocked: boolean }): Promise<number> {
   return db.transaction(async (trx) => {
-    const pending = await claimPendingRuns(trx, { limit: RUNS_PER_FOLD, lotIds: opts.lotIds, skipLocked: opts.skipLocked })
-    if (!pending.length) return 0
-    const runIds = pending.map((p) => p.runId)
-    const values = await valuesOfRuns(trx, runIds)
-    const rows = new Map<string, ParamRow>()
-    for (const r of await lockParamRows(trx, [...new Set(pending.map((p) => p.lotId))])) rows.set(keyText(r), r)
-    const touched = new Set<string>()
-    values.sort((a, b) => inTimeOrder(a.value, b.value))
-    for (const { key, value } of values) {
-      const k = keyText(key)
-      let row = rows.get(k)
-      if (!row) { row = emptyParamRow(key, value); rows.set(k, row) }
-      addValue(row, value)
-      touched.add(k)
+    if (!opts.skipLocked) return foldIn(trx, opts)
+    // one background folder at a time across processes: two would lock the same lot rows and deadlock
+    const [[got]] = await trx.raw('SELECT GET_LOCK(?, 0) AS got', [BACKGROUND_LOCK])
+    if (Number(got.got) !== 1) return 0
+    try {
+      return await foldIn(trx, opts)
+    } finally {
+      await trx.raw('DO RELEASE_LOCK(?)', [BACKGROUND_LOCK])
     }
-    await writeParamRows(trx, [...touched].map((k) => rows.get(k)!))
-    await forgetPendingRuns(trx, runIds)
-    return pending.length
   })
+}
+
+async function foldIn(trx: Knex.Transaction, opts: { lotIds?: number[]; skipLocked: boolean }): Promise<number> {
+  const pending = await claimPendingRuns(trx, { limit: RUNS_PER_FOLD, lotIds: opts.lotIds, skipLocked: opts.skipLocked })
+  if (!pending.length) return 0
+  const runIds = pending.map((p) => p.runId)
+  const values = await valuesOfRuns(trx, runIds)
+  const rows = new Map<string, ParamRow>()
+  for (const r of await lockParamRows(trx, [...new Set(pending.map((p) => p.lotId))])) rows.set(keyText(r), r)
+  const touched = new Set<string>()
+  values.sort((a, b) => inTimeOrder(a.value, b.value))
+  for (const { key, value } of values) {
+    const k = keyText(key)
+    let row = rows.get(k)
+    if (!row) { row = emptyParamRow(key, value); rows.set(k, row) }
+    addValue(row, value)
+    touched.add(k)
+  }
+  await writeParamRows(trx, [...touched].map((k) => rows.get(k)!))
+  await forgetPendingRuns(trx, runIds)
+  return pending.length
 }
 
 /**
