@@ -43,15 +43,3 @@ export function joinStatements(statements: (Statement | string)[]): Statement {
   return { sql, values }
 }
 
-const tupleLists = new Map<string, string>()
-
-/** `count` copies of a placeholder tuple joined by commas, remembered per shape (runs repeat a few counts). */
-export function repeatedTuples(tuple: string, count: number): string {
-  const key = `${count}\u0000${tuple}`
-  let text = tupleLists.get(key)
-  if (text === undefined) {
-    text = new Array(count).fill(tuple).join(', ')
-    if (tupleLists.size < 2000) tupleLists.set(key, text)
-  }
-  return text
-}

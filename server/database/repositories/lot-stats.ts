@@ -1,4 +1,6 @@
 import type { Knex } from 'knex'
+import type { ParamRow } from '../../services/ingest/param-stats-merge'
+import { paramRowFromDb } from './param-stats'
 
 export type LotHeader = {
   id: number; code: string; status: string; plannedQty: number | null; createdAt: Date
@@ -24,19 +26,12 @@ export async function stepStats(db: Knex, lotId: number): Promise<StepStatsRow[]
   return rows.map((r: any) => ({ step: r.step, runs: Number(r.runs), units: Number(r.units), firstPass: Number(r.first_pass), latestPass: Number(r.latest_pass) }))
 }
 
-export type ParamStatsRow = {
-  step: string; name: string; qualifier: number; stationId: number; unit: string; n: number; shift: number; sumD: number; sumSqD: number
-  min: number; max: number; mrSum: number; mrN: number; mrStale: boolean; outOfSpec: number; failAll: number
-}
+/** What the readers merge: a parameter row without its lot and its last-value bookkeeping. */
+export type ParamStatsRow = Omit<ParamRow, 'lotId' | 'lastValue' | 'lastStartedAt'>
 
 /** One row per (step, name, qualifier, station): the caller merges the stations. */
 export async function paramStats(db: Knex, lotId: number): Promise<ParamStatsRow[]> {
-  const rows = await db('lot_param_stats').where({ lot_id: lotId })
-  return rows.map((r: any) => ({
-    step: r.step, name: r.name, qualifier: r.qualifier, stationId: r.station_id, unit: r.unit, n: r.n, shift: r.shift,
-    sumD: r.sum_d, sumSqD: r.sumsq_d, min: r.min_value, max: r.max_value, mrSum: r.mr_sum, mrN: r.mr_n,
-    mrStale: !!r.mr_stale, outOfSpec: r.out_of_spec, failAll: r.fail_all,
-  }))
+  return (await db('lot_param_stats').where({ lot_id: lotId })).map(paramRowFromDb)
 }
 
 /** Every attempt, straight from the measurements: the population switch and the reference the aggregates are tested against. */

@@ -42,17 +42,21 @@ export async function valuesOfRuns(trx: Knex.Transaction, runIds: number[]): Pro
   }))
 }
 
-/** The parameter rows of the given lots, locked for the fold's update. */
-export async function lockParamRows(trx: Knex.Transaction, lotIds: number[]): Promise<ParamRow[]> {
-  if (!lotIds.length) return []
-  const rows = await trx('lot_param_stats').whereIn('lot_id', lotIds).forUpdate()
-  return rows.map((r: any) => ({
+/** One lot_param_stats row as the fold and the readers use it. */
+export function paramRowFromDb(r: any): ParamRow {
+  return {
     lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), stationId: Number(r.station_id), unit: r.unit,
     n: Number(r.n), shift: Number(r.shift), sumD: Number(r.sum_d), sumSqD: Number(r.sumsq_d), min: Number(r.min_value), max: Number(r.max_value),
     mrSum: Number(r.mr_sum), mrN: Number(r.mr_n), lastValue: r.last_value == null ? null : Number(r.last_value),
     lastStartedAt: r.last_started_at == null ? null : new Date(r.last_started_at).getTime(), mrStale: !!r.mr_stale,
     outOfSpec: Number(r.out_of_spec), failAll: Number(r.fail_all),
-  }))
+  }
+}
+
+/** The parameter rows of the given lots, locked for the fold's update. */
+export async function lockParamRows(trx: Knex.Transaction, lotIds: number[]): Promise<ParamRow[]> {
+  if (!lotIds.length) return []
+  return (await trx('lot_param_stats').whereIn('lot_id', lotIds).forUpdate()).map(paramRowFromDb)
 }
 
 const COLUMNS = ['lot_id', 'step', 'name', 'qualifier', 'station_id', 'unit', 'n', 'shift', 'sum_d', 'sumsq_d', 'min_value', 'max_value',

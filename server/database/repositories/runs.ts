@@ -1,7 +1,6 @@
 import type { Knex } from 'knex'
 import mysql from 'mysql2'
 import type { JudgedMeasurement } from '../../services/ingest/judge-run'
-import { repeatedTuples } from '../raw-connection'
 
 /** A run's id as a number, or the id of the run inserted just before in the same round trip. */
 export type RunIdRef = number | { toSqlString(): string }
@@ -121,7 +120,7 @@ export function tracesInsert(runId: RunIdRef, traces: { name: string; points: [n
 export function pendingStatsInsert(rows: { runId: RunIdRef; lotId: number }[]): { sql: string; values: Knex.RawBinding[] } {
   const values: Knex.RawBinding[] = []
   for (const r of rows) values.push(r.runId as Knex.RawBinding, r.lotId)
-  return { sql: `INSERT INTO lot_stats_pending (run_id, lot_id) VALUES ${repeatedTuples('(?, ?)', rows.length)}`, values }
+  return { sql: `INSERT INTO lot_stats_pending (run_id, lot_id) VALUES ${rows.map(() => '(?, ?)').join(', ')}`, values }
 }
 
 

@@ -152,13 +152,13 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
   }
 }
 
-/**
- * One transaction in two round trips: the first creates or locks the unit and reads its attempts at the step,
- * the second writes the run, its measurements, traces, the unit's step row and the lot aggregates, and commits.
- * Returns the attempt number given to the run.
- */
 const writers = new FifoGate(Number(process.env.TERCET_INGEST_WRITERS || 8))
 
+/**
+ * One transaction in two round trips, in one of the process's write slots: the first creates or locks the unit and
+ * reads its attempts at the step, the second writes the run and its rows (see run-statements) and commits.
+ * Returns the attempt number given to the run.
+ */
 async function storeRun(db: Knex, station: StationRef, run: StationRun, hash: string, ctx: Prepared): Promise<number> {
   return writers.run(() => withDriverConnection(db, async (send, discard) => {
     try {

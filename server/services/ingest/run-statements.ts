@@ -1,7 +1,6 @@
 // The SQL of storing one run. The single-run writer sends it as two round trips, the first opening the transaction
 // and the second committing it; the bench's direct writer sends these very texts, so the two differ only by what
 // the server adds around them.
-import type { Knex } from 'knex'
 import { INSERTED_RUN_ID, measurementsInsert, pendingStatsInsert, REMEMBER_RUN_ID, RUN_INSERT_SQL, runInsertValues, tracesInsert, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
 import { joinStatements, type Statement } from '../../database/raw-connection'
 import { stepStatsStatement, type AggregateContext } from './aggregates'
@@ -37,5 +36,5 @@ export function runWriteStatements({ row, measurements, traces, previousLatest }
   if (traces.length) list.push(tracesInsert(INSERTED_RUN_ID, traces))
   list.push(unitStepUpsert(row.unitId, row.step, row.attempt, row.serverVerdict, INSERTED_RUN_ID), stepStatsStatement(agg, row.serverVerdict, previousLatest))
   list.push(pendingStatsInsert([{ runId: INSERTED_RUN_ID, lotId: row.lotId }]))
-  return joinStatements(list as { sql: string; values: Knex.RawBinding[] }[])
+  return joinStatements(list)
 }
