@@ -46,8 +46,9 @@ export function yieldText(y: { p: number; lo: number; hi: number } | null | unde
   return `${percent(y.p)} (${(100 * y.lo).toFixed(1)}–${(100 * y.hi).toFixed(1)})`
 }
 
+/** Capability indices to two decimals, with the same minus sign as other numbers and no "−0.00". */
 export function index(v: number | null | undefined): string {
-  return v === null || v === undefined || !Number.isFinite(v) ? DASH : v.toFixed(2)
+  return fixed(v, 2)
 }
 
 export function ppm(v: number | null | undefined): string {
