@@ -11,16 +11,17 @@ export type SendStatements = (sql: string, values?: unknown[]) => Promise<any>
 
 /**
  * Runs `work` on one pooled connection and gives it back afterwards. A connection whose state is unknown
- * (a failed ROLLBACK) is marked so that the pool drops it instead of lending it again.
+ * (a failed ROLLBACK) is marked so that the pool drops it instead of lending it again. `connection` can be handed
+ * to `db.transaction(scope, { connection })` for a Knex transaction on the same session.
  */
-export async function withDriverConnection<T>(db: Knex, work: (send: SendStatements, discard: () => void) => Promise<T>): Promise<T> {
+export async function withDriverConnection<T>(db: Knex, work: (send: SendStatements, discard: () => void, connection: unknown) => Promise<T>): Promise<T> {
   const conn = (await db.client.acquireConnection()) as DriverConnection
   const send: SendStatements = (sql, values) => new Promise((done, fail) => {
     conn.query({ sql }, values, (err, result) => (err ? fail(err) : done(result)))
   })
   const discard = () => { conn.__knex__disposed = new Error('connection left in an unknown transaction state') }
   try {
-    return await work(send, discard)
+    return await work(send, discard, conn)
   } finally {
     await db.client.releaseConnection(conn)
   }

@@ -2,7 +2,7 @@ import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createKnex, connectionFromEnv } from '../../server/database/connection'
 import { ingestRun } from '../../server/services/ingest/ingest-run'
-import { foldPendingStats } from '../../server/services/ingest/fold-param-stats'
+import { foldPendingStats, freshenLotStats } from '../../server/services/ingest/fold-param-stats'
 import { lotSummary } from '../../server/services/analytics/lot-summary'
 import { validateRun } from '../../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../../fixtures/demo-catalogue'
@@ -150,11 +150,11 @@ describe('rebuilding the aggregates from the stored rows', () => {
 describe('the queue of runs awaiting the fold', () => {
   const code = `FOLD-${Date.now().toString(36)}`
 
-  async function postRuns(count: number, seed: number, concurrency: number) {
+  async function postRuns(count: number, seed: number, concurrency: number, lot = code) {
     const stations = await db('stations').whereIn('name', ['ATE-T3-01', 'ATE-T3-02']).select('id', 'name')
     const rand = mulberry32(seed)
     const base = Date.now() - 86_400_000 + seed * 1000
-    const runs = Array.from({ length: count }, (_, u) => generateRun({ product: tripler, lot: code, serial: `${code}-${seed}-${u}`, step: 'final', startedAt: new Date(base + u * 1000), rand, failRate: 0.1, withTrace: false }))
+    const runs = Array.from({ length: count }, (_, u) => generateRun({ product: tripler, lot, serial: `${lot}-${seed}-${u}`, step: 'final', startedAt: new Date(base + u * 1000), rand, failRate: 0.1, withTrace: false }))
     let next = 0
     await Promise.all(Array.from({ length: concurrency }, async (_, w) => {
       while (next < runs.length) {
@@ -194,10 +194,51 @@ describe('the queue of runs awaiting the fold', () => {
         expect(Number((queued as any).n)).toBe(20)
         const { rebuildLotAggregates } = await import('../../server/services/analytics/rebuild-aggregates')
         await rebuildLotAggregates(db, lot.id)
-        await expectSummaryEqualsRecomputation(code)
       } finally {
         await hold.raw("DO RELEASE_LOCK('tercet_param_stats_fold')")
       }
     })
+    // the summary folds the queued runs (unless a background folder got there first) and must count them once
+    await expectSummaryEqualsRecomputation(code)
+  })
+
+  const queuedIn = async (lotCode: string) => {
+    const lot = await db('lots').where({ code: lotCode }).first('id')
+    return Number(((await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()) as any).n)
+  }
+
+  it('a background fold gives way to a fold in progress, and a reader waits for it', async () => {
+    const waiting = `${code}-W`
+    let reader: Promise<void> | undefined
+    await db.transaction(async (hold) => {
+      await hold.raw("SELECT GET_LOCK('tercet_param_stats_fold', 30)")
+      try {
+        await postRuns(6, 3, 2, waiting)
+        const lot = await db('lots').where({ code: waiting }).first('id')
+        expect(await foldPendingStats(db, { lotIds: [lot.id], background: true })).toBe(0)
+        let done = false
+        reader = freshenLotStats(db, [lot.id]).then(() => { done = true })
+        await new Promise((r) => setTimeout(r, 400))
+        expect(done).toBe(false)
+        expect(await queuedIn(waiting)).toBe(6)
+      } finally {
+        await hold.raw("DO RELEASE_LOCK('tercet_param_stats_fold')")
+      }
+    })
+    await reader
+    expect(await queuedIn(waiting)).toBe(0)
+    await expectSummaryEqualsRecomputation(waiting)
+  })
+
+  it('readers folding new lots side by side count every run once', async () => {
+    // fresh lots: every fold inserts new statistics rows, next to each other in the table
+    const lots = Array.from({ length: 8 }, (_, i) => `${code}-N${i}`)
+    await Promise.all(lots.map((lot, i) => postRuns(3, 20 + i, 1, lot)))
+    const ids = await Promise.all(lots.map(async (c) => (await db('lots').where({ code: c }).first('id')).id as number))
+    await Promise.all(ids.map((id) => freshenLotStats(db, [id])))
+    for (const lot of lots) {
+      expect(await queuedIn(lot)).toBe(0)
+      await expectSummaryEqualsRecomputation(lot)
+    }
   })
 })

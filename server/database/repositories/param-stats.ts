@@ -4,14 +4,10 @@ import type { ParamRow, ParamRowKey, StoredValue } from '../../services/ingest/p
 
 export type PendingRun = { runId: number; lotId: number }
 
-/**
- * Locks up to `limit` queued runs, oldest first. `skipLocked` lets a background folder pass over runs another
- * folder holds; a reader waits for them instead, so that what it reads afterwards includes them.
- */
-export async function claimPendingRuns(trx: Knex.Transaction, opts: { limit: number; lotIds?: number[]; skipLocked: boolean }): Promise<PendingRun[]> {
+/** Locks up to `limit` queued runs, oldest first (the caller holds the statistics lock). */
+export async function claimPendingRuns(trx: Knex.Transaction, opts: { limit: number; lotIds?: number[] }): Promise<PendingRun[]> {
   let q = trx('lot_stats_pending').orderBy('run_id').limit(opts.limit).forUpdate()
   if (opts.lotIds) q = q.whereIn('lot_id', opts.lotIds)
-  if (opts.skipLocked) q = q.skipLocked()
   const rows = await q.select('run_id', 'lot_id')
   return rows.map((r: any) => ({ runId: Number(r.run_id), lotId: Number(r.lot_id) }))
 }
@@ -20,6 +16,13 @@ export async function anyPendingRuns(db: Knex, lotIds?: number[]): Promise<boole
   let q = db('lot_stats_pending').first('run_id')
   if (lotIds) q = q.whereIn('lot_id', lotIds)
   return (await q) !== undefined
+}
+
+/** Rows of the given lots whose moving range must be recomputed from the measurements. */
+export async function staleParamRowKeys(db: Knex, lotIds: number[]): Promise<ParamRowKey[]> {
+  if (!lotIds.length) return []
+  const rows = await db('lot_param_stats').whereIn('lot_id', lotIds).andWhere('mr_stale', true).select('lot_id', 'step', 'name', 'qualifier', 'station_id')
+  return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), stationId: Number(r.station_id) }))
 }
 
 export async function forgetPendingRuns(trx: Knex.Transaction, runIds: number[]): Promise<void> {

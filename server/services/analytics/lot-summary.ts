@@ -5,8 +5,7 @@ import { emptyMoments, mergeMoments, momentsFromShiftedSums, stdDev } from '../.
 import { paretoFailures, rolledThroughputYield, wilsonInterval } from '../../../shared/utils/yield'
 import { findLotHeader, paramStats, paramStatsAllAttempts, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
 import { listEffectiveRevisions, revisionAt, type SpecLimit } from '../../database/repositories/spec-lookup'
-import { rebuildMovingRange } from '../ingest/aggregates'
-import { foldPendingStats } from '../ingest/fold-param-stats'
+import { freshenLotStats } from '../ingest/fold-param-stats'
 import { qualifierFields } from '../ingest/run-view'
 
 export type Population = 'first' | 'all'
@@ -39,14 +38,8 @@ export function mergeStationRows(rows: ParamStatsRow[]): Merged[] {
 }
 
 async function firstAttemptStats(db: Knex, lotId: number): Promise<Merged[]> {
-  await foldPendingStats(db, { lotIds: [lotId] })
-  let rows = await paramStats(db, lotId)
-  const stale = rows.filter((r) => r.mrStale)
-  if (stale.length) {
-    for (const r of stale) await rebuildMovingRange(db, { lotId, step: r.step, name: r.name, qualifier: r.qualifier, stationId: r.stationId })
-    rows = await paramStats(db, lotId)
-  }
-  return mergeStationRows(rows)
+  await freshenLotStats(db, [lotId])
+  return mergeStationRows(await paramStats(db, lotId))
 }
 
 async function allAttemptStats(db: Knex, lotId: number): Promise<Merged[]> {

@@ -4,7 +4,7 @@ import { histogram, quantileSorted } from '../../../shared/utils/percentiles'
 import { firstAttemptValues, lotRef, qualifiersOf } from '../../database/repositories/analytics-params'
 import { listEffectiveRevisions, revisionAt } from '../../database/repositories/spec-lookup'
 import { problem } from '../../utils/problem'
-import { foldPendingStats } from '../ingest/fold-param-stats'
+import { freshenLotStats } from '../ingest/fold-param-stats'
 
 /** Most recent first attempts read per offset; beyond this the view says it is a sample. */
 export const VALUES_PER_OFFSET_CAP = 20_000
@@ -31,7 +31,7 @@ export async function lotPhaseNoise(db: Knex, code: string, query: Record<string
   const revision = revisionAt(await listEffectiveRevisions(db, lot.productId), now)
   const limits = (revision?.limits ?? []).filter((l) => l.step === step)
   const mask = limits.filter((l) => l.name === 'phase_noise')
-  await foldPendingStats(db, { lotIds: [lot.id] })
+  await freshenLotStats(db, [lot.id])
   const offsets = [...new Set([...(await qualifiersOf(db, lot.id, step, 'phase_noise')), ...mask.map((l) => l.qualifier)])].sort((a, b) => a - b)
 
   let truncated = false

@@ -5,18 +5,13 @@ import { individualsLimits, westernElectricHits } from '../../../shared/utils/co
 import { linearRegression } from '../../../shared/utils/regression'
 import { lotsOfProduct, paramRowsForLots, type ParamKey, type StationStatRow } from '../../database/repositories/analytics-params'
 import type { FieldError } from '../../utils/problem'
-import { rebuildMovingRange } from '../ingest/aggregates'
-import { foldPendingStats } from '../ingest/fold-param-stats'
+import { freshenLotStats } from '../ingest/fold-param-stats'
 import { parseInstant, parseSeriesQuery, resolveSeries } from './series-query'
 import { poolBy, summarise } from './station-rows'
 
-/** Queued runs are folded in and rows whose moving ranges a late arrival left stale are rebuilt, before they are read. */
+/** The lots' rows of one parameter, with every stored run folded in first. */
 export async function freshParamRows(db: Knex, lotIds: number[], key: ParamKey): Promise<StationStatRow[]> {
-  if (lotIds.length) await foldPendingStats(db, { lotIds })
-  const rows = await paramRowsForLots(db, lotIds, key)
-  const stale = rows.filter((r) => r.mrStale)
-  if (!stale.length) return rows
-  for (const r of stale) await rebuildMovingRange(db, { lotId: r.lotId, step: key.step, name: key.name, qualifier: key.qualifier, stationId: r.stationId })
+  await freshenLotStats(db, lotIds)
   return paramRowsForLots(db, lotIds, key)
 }
 

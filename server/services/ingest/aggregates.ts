@@ -2,6 +2,8 @@
 // One row per station keeps concurrent stations off each other's rows; readers add the station rows together.
 // The parameter statistics themselves are kept by fold-param-stats.
 import type { Knex } from 'knex'
+import type { ParamRowKey } from './param-stats-merge'
+import type { BeginTransaction } from './stats-lock'
 
 export type AggregateContext = { lotId: number; stationId: number; step: string; attempt: number; startedAt: Date }
 
@@ -29,9 +31,9 @@ export function stepStatsStatementMany(rows: Knex.RawBinding[][]): Statement {
   return { sql: STEP_STATS_HEAD + rows.map(() => STEP_STATS_TUPLE).join(', ') + STEP_STATS_TAIL, values: rows.flat() }
 }
 
-/** Recomputes the moving-range terms of one station row from the measurements, after a late arrival. */
-export async function rebuildMovingRange(db: Knex, key: { lotId: number; step: string; name: string; qualifier: number; stationId: number }): Promise<void> {
-  await db.transaction(async (trx) => {
+/** Recomputes the moving-range terms of one station row from the measurements, after a late arrival (under the statistics lock). */
+export async function rebuildMovingRange(begin: BeginTransaction, key: ParamRowKey): Promise<void> {
+  await begin(async (trx) => {
     const row = await trx('lot_param_stats').where({ lot_id: key.lotId, step: key.step, name: key.name, qualifier: key.qualifier, station_id: key.stationId }).forUpdate().first('mr_stale')
     if (!row?.mr_stale) return
     // runs still waiting to be folded are left to the fold, which applies them after these

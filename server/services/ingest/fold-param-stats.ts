@@ -3,33 +3,22 @@
 // database updates each row once per fold instead of once per run. Readers fold their lot first, so what they show
 // includes every stored run.
 import type { Knex } from 'knex'
-import { anyPendingRuns, claimPendingRuns, forgetPendingRuns, lockParamRows, valuesOfRuns, writeParamRows } from '../../database/repositories/param-stats'
+import { anyPendingRuns, claimPendingRuns, forgetPendingRuns, lockParamRows, staleParamRowKeys, valuesOfRuns, writeParamRows } from '../../database/repositories/param-stats'
+import { problem } from '../../utils/problem'
+import { rebuildMovingRange } from './aggregates'
+import { type BeginTransaction, STATS_LOCK_BUSY, withStatsLock } from './stats-lock'
 import { addValue, emptyParamRow, inTimeOrder, type ParamRow, type ParamRowKey } from './param-stats-merge'
 
 const RUNS_PER_FOLD = 500
 const RETRIES = 3
+// a reader waits this long for a fold in progress; a slice of 500 runs takes well under a second
+const READER_WAIT_SECONDS = 30
 
 const keyText = (k: ParamRowKey) => `${k.lotId}\u0000${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.stationId}`
 
-const BACKGROUND_LOCK = 'tercet_param_stats_fold'
-
 /** One transaction: claim queued runs, add their measurements to the rows, drop them from the queue. */
-async function foldOnce(db: Knex, opts: { lotIds?: number[]; skipLocked: boolean }): Promise<number> {
-  return db.transaction(async (trx) => {
-    if (!opts.skipLocked) return foldIn(trx, opts)
-    // one background folder at a time across processes: two would lock the same lot rows and deadlock
-    const [[got]] = await trx.raw('SELECT GET_LOCK(?, 0) AS got', [BACKGROUND_LOCK])
-    if (Number(got.got) !== 1) return 0
-    try {
-      return await foldIn(trx, opts)
-    } finally {
-      await trx.raw('DO RELEASE_LOCK(?)', [BACKGROUND_LOCK])
-    }
-  })
-}
-
-async function foldIn(trx: Knex.Transaction, opts: { lotIds?: number[]; skipLocked: boolean }): Promise<number> {
-  const pending = await claimPendingRuns(trx, { limit: RUNS_PER_FOLD, lotIds: opts.lotIds, skipLocked: opts.skipLocked })
+async function foldIn(trx: Knex.Transaction, lotIds: number[] | undefined): Promise<number> {
+  const pending = await claimPendingRuns(trx, { limit: RUNS_PER_FOLD, lotIds })
   if (!pending.length) return 0
   const runIds = pending.map((p) => p.runId)
   const values = await valuesOfRuns(trx, runIds)
@@ -49,16 +38,12 @@ async function foldIn(trx: Knex.Transaction, opts: { lotIds?: number[]; skipLock
   return pending.length
 }
 
-/**
- * Folds every queued run (of the given lots, or all), waiting for runs another folder holds unless `background`.
- * Returns how many runs were folded.
- */
-export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; background?: boolean } = {}): Promise<number> {
-  if (!(await anyPendingRuns(db, opts.lotIds))) return 0
+/** Folds slices of the queue until it is empty, retrying a slice that lost a deadlock. */
+async function foldAll(begin: BeginTransaction, lotIds: number[] | undefined): Promise<number> {
   let total = 0
   for (let tries = 0; ;) {
     try {
-      const n = await foldOnce(db, { lotIds: opts.lotIds, skipLocked: !!opts.background })
+      const n = await begin((trx) => foldIn(trx, lotIds))
       total += n
       if (n < RUNS_PER_FOLD) return total
     } catch (e: any) {
@@ -66,4 +51,37 @@ export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; back
       throw e
     }
   }
+}
+
+function busy(): never {
+  throw problem(503, 'The lot statistics are being updated; retry in a moment.', { headers: { 'Retry-After': '2' } })
+}
+
+/**
+ * Folds every queued run (of the given lots, or all). A `background` fold gives way when another fold is running;
+ * any other waits for it, so that what its caller reads afterwards includes every stored run.
+ * Returns how many runs were folded.
+ */
+export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; background?: boolean } = {}): Promise<number> {
+  if (!(await anyPendingRuns(db, opts.lotIds))) return 0
+  const folded = await withStatsLock(db, opts.background ? 0 : READER_WAIT_SECONDS, (begin) => foldAll(begin, opts.lotIds))
+  if (folded !== STATS_LOCK_BUSY) return folded
+  if (opts.background) return 0
+  busy()
+}
+
+/**
+ * Brings the lots' parameter rows up to date before a reader reads them: queued runs are folded in and moving
+ * ranges that a late arrival left stale are recomputed, all under the one statistics lock.
+ */
+export async function freshenLotStats(db: Knex, lotIds: number[]): Promise<void> {
+  if (!lotIds.length) return
+  const [queued, stale] = await Promise.all([anyPendingRuns(db, lotIds), staleParamRowKeys(db, lotIds)])
+  if (!queued && !stale.length) return
+  const done = await withStatsLock(db, READER_WAIT_SECONDS, async (begin) => {
+    if (queued) await foldAll(begin, lotIds)
+    // the fold may itself have found late arrivals
+    for (const key of queued ? await staleParamRowKeys(db, lotIds) : stale) await rebuildMovingRange(begin, key)
+  })
+  if (done === STATS_LOCK_BUSY) busy()
 }
