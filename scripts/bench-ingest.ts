@@ -1,6 +1,8 @@
 // npm run bench:ingest [-- --no-build] — throughput and latency of station ingest against the same rows written
 // straight through mysql2, on a fresh bench database and the built server, loopback only.
 // Prints one JSON line per endpoint on stdout; progress goes to stderr.
+// The single-run raw writer runs half its time just before and half just after the HTTP stage; every stage's rate
+// counts the time until its runs are folded into the lot statistics.
 // TERCET_BENCH_SECONDS sets the length of each HTTP stage (default 20); TERCET_BENCH_PROFILE=<dir>
 // starts the server with --cpu-prof into that folder; TERCET_INGEST_WRITERS overrides the server's number of write slots.
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
@@ -29,14 +31,14 @@ const DATABASE = 'tercet_bench_ingest'
 const HOST = '127.0.0.1'
 const CONNECTIONS = 32
 const SECONDS = Number(process.env.TERCET_BENCH_SECONDS || 20)
-const RAW_SECONDS = Math.max(5, Math.round(SECONDS / 2))
+const RAW_SECONDS = Math.max(6, 2 * Math.round(SECONDS / 4))
 const WARMUP_SECONDS = 3
 const BATCH = 100
 const MEASUREMENTS = 20
 const PART = 'VFW-T3-375'
 const LOT = 'T3-BENCH-01'
 // generous ceilings on the rate, so the pre-generated bodies never run out within the duration
-const SINGLE_BODIES = 1200 * (SECONDS + WARMUP_SECONDS)
+const SINGLE_BODIES = 2500 * (SECONDS + WARMUP_SECONDS)
 const BATCH_RUNS = 2000 * SECONDS
 
 const say = (m: string) => process.stderr.write(`[bench] ${m}\n`)
@@ -194,7 +196,7 @@ async function rawRunsInOneTransaction(conn: mysql.PoolConnection, ctx: RawCtx, 
  * 32 workers, each writing `perTx` runs per transaction, for `seconds`, while the queued runs are folded into the
  * parameter statistics every 250 ms as the server's folder does: the same rows in the end.
  */
-async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds: number): Promise<{ runsPerSec: number; p50Ms: number; p99Ms: number }> {
+async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds: number): Promise<{ runs: number; seconds: number; p50Ms: number; p99Ms: number }> {
   let next = 0
   let runs = 0
   const took: number[] = []
@@ -224,13 +226,23 @@ async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds
     }
   })()
   await Promise.all(Array.from({ length: CONNECTIONS }, (_, w) => worker(w)))
-  // as on the HTTP side, runs still queued when the stage ends are not waited for
+  // as on the HTTP side, the caller times the folding of what is still queued when the stage ends
   const elapsed = (Date.now() - started) / 1000
   writing = false
   await folder
   took.sort((a, b) => a - b)
   const at = (q: number) => Math.round(took[Math.min(took.length - 1, Math.floor(q * took.length))] ?? Number.NaN)
-  return { runsPerSec: runs / elapsed, p50Ms: at(0.5), p99Ms: at(0.99) }
+  return { runs, seconds: elapsed, p50Ms: at(0.5), p99Ms: at(0.99) }
+}
+
+/**
+ * Folds what a stage left queued and says how long that took: a stage's rate counts the time until its runs are
+ * in the lot statistics, so that a writer cannot look faster by leaving the statistics behind.
+ */
+async function drained(knex: Knex): Promise<{ runs: number; seconds: number }> {
+  const t0 = performance.now()
+  const runs = await foldPendingStats(knex)
+  return { runs, seconds: (performance.now() - t0) / 1000 }
 }
 
 // ---- main --------------------------------------------------------------------------------------
@@ -313,30 +325,40 @@ async function main() {
     const warm = await cannon(port, '/api/v1/runs', singleBuffers, tokens, { seconds: WARMUP_SECONDS })
     const rest = singleBuffers.slice(warm.used)
 
+    // the raw writer runs for half its time just before the HTTP stage and half just after, so that a machine
+    // whose speed drifts during the bench (other tenants, clock boost) weighs on both figures alike
+    const rawHalf = async (when: string) => {
+      say(`raw (${when}): ${CONNECTIONS} connections, one run's rows (unit, run, ${MEASUREMENTS}+ measurements, step row, aggregates) per transaction, for ${RAW_SECONDS / 2} s…`)
+      // each raw stage starts from an empty queue: what was left queued is folded first, untimed
+      await foldPendingStats(knex)
+      const d0 = cpuSeconds(databasePid())
+      const t0 = Date.now()
+      const u0 = process.cpuUsage()
+      const r = await rawInsert(ctx, single, 1, RAW_SECONDS / 2)
+      const drain = await drained(knex)
+      const u = process.cpuUsage(u0)
+      const perSec = r.runs / (r.seconds + drain.seconds)
+      say(`  ${round(perSec)} runs/s (${drain.runs} runs left to fold, in ${round(drain.seconds, 2)} s), transaction p50 ${r.p50Ms} ms, p99 ${r.p99Ms} ms; CPU per run: direct writer ${round((u.user + u.system) / 1000 / r.runs, 2)} ms, MariaDB ${round((1000 * (cpuSeconds(databasePid()) - d0)) / r.runs, 2)} ms`)
+      return perSec
+    }
+    const rawBefore = await rawHalf('before')
+
     say(`POST /api/v1/runs: ${CONNECTIONS} connections for ${SECONDS} s…`)
     const q0 = await questions(pool)
     const c0 = cpuSeconds(server.pid!)
     const k0 = cpuTimes(server.pid!).system
     const d0 = cpuSeconds(databasePid())
     const s = await cannon(port, '/api/v1/runs', rest, tokens, { seconds: SECONDS })
+    const drain = await drained(knex)
     const c1 = cpuSeconds(server.pid!)
     const k1 = cpuTimes(server.pid!).system
     const d1 = cpuSeconds(databasePid())
     const q1 = await questions(pool)
-    const runsPerSec = s['2xx'] / s.duration
-    say(`  ${s['2xx']} runs stored, ${round((q1 - q0) / Math.max(1, s['2xx']))} statements per run (all clients of the database); CPU per run: server ${round((1000 * (c1 - c0)) / s['2xx'], 2)} ms (of it in the kernel ${round((1000 * (k1 - k0)) / s['2xx'], 2)} ms), MariaDB ${round((1000 * (d1 - d0)) / s['2xx'], 2)} ms`)
-    say(`raw: ${CONNECTIONS} connections, one run's rows (unit, run, ${MEASUREMENTS}+ measurements, step row, aggregates) per transaction, for ${RAW_SECONDS} s…`)
-    // the raw stage starts from an empty queue: what the server left queued is folded first, untimed
-    await foldPendingStats(knex)
-    const d2 = cpuSeconds(databasePid())
-    const r0 = Date.now()
-    const u0 = process.cpuUsage()
-    const raw1 = await rawInsert(ctx, single, 1, RAW_SECONDS)
-    const u1 = process.cpuUsage(u0)
-    const rawSingle = raw1.runsPerSec
-    const d3 = cpuSeconds(databasePid())
-    const rawRuns = rawSingle * ((Date.now() - r0) / 1000)
-    say(`  ${round(rawSingle)} runs/s, transaction p50 ${raw1.p50Ms} ms, p99 ${raw1.p99Ms} ms; CPU per run: direct writer ${round((u1.user + u1.system) / 1000 / rawRuns, 2)} ms, MariaDB ${round((1000 * (d3 - d2)) / rawRuns, 2)} ms`)
+    const runsPerSec = s['2xx'] / (s.duration + drain.seconds)
+    say(`  ${s['2xx']} runs stored (${drain.runs} left to fold, in ${round(drain.seconds, 2)} s), ${round((q1 - q0) / Math.max(1, s['2xx']))} statements per run (all clients of the database); CPU per run: server ${round((1000 * (c1 - c0)) / s['2xx'], 2)} ms (of it in the kernel ${round((1000 * (k1 - k0)) / s['2xx'], 2)} ms), MariaDB ${round((1000 * (d1 - d0)) / s['2xx'], 2)} ms`)
+    const rawAfter = await rawHalf('after')
+    // both halves last the same time, so their mean rate is the rate over the whole raw stage
+    const rawSingle = (rawBefore + rawAfter) / 2
     process.stdout.write(JSON.stringify({
       endpoint: 'runs', runsPerSec: round(runsPerSec), p50Ms: s.latency.p50, p99Ms: s.latency.p99, errors: s.errors + s.timeouts,
       non2xx: s.non2xx, rawRunsPerSec: round(rawSingle), ratio: round(runsPerSec / rawSingle, 3),
@@ -352,11 +374,14 @@ async function main() {
       if (status !== 200) return
       for (const m of body.matchAll(/"status":(\d{3})/g)) (m[1] === '201' || m[1] === '200' ? stored++ : refused++)
     })
-    const batchPerSec = stored / b.duration
-    say(`  ${stored} runs stored in ${b['2xx']} requests, ${refused} runs refused inside batches`)
+    const bDrain = await drained(knex)
+    const batchPerSec = stored / (b.duration + bDrain.seconds)
+    say(`  ${stored} runs stored in ${b['2xx']} requests (${bDrain.runs} left to fold, in ${round(bDrain.seconds, 2)} s), ${refused} runs refused inside batches`)
     say(`raw: ${CONNECTIONS} connections, ${BATCH} runs' rows per transaction, for ${RAW_SECONDS} s…`)
-    await foldPendingStats(knex)
-    const rawBatch = (await rawInsert(ctx, batchRuns, BATCH, RAW_SECONDS)).runsPerSec
+    const rb = await rawInsert(ctx, batchRuns, BATCH, RAW_SECONDS)
+    const rbDrain = await drained(knex)
+    const rawBatch = rb.runs / (rb.seconds + rbDrain.seconds)
+    say(`  ${round(rawBatch)} runs/s (${rbDrain.runs} left to fold, in ${round(rbDrain.seconds, 2)} s)`)
     process.stdout.write(JSON.stringify({
       // non2xx counts refused requests and refused runs inside 200 batch answers alike
       endpoint: 'runs/batch', runsPerSec: round(batchPerSec), p50Ms: b.latency.p50, p99Ms: b.latency.p99, errors: b.errors + b.timeouts,
