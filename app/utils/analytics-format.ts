@@ -62,7 +62,7 @@ export function pValue(p: number | null | undefined): string {
   return p < 0.0001 ? '< 0.0001' : p.toFixed(4)
 }
 
-export const BAND_WORDS: Record<string, string> = { capable: 'CAPABLE', marginal: 'MARGINAL', not_capable: 'NOT CAPABLE', unknown: 'NO INDEX' }
+export const BAND_WORDS: Record<string, string> = { capable: 'CAPABLE', marginal: 'MARGINAL', not_capable: 'NOT CAPABLE', too_few: 'FEW VALUES', unknown: 'NO INDEX' }
 
 /** 2 → "100 Hz", 3 → "1 kHz", 6.5 → "3.16 MHz": labels for a log10(Hz) axis. */
 export function logHzLabel(log10Hz: number): string {

@@ -30,7 +30,7 @@ export type CapabilityIndices = {
   ppl: number | null
 }
 
-export type CapabilityBand = 'capable' | 'marginal' | 'not_capable' | 'unknown'
+export type CapabilityBand = 'capable' | 'marginal' | 'not_capable' | 'too_few' | 'unknown'
 
 function usableSigma(sigma: number | null | undefined): sigma is number {
   return typeof sigma === 'number' && Number.isFinite(sigma) && sigma > 0
@@ -99,9 +99,17 @@ export function observedPpm(outCount: number, n: number): number | null {
   return n > 0 ? (1e6 * outCount) / n : null
 }
 
+/**
+ * Fewer values than this and a Cpk is not banded: at n = 10 its 95 % interval spans roughly ±0.6 around 1.33
+ * (Bissell), so a band would claim more than the data show. Thirty is the common-practice floor for a
+ * capability study (from memory; stricter customer rules ask for more).
+ */
+export const MIN_VALUES_FOR_BAND = 30
+
 /** Common-practice bands: Cpk ≥ 1.33 capable, 1.00 ≤ Cpk < 1.33 marginal, below 1.00 not capable. */
-export function capabilityBand(cpk: number | null): CapabilityBand {
+export function capabilityBand(cpk: number | null, n = Infinity): CapabilityBand {
   if (cpk === null || !Number.isFinite(cpk)) return 'unknown'
+  if (n < MIN_VALUES_FOR_BAND) return 'too_few'
   if (cpk >= 1.33) return 'capable'
   if (cpk >= 1) return 'marginal'
   return 'not_capable'
@@ -166,6 +174,6 @@ export function capabilityFromStats(stats: CapabilityStats): CapabilitySummary {
     observedPpm: hasLimits ? observedPpm(outOfSpecCount, n) : null,
     expectedPpm: mean === null ? null : expectedPpmOutOfSpec(mean, sigmaOverall, lsl, usl),
     expectedPpmWithin: mean === null ? null : expectedPpmOutOfSpec(mean, sigmaWithin, lsl, usl),
-    band: capabilityBand(indices.cpk),
+    band: capabilityBand(indices.cpk, n),
   }
 }

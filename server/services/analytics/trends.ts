@@ -42,7 +42,7 @@ export async function lotTrends(db: Knex, query: Record<string, unknown>, now = 
     return [{
       code: l.code, status: l.status, createdAt: l.createdAt.toISOString(), firstRunAt: l.firstRunAt!.toISOString(), lastRunAt: l.lastRunAt!.toISOString(),
       n: s.n, mean: s.mean!, sigma: s.sigmaOverall, sigmaWithin: s.sigmaWithin, min: s.min!, max: s.max!, outOfSpec: p.outOfSpec,
-      cpk: c.cpk, ppk: c.ppk, band: capabilityBand(c.cpk),
+      cpk: c.cpk, ppk: c.ppk, band: capabilityBand(c.cpk, s.n),
     }]
   })
 

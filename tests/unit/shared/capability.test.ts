@@ -193,6 +193,14 @@ describe('capabilityBand', () => {
     expect(capabilityBand(null)).toBe('unknown')
     expect(capabilityBand(NaN)).toBe('unknown')
   })
+
+  it('does not band an index taken from fewer than thirty values', () => {
+    // 30 values: the common-practice floor for a capability study (from memory)
+    expect(capabilityBand(2, 29)).toBe('too_few')
+    expect(capabilityBand(2, 30)).toBe('capable')
+    expect(capabilityBand(0.5, 3)).toBe('too_few')
+    expect(capabilityBand(null, 3)).toBe('unknown')
+  })
 })
 
 describe('capabilityFromValues', () => {
