@@ -331,14 +331,16 @@ async function main() {
       say(`raw (${when}): ${CONNECTIONS} connections, one run's rows (unit, run, ${MEASUREMENTS}+ measurements, step row, aggregates) per transaction, for ${RAW_SECONDS / 2} s…`)
       // each raw stage starts from an empty queue: what was left queued is folded first, untimed
       await foldPendingStats(knex)
+      const q0 = await questions(pool)
       const d0 = cpuSeconds(databasePid())
       const t0 = Date.now()
       const u0 = process.cpuUsage()
       const r = await rawInsert(ctx, single, 1, RAW_SECONDS / 2)
       const drain = await drained(knex)
       const u = process.cpuUsage(u0)
+      const q1 = await questions(pool)
       const perSec = r.runs / (r.seconds + drain.seconds)
-      say(`  ${round(perSec)} runs/s (${drain.runs} runs left to fold, in ${round(drain.seconds, 2)} s), transaction p50 ${r.p50Ms} ms, p99 ${r.p99Ms} ms; CPU per run: direct writer ${round((u.user + u.system) / 1000 / r.runs, 2)} ms, MariaDB ${round((1000 * (cpuSeconds(databasePid()) - d0)) / r.runs, 2)} ms`)
+      say(`  ${round(perSec)} runs/s (${drain.runs} runs left to fold, in ${round(drain.seconds, 2)} s), ${round((q1 - q0) / Math.max(1, r.runs))} statements per run, transaction p50 ${r.p50Ms} ms, p99 ${r.p99Ms} ms; CPU per run: direct writer ${round((u.user + u.system) / 1000 / r.runs, 2)} ms, MariaDB ${round((1000 * (cpuSeconds(databasePid()) - d0)) / r.runs, 2)} ms`)
       return perSec
     }
     const rawBefore = await rawHalf('before')
