@@ -12,7 +12,10 @@ export type StationComparison = {
   bias: number | null; welch: { t: number; df: number; p: number } | null; largestBias: boolean
 }
 
-/** Bias against the pooled mean and Welch's test against all other stations pooled; the largest |bias| is flagged. */
+/**
+ * Bias against the pooled mean and Welch's test against all other stations pooled. The largest |bias| among the
+ * stations that could be tested is flagged: one value far from the rest says nothing about its station.
+ */
 export function compareStations(byStation: { station: string; stats: PooledStats }[]): { pooled: ReturnType<typeof summarise>; stations: StationComparison[] } {
   const all = byStation.reduce((acc, s) => poolMerge(acc, s.stats), emptyPooled())
   const pooled = summarise(all)
@@ -28,7 +31,7 @@ export function compareStations(byStation: { station: string; stats: PooledStats
     }
   })
   // Two stations with equal counts sit equally far from the pooled mean: a tie flags nobody rather than the first name.
-  const sizes = stations.map((s) => (s.bias === null ? -1 : Math.abs(s.bias)))
+  const sizes = stations.map((s) => (s.bias === null || s.welch === null ? -1 : Math.abs(s.bias)))
   const top = Math.max(-1, ...sizes)
   const leaders = sizes.filter((b) => b >= 0 && top - b <= 1e-12 * Math.max(1, top))
   if (stations.length >= 2 && top >= 0 && leaders.length === 1) stations[sizes.indexOf(top)]!.largestBias = true

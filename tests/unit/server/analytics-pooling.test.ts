@@ -95,6 +95,14 @@ describe('compareStations', () => {
     expect(stations.filter((s) => s.largestBias).map((s) => s.station)).toEqual(['B'])
   })
 
+  it('does not flag a station with too few values for a test, however far its mean', () => {
+    const lone = { station: 'Z', stats: poolRows([rowOf([40])]) }
+    const { stations } = compareStations([...input, lone])
+    expect(stations.find((s) => s.station === 'Z')!.welch).toBeNull()
+    expect(stations.filter((s) => s.largestBias).map((s) => s.station)).not.toContain('Z')
+    expect(stations.filter((s) => s.largestBias)).toHaveLength(1)
+  })
+
   it('flags nobody when two stations of equal size are equally far from the pooled mean', () => {
     const { stations } = compareStations([{ station: 'A', stats: poolRows([rowOf([1, 2, 3])]) }, { station: 'B', stats: poolRows([rowOf([2, 3, 4])]) }])
     expect(stations[0]!.bias).toBeCloseTo(-0.5, 14)
