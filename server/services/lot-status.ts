@@ -1,7 +1,9 @@
 import type { Knex } from 'knex'
 import { writeAudit } from '../database/repositories/audit'
-import { lockLotByCode, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
+import { lockLotByCode, unitStepsOfLot, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
+import { findLotHeader } from '../database/repositories/lot-stats'
 import { invalidateLotCache } from './ingest/caches'
+import { lotReadiness } from './lot-readiness'
 import { RuleError } from './rule-error'
 
 export type LotAction = 'hold' | 'resume' | 'release' | 'ship'
@@ -28,15 +30,38 @@ function view(l: LotRow) {
   return { status: l.status, holdReason: l.holdReason, releasedAt: l.releasedAt, shippedAt: l.shippedAt }
 }
 
+/** How many not-ready units a refusal names one by one; the count covers them all. */
+const LISTED = 50
+
+/**
+ * A lot is released only when every unit is complete and passing at every step on calibrated stations, or under
+ * a deviation whose reason goes into the audit row with the units it covers. A lot with no units never is.
+ */
+async function releaseDeviation(trx: Knex.Transaction, lot: LotRow, deviation: string | undefined) {
+  const header = await findLotHeader(trx, lot.code)
+  const readiness = lotReadiness(await unitStepsOfLot(trx, lot.id), header?.steps ?? [])
+  if (readiness.units === 0) throw new RuleError(409, 'The lot has no tested units to release.')
+  if (!readiness.notReady.length) return null
+  if (!deviation) {
+    const n = readiness.notReady.length
+    throw new RuleError(409, `Not ready to release: ${n} of ${readiness.units} units. Complete them, or release under a deviation with its reason.`,
+      readiness.notReady.slice(0, LISTED).map((u) => ({ pointer: `/units/${u.serial}`, message: u.problems.join('; ') })),
+      { notReady: n, units: readiness.units })
+  }
+  return { reason: deviation, notReady: readiness.notReady.length, units: readiness.units, serials: readiness.notReady.map((u) => u.serial) }
+}
+
 /**
  * The audit row goes in before the lot row changes: if the change then fails, the transaction takes the
- * audit row back with it, so a recorded change always happened.
+ * audit row back with it, so a recorded change always happened. `reason` is the hold's reason, or for a
+ * release the deviation it is made under.
  */
 export async function changeLotStatus(db: Knex, actorId: number, code: string, action: LotAction, reason?: string, now = new Date()): Promise<LotStatus> {
   const status = await db.transaction(async (trx) => {
     const lot = await lockLotByCode(trx, code)
     if (!lot) throw new RuleError(404, `No lot ${code}.`)
     if (!FROM[action].includes(lot.status)) throw new RuleError(409, REFUSAL[action][lot.status] ?? `A lot that is ${lot.status} cannot ${action}.`, [], { lotStatus: lot.status })
+    const deviation = action === 'release' ? await releaseDeviation(trx, lot, reason) : null
     let change: Parameters<typeof updateLotStatus>[2]
     if (action === 'hold') change = { status: 'on_hold', holdReason: reason ?? null, releasedAt: null, releasedBy: null }
     else if (action === 'resume') change = { status: 'open', holdReason: null }
@@ -44,7 +69,8 @@ export async function changeLotStatus(db: Knex, actorId: number, code: string, a
     else change = { status: 'shipped', shippedAt: now }
     await writeAudit(trx, {
       userId: actorId, action, entity: 'lot', entityId: code,
-      before: view(lot), after: { ...view(lot), ...change, ...(action === 'resume' ? { liftedReason: lot.holdReason } : {}) },
+      before: view(lot),
+      after: { ...view(lot), ...change, ...(action === 'resume' ? { liftedReason: lot.holdReason } : {}), ...(deviation ? { deviation } : {}) },
     })
     await updateLotStatus(trx, lot.id, change)
     return change.status

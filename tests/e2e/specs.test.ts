@@ -346,7 +346,15 @@ describe('lots', () => {
     expect((await act('quality', 'ship')).status).toBe(409)
     expect((await act('engineer', 'release')).status).toBe(403)
     expect((await act('quality', 'resume')).body.status).toBe('open')
-    expect((await act('quality', 'release')).body.status).toBe('released')
+    // no unit of this lot went through tune, burn-in and final with passes: a plain release is refused, unit by unit
+    const notReady = await act('quality', 'release')
+    expect(notReady.status).toBe(409)
+    expect(notReady.body).toMatchObject({ notReady: 8, units: 8 })
+    const problems = new Map(notReady.body.errors.map((e: any) => [e.pointer, e.message]))
+    expect(problems.get(`/units/${serials.fail}`)).toBe('no result at tune; no result at burn-in; latest final result is a fail')
+    expect(problems.get(`/units/${serials.formula}`)).toBe('no result at burn-in; no result at final')
+    expect((await act('quality', 'release', { deviation: 'x' })).status).toBe(400)
+    expect((await act('quality', 'release', { deviation: 'Engineering samples for the customer\'s lab, by agreement' })).body.status).toBe('released')
     expect((await act('quality', 'release')).status).toBe(409)
     const released = (await call('GET', `/api/lots/${LOT}`, { cookie: cookies.operator })).body.lot
     expect(released).toMatchObject({ status: 'released', holdReason: null, releasedBy: { name: 'Rosa Fenwright' } })
@@ -356,6 +364,24 @@ describe('lots', () => {
     const audit = await call('GET', `/api/audit?entity=lot&entityId=${LOT}`, { cookie: cookies.quality })
     expect(audit.body.entries.map((e: any) => e.action)).toEqual(['ship', 'release', 'resume', 'hold'])
     expect(audit.body.entries[2].after.liftedReason).toBe('Harmonic rejection drifting on bay 2')
+    expect(audit.body.entries[1].after.deviation).toMatchObject({ reason: 'Engineering samples for the customer\'s lab, by agreement', notReady: 8, units: 8 })
+    expect([...audit.body.entries[1].after.deviation.serials].sort()).toEqual(Object.values(serials).sort())
+  })
+
+  it('releases a lot whose every unit passed every step without a deviation', async () => {
+    const lot = `T3-RD-${tag}`.slice(0, 32)
+    const serial = uniqueSerial('OK')
+    const t0 = Date.now() - 3_600_000
+    const at = (min: number) => ({ startedAt: new Date(t0 + min * 60_000).toISOString(), finishedAt: new Date(t0 + min * 60_000 + 30_000).toISOString() })
+    expect((await post(tripleRun({ lot, serial, step: 'tune', ...at(0), measurements: [{ name: 'output_power', value: 7, unit: 'dBm' }] }))).body.verdict).toBe('pass')
+    expect((await post(tripleRun({ lot, serial, step: 'burn-in', ...at(5), measurements: [{ name: 'output_power', value: 7, unit: 'dBm' }, { name: 'supply_current', value: 78, unit: 'mA' }] }))).body.verdict).toBe('pass')
+    expect((await post(tripleRun({ lot, serial, ...at(10) }))).body.verdict).toBe('pass')
+    const released = await call('POST', `/api/lots/${lot}/release`, { cookie: cookies.quality, body: {} })
+    expect(released.status, JSON.stringify(released.body)).toBe(200)
+    expect(released.body.status).toBe('released')
+    const audit = await call('GET', `/api/audit?entity=lot&entityId=${lot}`, { cookie: cookies.quality })
+    expect(audit.body.entries[0].action).toBe('release')
+    expect(audit.body.entries[0].after.deviation).toBeUndefined()
   })
 })
 

@@ -1,4 +1,5 @@
 import type { Knex } from 'knex'
+import type { UnitStepRow } from '../../services/lot-readiness'
 
 export type LotStatus = 'open' | 'on_hold' | 'released' | 'shipped'
 
@@ -61,4 +62,11 @@ export async function lotCounts(db: Knex, lotId: number, lastStep: string | unde
     inProgress: Number(agg.in_progress), retested: Number(agg.retested),
     firstRunAt: times?.first_run ?? null, lastRunAt: times?.last_run ?? null,
   }
+}
+
+/** Each unit of the lot with its latest result per step tested, for the release check. */
+export async function unitStepsOfLot(db: Knex, lotId: number): Promise<UnitStepRow[]> {
+  const rows = await db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').leftJoin('test_runs as r', 'r.id', 'us.latest_run_id')
+    .where('u.lot_id', lotId).select('u.serial', 'us.step', 'us.latest_verdict', 'r.calibration_lapsed')
+  return rows.map((r: any) => ({ serial: r.serial, step: r.step ?? null, latestVerdict: r.latest_verdict ?? null, calibrationLapsed: !!r.calibration_lapsed }))
 }

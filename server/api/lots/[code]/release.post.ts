@@ -1,9 +1,14 @@
+import schema from '../../../../shared/schemas/lot-release.schema.json'
+import { compileSchema } from '../../../utils/run-validator'
 import { changeLotStatus } from '../../../services/lot-status'
 import { underRules } from '../../../services/rule-error'
+
+const validate = compileSchema<{ deviation?: string }>(schema)
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const code = getRouterParam(event, 'code', { decode: true }) ?? ''
-  const status = await underRules(() => changeLotStatus(useDb(), actor.id, code, 'release'))
+  const body = await readValidBody(event, validate)
+  const status = await underRules(() => changeLotStatus(useDb(), actor.id, code, 'release', body.deviation?.trim() || undefined))
   return { code, status }
 })
