@@ -15,13 +15,14 @@ import {
 } from '../../shared/utils/run-csv'
 import { writeAudit } from '../database/repositories/audit'
 import {
-  findImportJob, finishImportJob, insertImportJob, insertRejections, updateImportProgress,
+  findImportJob, finishImportJob, insertImportJob, insertRejections, isCancelRequested, markImportCancelled, requestImportCancel, updateImportProgress,
   type ImportCounts, type ImportFormat, type ImportJobRow, type RejectionRow,
 } from '../database/repositories/imports'
 import { isBlankLine, isUtf8Line, LineSplitter, type RawLine } from '../utils/line-splitter'
 import { OrderedPipeline } from '../utils/ordered-pipeline'
 import { isStored, postRun, type PostResult, type RefusedResult } from './ingest/post-run'
 import type { StationRef } from './ingest/ingest-run'
+import { RuleError } from './rule-error'
 
 export const MAX_LINE_BYTES = 2 * 1024 * 1024
 export const MAX_FILE_BYTES = 2 * 1024 ** 3
@@ -228,23 +229,25 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
   let lastFlush = Date.now()
   let sinceFlush = 0
 
-  // rejections and the counters that include them move together
-  const flush = async () => {
+  // rejections and the counters that include them move together; each progress write also looks for a cancel
+  const flush = async (): Promise<boolean> => {
     const batch = pending
     pending = []
-    await db.transaction(async (trx) => {
+    const cancel = await db.transaction(async (trx) => {
       await insertRejections(trx, ctx.jobId, batch)
       await updateImportProgress(trx, ctx.jobId, counts)
+      return isCancelRequested(trx, ctx.jobId)
     })
     lastFlush = Date.now()
     sinceFlush = 0
+    return cancel
   }
   const reject = (line: number, runId: string | null, status: number, reason: string) => {
     counts.runsRejected++
     pending.push({ line, runId: runId === null ? null : runId.slice(0, 64), status, reason: clip(reason) })
   }
 
-  const finish = async (status: 'done' | 'failed', error: string | null) => {
+  const finish = async (status: 'done' | 'failed' | 'cancelled', error: string | null) => {
     const batch = pending
     pending = []
     await db.transaction(async (trx) => {
@@ -281,6 +284,7 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
   }
   // While a run is in the database the next lines are already read and parsed; runs of one unit never overlap.
   const pipeline = new OrderedPipeline<Outcome>(PARALLEL_RUNS, WINDOW_RUNS, WINDOW_BYTES)
+  let cancelled = false
   try {
     const lines = fileLines(spooled.path)
     const items = ctx.format === 'csv' ? csvItems(lines) : jsonlItems(lines)
@@ -296,9 +300,16 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
         })
         : await pipeline.push(null, 0, async () => ({ item }))
       for (const o of ready) apply(o)
-      if (sinceFlush >= FLUSH_EVERY_RUNS || (sinceFlush > 0 && Date.now() - lastFlush >= FLUSH_EVERY_MS)) await flush()
+      if (sinceFlush >= FLUSH_EVERY_RUNS || (sinceFlush > 0 && Date.now() - lastFlush >= FLUSH_EVERY_MS)) {
+        if (await flush()) { cancelled = true; break }
+      }
     }
+    // the runs already read ahead are finished either way: each is stored whole or not at all
     for (const o of await pipeline.finish()) apply(o)
+    if (cancelled) {
+      await finish('cancelled', `Cancelled after line ${counts.linesDone} of ${spooled.lines}; the runs before it are stored. Importing the file again continues (stored runs are replayed).`)
+      return
+    }
     counts.linesDone = spooled.lines
     await finish('done', null)
   } catch (e: any) {
@@ -326,6 +337,26 @@ export async function startImport(db: Knex, opts: Omit<ImportContext, 'jobId'>, 
 }
 
 const STALLED_MS = 2 * 60_000
+
+/**
+ * Stops a running import. Its worker stops at its next progress write (within half a second); a stalled job, whose
+ * worker went with a stopped server, is marked cancelled at once. Runs stored before the stop stay.
+ */
+export async function cancelImport(db: Knex, actorId: number, id: string, now = new Date()): Promise<ImportJobView> {
+  await db.transaction(async (trx) => {
+    const job = await findImportJob(trx, id, { forUpdate: true })
+    if (!job) throw new RuleError(404, 'No such import.')
+    if (job.status !== 'running') throw new RuleError(409, `The import has already ${job.status === 'done' ? 'finished' : job.status === 'failed' ? 'stopped' : 'been cancelled'}.`, [], { importStatus: job.status })
+    const stalled = importJobView(job, now).stalled
+    if (stalled) await markImportCancelled(trx, id, actorId, 'Cancelled after its server stopped; importing the file again continues (stored runs are replayed).')
+    else await requestImportCancel(trx, id, actorId)
+    await writeAudit(trx, {
+      userId: actorId, action: 'cancel', entity: 'import_job', entityId: id,
+      before: { status: job.status, runsDone: job.runsDone }, after: { status: stalled ? 'cancelled' : 'running', cancelRequested: true, stalled },
+    })
+  })
+  return importJobView((await findImportJob(db, id))!, now)
+}
 
 export type ImportJobView = ImportJobRow & { stalled: boolean }
 

@@ -224,12 +224,56 @@ describe('rejections download', () => {
   })
 })
 
+describe('cancelling an import', () => {
+  const lot = `T3-CX-${Date.now().toString(36)}`
+  const runs = Array.from({ length: 3000 }, () => tripleRun({ lot }))
+  const file = runs.map((r) => JSON.stringify(r)).join('\n') + '\n'
+
+  it('stops a running import at its next progress write, keeps what it stored, and importing again continues', async () => {
+    const r = await upload(file, { station: STATION, format: 'jsonl', fileName: 'long.jsonl' })
+    expect(r.status).toBe(202)
+    const asked = await call('POST', `/api/imports/${r.body.jobId}/cancel`, { cookie: engineer })
+    expect(asked.status, JSON.stringify(asked.body)).toBe(200)
+    expect(asked.body.cancelRequestedAt).not.toBeNull()
+    const job = await settled(r.body.jobId)
+    expect(job).toMatchObject({ status: 'cancelled', cancelledBy: { name: 'Milo Harrow' }, runsRejected: 0 })
+    expect(job.runsDone).toBeLessThan(runs.length)
+    expect(job.error).toMatch(/^Cancelled after line \d+ of 3000/)
+    const stored = await storedRuns(runs.map((x) => x.id))
+    expect(stored).toHaveLength(job.runsCreated)
+    expect((await call('POST', `/api/imports/${job.id}/cancel`, { cookie: engineer })).status).toBe(409)
+    const audit = await db('audit_log').where({ entity: 'import_job', entity_id: job.id }).orderBy('id')
+    expect(audit.map((a: any) => a.action)).toEqual(['cancel', 'import'])
+
+    const again = await importFile(file, 'jsonl')
+    expect(again).toMatchObject({ status: 'done', runsReplayed: job.runsCreated, runsCreated: runs.length - job.runsCreated, runsRejected: 0 })
+  }, 120_000)
+
+  it('marks a stalled import cancelled at once, since no worker is left to stop it', async () => {
+    const id = randomUUID()
+    const station = await db('stations').where({ name: STATION }).first('id')
+    const user = await db('users').where({ email: ROLE_ACCOUNTS.admin }).first('id')
+    const old = new Date(Date.now() - 10 * 60_000)
+    await db('import_jobs').insert({ id, created_by: user.id, station_id: station.id, file_name: 'left-behind.jsonl', format: 'jsonl', lines_total: 10, started_at: old, updated_at: old })
+    expect((await call('GET', `/api/imports/${id}`, { cookie: admin })).body.stalled).toBe(true)
+    const r = await call('POST', `/api/imports/${id}/cancel`, { cookie: admin })
+    expect(r.status).toBe(200)
+    expect(r.body).toMatchObject({ status: 'cancelled', stalled: false, cancelledBy: { name: 'Ada Quillon' } })
+    expect(r.body.error).toMatch(/server stopped/)
+    expect(r.body.finishedAt).not.toBeNull()
+  })
+
+  it('an unknown job is a 404', async () => {
+    expect((await call('POST', `/api/imports/${randomUUID()}/cancel`, { cookie: admin })).status).toBe(404)
+  })
+})
+
 describe('access', () => {
   it('the list shows recent imports to admin and engineer', async () => {
     const r = await call('GET', '/api/imports', { cookie: engineer })
     expect(r.status).toBe(200)
     expect(r.body.imports.length).toBeGreaterThan(0)
-    expect(r.body.imports[0]).toMatchObject({ station: { name: STATION }, status: expect.stringMatching(/^(running|done|failed)$/) })
+    expect(r.body.imports[0]).toMatchObject({ station: { name: STATION }, status: expect.stringMatching(/^(running|done|failed|cancelled)$/) })
   })
 
   it('an engineer may import', async () => {

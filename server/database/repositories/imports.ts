@@ -1,7 +1,7 @@
 import type { Knex } from 'knex'
 
 export type ImportFormat = 'jsonl' | 'csv'
-export type ImportStatus = 'running' | 'done' | 'failed'
+export type ImportStatus = 'running' | 'done' | 'failed' | 'cancelled'
 
 export type ImportCounts = { linesDone: number; runsDone: number; runsCreated: number; runsReplayed: number; runsRejected: number }
 
@@ -17,6 +17,9 @@ export type ImportJobRow = ImportCounts & {
   updatedAt: Date
   finishedAt: Date | null
   error: string | null
+  /** someone asked to stop the import: set until its worker stops, and kept afterwards */
+  cancelRequestedAt: Date | null
+  cancelledBy: { id: number; name: string } | null
 }
 
 export type RejectionRow = { line: number; runId: string | null; status: number; reason: string }
@@ -43,15 +46,32 @@ export async function updateImportProgress(db: Knex, jobId: string, c: ImportCou
   await db('import_jobs').where({ id: jobId }).update({ ...countColumns(c), updated_at: db.fn.now(3) })
 }
 
-export async function finishImportJob(db: Knex, jobId: string, status: 'done' | 'failed', c: ImportCounts, error: string | null): Promise<void> {
+export async function finishImportJob(db: Knex, jobId: string, status: 'done' | 'failed' | 'cancelled', c: ImportCounts, error: string | null): Promise<void> {
   await db('import_jobs').where({ id: jobId }).update({ ...countColumns(c), status, error, updated_at: db.fn.now(3), finished_at: db.fn.now(3) })
+}
+
+/** Records a request to stop a running job; its worker sees it at its next progress write. */
+export async function requestImportCancel(db: Knex, jobId: string, userId: number): Promise<void> {
+  await db('import_jobs').where({ id: jobId, status: 'running' }).whereNull('cancel_requested_at')
+    .update({ cancel_requested_at: db.fn.now(3), cancelled_by: userId })
+}
+
+export async function markImportCancelled(db: Knex, jobId: string, userId: number, error: string): Promise<void> {
+  await db('import_jobs').where({ id: jobId })
+    .update({ status: 'cancelled', cancel_requested_at: db.fn.now(3), cancelled_by: userId, error, updated_at: db.fn.now(3), finished_at: db.fn.now(3) })
+}
+
+export async function isCancelRequested(db: Knex, jobId: string): Promise<boolean> {
+  const r = await db('import_jobs').where({ id: jobId }).first('cancel_requested_at')
+  return !!r?.cancel_requested_at
 }
 
 function base(db: Knex) {
   return db('import_jobs as j')
     .join('stations as s', 's.id', 'j.station_id')
     .join('users as u', 'u.id', 'j.created_by')
-    .select('j.*', 's.name as station_name', 'u.name as user_name')
+    .leftJoin('users as c', 'c.id', 'j.cancelled_by')
+    .select('j.*', 's.name as station_name', 'u.name as user_name', 'c.name as cancelled_by_name')
 }
 
 function toJob(r: any): ImportJobRow {
@@ -61,11 +81,14 @@ function toJob(r: any): ImportJobRow {
     linesTotal: r.lines_total ?? null, linesDone: r.lines_done, runsDone: r.runs_done, runsCreated: r.runs_created,
     runsReplayed: r.runs_replayed, runsRejected: r.runs_rejected,
     startedAt: r.started_at, updatedAt: r.updated_at, finishedAt: r.finished_at ?? null, error: r.error ?? null,
+    cancelRequestedAt: r.cancel_requested_at ?? null, cancelledBy: r.cancelled_by ? { id: r.cancelled_by, name: r.cancelled_by_name ?? '' } : null,
   }
 }
 
-export async function findImportJob(db: Knex, id: string): Promise<ImportJobRow | undefined> {
-  const r = await base(db).where('j.id', id).first()
+export async function findImportJob(db: Knex, id: string, opts: { forUpdate?: boolean } = {}): Promise<ImportJobRow | undefined> {
+  let q = base(db).where('j.id', id)
+  if (opts.forUpdate) q = q.forUpdate('j')
+  const r = await q.first()
   return r ? toJob(r) : undefined
 }
 
