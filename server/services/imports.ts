@@ -307,7 +307,7 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
     // the runs already read ahead are finished either way: each is stored whole or not at all
     for (const o of await pipeline.finish()) apply(o)
     if (cancelled) {
-      await finish('cancelled', `Cancelled after line ${counts.linesDone} of ${spooled.lines}; the runs before it are stored. Importing the file again continues (stored runs are replayed).`)
+      await finish('cancelled', `Stopped after line ${counts.linesDone} of ${spooled.lines}; the runs before it are stored. Importing the file again continues (stored runs are replayed).`)
       return
     }
     counts.linesDone = spooled.lines

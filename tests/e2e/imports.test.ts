@@ -238,7 +238,7 @@ describe('cancelling an import', () => {
     const job = await settled(r.body.jobId)
     expect(job).toMatchObject({ status: 'cancelled', cancelledBy: { name: 'Milo Harrow' }, runsRejected: 0 })
     expect(job.runsDone).toBeLessThan(runs.length)
-    expect(job.error).toMatch(/^Cancelled after line \d+ of 3000/)
+    expect(job.error).toMatch(/^Stopped after line \d+ of 3000/)
     const stored = await storedRuns(runs.map((x) => x.id))
     expect(stored).toHaveLength(job.runsCreated)
     expect((await call('POST', `/api/imports/${job.id}/cancel`, { cookie: engineer })).status).toBe(409)
