@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import type { FieldError } from '../utils/problem'
-import { findLotByCode, lotCounts } from '../database/repositories/lot-detail'
+import { findLotByCode, lotCounts, runsReceivedSince } from '../database/repositories/lot-detail'
 import { findProductById } from '../database/repositories/products'
 import { listLotUnits, lotStationNames, UNIT_SORTS, UNIT_VERDICTS, type UnitQuery, type UnitSort, type UnitVerdict } from '../database/repositories/lot-units'
 import { RuleError } from './rule-error'
@@ -13,9 +13,12 @@ export async function lotDetail(db: Knex, code: string) {
   if (!lot) return undefined
   const product = (await findProductById(db, lot.productId))!
   const counts = await lotCounts(db, lot.id, product.steps.at(-1))
+  // a release judged the units as they stood; runs that came in afterwards are for quality to review
+  const runsSinceRelease = lot.releasedAt ? await runsReceivedSince(db, lot.id, lot.releasedAt) : null
   const { id: _id, productId: _p, ...rest } = lot
   return {
     ...rest,
+    runsSinceRelease,
     product: { partNumber: product.partNumber, name: product.name, steps: product.steps },
     counts: { planned: lot.plannedQty, ...counts },
   }

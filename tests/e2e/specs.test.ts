@@ -357,7 +357,10 @@ describe('lots', () => {
     expect((await act('quality', 'release', { deviation: 'Engineering samples for the customer\'s lab, by agreement' })).body.status).toBe('released')
     expect((await act('quality', 'release')).status).toBe(409)
     const released = (await call('GET', `/api/lots/${LOT}`, { cookie: cookies.operator })).body.lot
-    expect(released).toMatchObject({ status: 'released', holdReason: null, releasedBy: { name: 'Rosa Fenwright' } })
+    expect(released).toMatchObject({ status: 'released', holdReason: null, releasedBy: { name: 'Rosa Fenwright' }, runsSinceRelease: 0 })
+    // a run that arrives after the release is counted for quality to review
+    expect((await post(tripleRun({ lot: LOT, serial: serials.pass0 }))).status).toBe(201)
+    expect((await call('GET', `/api/lots/${LOT}`, { cookie: cookies.operator })).body.lot.runsSinceRelease).toBe(1)
     expect((await act('quality', 'ship')).body.status).toBe('shipped')
     expect((await act('engineer', 'hold', { reason: 'too late' })).status).toBe(409)
     expect((await act('quality', 'resume')).status).toBe(409)

@@ -70,3 +70,9 @@ export async function unitStepsOfLot(db: Knex, lotId: number): Promise<UnitStepR
     .where('u.lot_id', lotId).select('u.serial', 'us.step', 'us.latest_verdict', 'r.calibration_lapsed')
   return rows.map((r: any) => ({ serial: r.serial, step: r.step ?? null, latestVerdict: r.latest_verdict ?? null, calibrationLapsed: !!r.calibration_lapsed }))
 }
+
+/** Runs stored after the given moment: for a released lot, what arrived after its release. */
+export async function runsReceivedSince(db: Knex, lotId: number, since: Date): Promise<number> {
+  const r = await db('test_runs').where({ lot_id: lotId }).andWhere('received_at', '>', since).count({ n: '*' }).first()
+  return Number((r as any)?.n ?? 0)
+}
