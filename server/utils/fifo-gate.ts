@@ -10,6 +10,11 @@ export class FifoGate {
     if (!Number.isInteger(limit) || limit < 1) throw new RangeError(`limit must be a positive integer, got ${limit}`)
   }
 
+  /** No holder at all: a caller that would rather not wait can check this first. */
+  get idle(): boolean {
+    return this.active === 0
+  }
+
   async run<T>(work: () => Promise<T>): Promise<T> {
     if (this.active >= this.limit) await new Promise<void>((admit) => this.queue.push(admit))
     else this.active++

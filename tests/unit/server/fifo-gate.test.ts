@@ -26,6 +26,20 @@ describe('FifoGate', () => {
     expect(await gate.run(async () => 'next')).toBe('next')
   })
 
+  it('is idle only while nobody holds a slot', async () => {
+    const gate = new FifoGate(1)
+    expect(gate.idle).toBe(true)
+    let release!: () => void
+    const held = gate.run(() => new Promise<void>((r) => { release = r }))
+    expect(gate.idle).toBe(false)
+    const queued = gate.run(async () => 'second')
+    release()
+    await held
+    expect(gate.idle).toBe(false)
+    expect(await queued).toBe('second')
+    expect(gate.idle).toBe(true)
+  })
+
   it('refuses a limit below one', () => {
     expect(() => new FifoGate(0)).toThrow(RangeError)
   })
