@@ -15,7 +15,7 @@ import {
 } from '../../shared/utils/run-csv'
 import { writeAudit } from '../database/repositories/audit'
 import {
-  findImportJob, finishImportJob, insertImportJob, insertRejections, isCancelRequested, markImportCancelled, requestImportCancel, updateImportProgress,
+  findImportJob, finishImportJob, insertImportJob, insertRejections, isCancelRequested, lockImportJob, markImportCancelled, requestImportCancel, updateImportProgress,
   type ImportCounts, type ImportFormat, type ImportJobRow, type RejectionRow,
 } from '../database/repositories/imports'
 import { isBlankLine, isUtf8Line, LineSplitter, type RawLine } from '../utils/line-splitter'
@@ -344,7 +344,7 @@ const STALLED_MS = 2 * 60_000
  */
 export async function cancelImport(db: Knex, actorId: number, id: string, now = new Date()): Promise<ImportJobView> {
   await db.transaction(async (trx) => {
-    const job = await findImportJob(trx, id, { forUpdate: true })
+    const job = (await lockImportJob(trx, id)) ? await findImportJob(trx, id) : undefined
     if (!job) throw new RuleError(404, 'No such import.')
     if (job.status !== 'running') throw new RuleError(409, `The import has already ${job.status === 'done' ? 'finished' : job.status === 'failed' ? 'stopped' : 'been cancelled'}.`, [], { importStatus: job.status })
     const stalled = importJobView(job, now).stalled

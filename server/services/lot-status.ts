@@ -44,9 +44,8 @@ async function releaseDeviation(trx: Knex.Transaction, lot: LotRow, deviation: s
   if (!readiness.notReady.length) return null
   if (!deviation) {
     const n = readiness.notReady.length
-    throw new RuleError(409, `Not ready to release: ${n} of ${readiness.units} units. Complete them, or release under a deviation with its reason.`,
-      readiness.notReady.slice(0, LISTED).map((u) => ({ pointer: `/units/${u.serial}`, message: u.problems.join('; ') })),
-      { notReady: n, units: readiness.units })
+    throw new RuleError(409, `Not ready to release: ${n} of ${readiness.units} units. Complete them, or release under a deviation with its reason.`, [],
+      { notReady: n, units: readiness.units, notReadyUnits: readiness.notReady.slice(0, LISTED) })
   }
   return { reason: deviation, notReady: readiness.notReady.length, units: readiness.units, serials: readiness.notReady.map((u) => u.serial) }
 }

@@ -85,11 +85,14 @@ function toJob(r: any): ImportJobRow {
   }
 }
 
-export async function findImportJob(db: Knex, id: string, opts: { forUpdate?: boolean } = {}): Promise<ImportJobRow | undefined> {
-  let q = base(db).where('j.id', id)
-  if (opts.forUpdate) q = q.forUpdate('j')
-  const r = await q.first()
+export async function findImportJob(db: Knex, id: string): Promise<ImportJobRow | undefined> {
+  const r = await base(db).where('j.id', id).first()
   return r ? toJob(r) : undefined
+}
+
+/** Locks the job's own row (not the station and user rows it joins) for a status change. */
+export async function lockImportJob(trx: Knex.Transaction, id: string): Promise<boolean> {
+  return (await trx('import_jobs').where({ id }).forUpdate().first('id')) !== undefined
 }
 
 export async function listImportJobs(db: Knex, limit: number): Promise<ImportJobRow[]> {

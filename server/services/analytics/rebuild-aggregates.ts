@@ -5,7 +5,9 @@ const PARTITION = 'PARTITION BY step, name, qualifier, station_id'
 /**
  * Recomputes a lot's aggregate rows from its stored runs and measurements, in one transaction.
  * For bulk loads and repair; the ingest path keeps the same rows up to date incrementally. Runs still queued for
- * the fold are left out here and left in the queue, so the fold adds them once, afterwards.
+ * the fold are left out here and left in the queue, so the fold adds them once, afterwards. It does not take the
+ * statistics lock itself: its row locks make a fold of the same lot wait, and its caller (a script, a test) may
+ * already hold that lock to keep folders away.
  */
 export async function rebuildLotAggregates(db: Knex, lotId: number): Promise<void> {
   await db.transaction(async (trx) => {
