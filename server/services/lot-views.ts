@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
 import type { FieldError } from '../utils/problem'
-import { findLotByCode, lotCounts, runsReceivedSince } from '../database/repositories/lot-detail'
+import { findLotByCode, lotCounts, runsReceivedSince, unitStepsOfLot } from '../database/repositories/lot-detail'
+import { lotReadiness } from './lot-readiness'
 import { findProductById } from '../database/repositories/products'
 import { listLotUnits, lotStationNames, UNIT_SORTS, UNIT_VERDICTS, type UnitQuery, type UnitSort, type UnitVerdict } from '../database/repositories/lot-units'
 import { RuleError } from './rule-error'
@@ -15,10 +16,13 @@ export async function lotDetail(db: Knex, code: string) {
   const counts = await lotCounts(db, lot.id, product.steps.at(-1))
   // a release judged the units as they stood; runs that came in afterwards are for quality to review
   const runsSinceRelease = lot.releasedAt ? await runsReceivedSince(db, lot.id, lot.releasedAt) : null
+  // before a release, how many units the release check would hold back
+  const readiness = lot.status === 'open' || lot.status === 'on_hold' ? lotReadiness(await unitStepsOfLot(db, lot.id), product.steps) : null
   const { id: _id, productId: _p, ...rest } = lot
   return {
     ...rest,
     runsSinceRelease,
+    readiness: readiness ? { units: readiness.units, notReady: readiness.notReady.length } : null,
     product: { partNumber: product.partNumber, name: product.name, steps: product.steps },
     counts: { planned: lot.plannedQty, ...counts },
   }

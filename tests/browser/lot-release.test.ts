@@ -20,6 +20,7 @@ describe('releasing a lot in the browser', () => {
     const errors: string[] = []
     page.on('pageerror', (e) => errors.push(e.message))
     await page.goto(`${baseUrl()}/lots/${lot}`)
+    await expect.poll(() => page.locator('[data-test="release-readiness"]').textContent(), { timeout: 20_000 }).toContain('1 of 1 unit not ready to release')
     await page.getByRole('button', { name: 'Release lot' }).click()
     const panel = page.locator('[data-test="release-not-ready"]')
     await expect.poll(() => panel.textContent(), { timeout: 20_000 }).toContain('Not ready to release: 1 of 1 units.')

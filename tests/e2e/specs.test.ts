@@ -347,6 +347,7 @@ describe('lots', () => {
     expect((await act('engineer', 'release')).status).toBe(403)
     expect((await act('quality', 'resume')).body.status).toBe('open')
     // no unit of this lot went through tune, burn-in and final with passes: a plain release is refused, unit by unit
+    expect((await call('GET', `/api/lots/${LOT}`, { cookie: cookies.quality })).body.lot.readiness).toEqual({ units: 8, notReady: 8 })
     const notReady = await act('quality', 'release')
     expect(notReady.status).toBe(409)
     expect(notReady.body).toMatchObject({ notReady: 8, units: 8 })
@@ -379,12 +380,14 @@ describe('lots', () => {
     expect((await post(tripleRun({ lot, serial, step: 'tune', ...at(0), measurements: [{ name: 'output_power', value: 7, unit: 'dBm' }] }))).body.verdict).toBe('pass')
     expect((await post(tripleRun({ lot, serial, step: 'burn-in', ...at(5), measurements: [{ name: 'output_power', value: 7, unit: 'dBm' }, { name: 'supply_current', value: 78, unit: 'mA' }] }))).body.verdict).toBe('pass')
     expect((await post(tripleRun({ lot, serial, ...at(10) }))).body.verdict).toBe('pass')
+    expect((await call('GET', `/api/lots/${lot}`, { cookie: cookies.quality })).body.lot.readiness).toEqual({ units: 1, notReady: 0 })
     const released = await call('POST', `/api/lots/${lot}/release`, { cookie: cookies.quality, body: {} })
     expect(released.status, JSON.stringify(released.body)).toBe(200)
     expect(released.body.status).toBe('released')
     const audit = await call('GET', `/api/audit?entity=lot&entityId=${lot}`, { cookie: cookies.quality })
     expect(audit.body.entries[0].action).toBe('release')
     expect(audit.body.entries[0].after.deviation).toBeUndefined()
+    expect((await call('GET', `/api/lots/${lot}`, { cookie: cookies.quality })).body.lot.readiness).toBeNull()
   })
 })
 
