@@ -13,8 +13,8 @@ export function createKnex(conn: DbConnection, pool = { min: 0, max: 20 }): Knex
       supportBigNumbers: true,
       bigNumberStrings: false,
       charset: 'utf8mb4',
-      // the single-run writer sends a transaction's statements in one round trip; every value in this
-      // code base travels as a placeholder binding, never spliced into SQL text
+      // the single-run writer sends a transaction's statements in one round trip; values travel as placeholder
+      // bindings, except a run's own columns in its measurement insert, which are checked integers or escaped by the driver
       multipleStatements: true,
     },
     pool: {

@@ -1,7 +1,7 @@
 import type { Knex } from 'knex'
 import { writeAudit } from '../database/repositories/audit'
 import { lockLotByCode, unitStepsOfLot, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
-import { findLotHeader } from '../database/repositories/lot-stats'
+import { findProductById } from '../database/repositories/products'
 import { invalidateLotCache } from './ingest/caches'
 import { lotReadiness } from './lot-readiness'
 import { RuleError } from './rule-error'
@@ -38,8 +38,8 @@ const LISTED = 50
  * a deviation whose reason goes into the audit row with the units it covers. A lot with no units never is.
  */
 async function releaseDeviation(trx: Knex.Transaction, lot: LotRow, deviation: string | undefined) {
-  const header = await findLotHeader(trx, lot.code)
-  const readiness = lotReadiness(await unitStepsOfLot(trx, lot.id), header?.steps ?? [])
+  const product = await findProductById(trx, lot.productId)
+  const readiness = lotReadiness(await unitStepsOfLot(trx, lot.id), product?.steps ?? [])
   if (readiness.units === 0) throw new RuleError(409, 'The lot has no tested units to release.')
   if (!readiness.notReady.length) return null
   if (!deviation) {

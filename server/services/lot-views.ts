@@ -1,9 +1,9 @@
 import type { Knex } from 'knex'
 import type { FieldError } from '../utils/problem'
 import { findLotByCode, lotCounts, runsReceivedSince, unitStepsOfLot } from '../database/repositories/lot-detail'
-import { lotReadiness } from './lot-readiness'
 import { findProductById } from '../database/repositories/products'
 import { listLotUnits, lotStationNames, UNIT_SORTS, UNIT_VERDICTS, type UnitQuery, type UnitSort, type UnitVerdict } from '../database/repositories/lot-units'
+import { lotReadiness } from './lot-readiness'
 import { RuleError } from './rule-error'
 
 export const MAX_PAGE_SIZE = 200

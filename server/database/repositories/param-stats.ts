@@ -77,3 +77,23 @@ export async function writeParamRows(trx: Knex.Transaction, rows: ParamRow[]): P
     await trx.raw(`INSERT INTO lot_param_stats (${COLUMNS.join(', ')}) VALUES ${part.map(() => tuple).join(', ')} ON DUPLICATE KEY UPDATE ${tail}`, values)
   }
 }
+
+const rowWhere = (k: ParamRowKey) => ({ lot_id: k.lotId, step: k.step, name: k.name, qualifier: k.qualifier, station_id: k.stationId })
+
+/** Locks one parameter row and says whether a late arrival left its moving range stale. */
+export async function lockStaleRow(trx: Knex.Transaction, key: ParamRowKey): Promise<boolean> {
+  return !!(await trx('lot_param_stats').where(rowWhere(key)).forUpdate().first('mr_stale'))?.mr_stale
+}
+
+/** The row's first-attempt values in test order, leaving out runs still queued for the fold (it applies them after). */
+export async function foldedFirstAttemptValues(trx: Knex.Transaction, key: ParamRowKey): Promise<{ value: number; startedAt: Date }[]> {
+  const rows = await trx('measurements').where({ ...rowWhere(key), first_attempt: true })
+    .whereNotIn('run_id', trx('lot_stats_pending').where({ lot_id: key.lotId }).select('run_id'))
+    .orderBy('started_at').orderBy('id').select('value', 'started_at')
+  return rows.map((r: any) => ({ value: Number(r.value), startedAt: r.started_at }))
+}
+
+export async function writeMovingRange(trx: Knex.Transaction, key: ParamRowKey, mr: { sum: number; count: number }, last: { value: number; startedAt: Date } | undefined): Promise<void> {
+  await trx('lot_param_stats').where(rowWhere(key))
+    .update({ mr_sum: mr.sum, mr_n: mr.count, last_value: last?.value ?? null, last_started_at: last?.startedAt ?? null, mr_stale: false })
+}

@@ -41,7 +41,6 @@ export function runsInsertMany(rows: RunRow[]): { sql: string; values: Knex.RawB
   return { sql: RUN_INSERT_SQL.slice(0, RUN_INSERT_SQL.lastIndexOf('VALUES') + 7) + rows.map(() => RUN_TUPLE).join(', '), values: rows.flatMap(runInsertValues) }
 }
 
-
 export const UNIT_INSERT_SQL = 'INSERT IGNORE INTO units (product_id, lot_id, serial) VALUES (?, ?, ?)'
 
 /** The unit's attempt count and latest result at a step; the first result is kept from the first insert. */
@@ -98,7 +97,6 @@ export function measurementsInsertMany(items: { runId: number; ctx: MeasurementC
   return { sql: head + parts.map((p) => p.sql.slice(head.length)).join(', '), values: parts.flatMap((p) => p.values) }
 }
 
-
 /** Creates the unit on first sight and locks it, reading its attempts so far at the step (two statements). */
 export function unitLockStatements(productId: number, lotId: number, serial: string, step: string): { sql: string; values: Knex.RawBinding[] } {
   return {
@@ -122,7 +120,6 @@ export function pendingStatsInsert(rows: { runId: RunIdRef; lotId: number }[]): 
   for (const r of rows) values.push(r.runId as Knex.RawBinding, r.lotId)
   return { sql: `INSERT INTO lot_stats_pending (run_id, lot_id) VALUES ${rows.map(() => '(?, ?)').join(', ')}`, values }
 }
-
 
 /** The stored runs with everything a result view shows, by internal id. */
 export async function loadRunsWithMeasurements(db: Knex, runIds: number[]) {

@@ -1,9 +1,6 @@
-// Lot yield counters, updated in the run's own transaction, and the repair of a parameter row's moving range.
-// One row per station keeps concurrent stations off each other's rows; readers add the station rows together.
-// The parameter statistics themselves are kept by fold-param-stats.
+// Lot yield counters, updated in the run's own transaction. One row per station keeps concurrent stations off
+// each other's rows; readers add the station rows together. The parameter statistics are kept by fold-param-stats.
 import type { Knex } from 'knex'
-import type { ParamRowKey } from './param-stats-merge'
-import type { BeginTransaction } from './stats-lock'
 
 export type AggregateContext = { lotId: number; stationId: number; step: string; attempt: number; startedAt: Date }
 
@@ -29,21 +26,4 @@ export function stepStatsStatement(ctx: AggregateContext, verdict: 'pass' | 'fai
 /** Several runs' step rows in one upsert; the rows are applied one after another, in the given order. */
 export function stepStatsStatementMany(rows: Knex.RawBinding[][]): Statement {
   return { sql: STEP_STATS_HEAD + rows.map(() => STEP_STATS_TUPLE).join(', ') + STEP_STATS_TAIL, values: rows.flat() }
-}
-
-/** Recomputes the moving-range terms of one station row from the measurements, after a late arrival (under the statistics lock). */
-export async function rebuildMovingRange(begin: BeginTransaction, key: ParamRowKey): Promise<void> {
-  await begin(async (trx) => {
-    const row = await trx('lot_param_stats').where({ lot_id: key.lotId, step: key.step, name: key.name, qualifier: key.qualifier, station_id: key.stationId }).forUpdate().first('mr_stale')
-    if (!row?.mr_stale) return
-    // runs still waiting to be folded are left to the fold, which applies them after these
-    const values = await trx('measurements').where({ lot_id: key.lotId, name: key.name, qualifier: key.qualifier, step: key.step, station_id: key.stationId, first_attempt: true })
-      .whereNotIn('run_id', trx('lot_stats_pending').where({ lot_id: key.lotId }).select('run_id'))
-      .orderBy('started_at').orderBy('id').select('value', 'started_at')
-    let sum = 0
-    for (let i = 1; i < values.length; i++) sum += Math.abs(values[i].value - values[i - 1].value)
-    const last = values[values.length - 1]
-    await trx('lot_param_stats').where({ lot_id: key.lotId, step: key.step, name: key.name, qualifier: key.qualifier, station_id: key.stationId })
-      .update({ mr_sum: sum, mr_n: Math.max(0, values.length - 1), last_value: last?.value ?? null, last_started_at: last?.started_at ?? null, mr_stale: false })
-  })
 }

@@ -3,9 +3,12 @@
 // database updates each row once per fold instead of once per run. Readers fold their lot first, so what they show
 // includes every stored run.
 import type { Knex } from 'knex'
-import { anyPendingRuns, claimPendingRuns, forgetPendingRuns, lockParamRows, staleParamRowKeys, valuesOfRuns, writeParamRows } from '../../database/repositories/param-stats'
+import { movingRangeSum } from '../../../shared/utils/capability'
+import {
+  anyPendingRuns, claimPendingRuns, foldedFirstAttemptValues, forgetPendingRuns, lockParamRows, lockStaleRow, staleParamRowKeys, valuesOfRuns,
+  writeMovingRange, writeParamRows,
+} from '../../database/repositories/param-stats'
 import { problem } from '../../utils/problem'
-import { rebuildMovingRange } from './aggregates'
 import { type BeginTransaction, STATS_LOCK_BUSY, withStatsLock } from './stats-lock'
 import { addValue, emptyParamRow, inTimeOrder, type ParamRow, type ParamRowKey } from './param-stats-merge'
 
@@ -51,6 +54,15 @@ async function foldAll(begin: BeginTransaction, lotIds: number[] | undefined): P
       throw e
     }
   }
+}
+
+/** Recomputes one row's moving-range terms from the measurements, after a late arrival left them stale. */
+async function rebuildMovingRange(begin: BeginTransaction, key: ParamRowKey): Promise<void> {
+  await begin(async (trx) => {
+    if (!(await lockStaleRow(trx, key))) return
+    const values = await foldedFirstAttemptValues(trx, key)
+    await writeMovingRange(trx, key, movingRangeSum(values.map((v) => v.value)), values.at(-1))
+  })
 }
 
 function busy(): never {
