@@ -1,8 +1,9 @@
 import Ajv2020 from 'ajv/dist/2020.js'
 import type { AnySchemaObject, ErrorObject } from 'ajv/dist/2020.js'
 import addFormats from 'ajv-formats'
-import runSchemaJson from '../../shared/schemas/run.schema.json'
-import runBatchSchemaJson from '../../shared/schemas/run-batch.schema.json'
+import type { FromSchema } from 'json-schema-to-ts'
+import { runSchema as runSchemaObject } from '../../shared/schemas/run.schema'
+import { runBatchSchema as runBatchSchemaObject } from '../../shared/schemas/run-batch.schema'
 
 export interface ValidationError {
   /** JSON Pointer (RFC 6901) into the request body; "" is the body itself. */
@@ -14,41 +15,16 @@ export type ValidationResult<T> = { ok: true; value: T } | { ok: false; errors: 
 
 export type Validator<T> = (body: unknown) => ValidationResult<T>
 
-export interface StationMeasurement {
-  name: string
-  value: number
-  unit: string
-  uncertainty?: number
-  offsetHz?: number
-  harmonic?: number
-}
+type DerivedRun = FromSchema<typeof runSchemaObject>
 
-export interface StationTrace {
-  name: string
-  points: [number, number][]
-}
-
-export interface StationRun {
-  id: string
-  serial: string
-  partNumber: string
-  lot: string
-  /** Filled with "final" by the validator when the station leaves it out. */
-  step: string
-  startedAt: string
-  finishedAt: string
-  operator?: string
-  software: { sequence: string; version: string }
-  conditions: { temperatureC: number; supplyV: number }
-  stationVerdict: 'pass' | 'fail'
-  reference: { frequencyHz: number; phaseNoise?: { offsetHz: number; value: number }[] }
-  measurements: StationMeasurement[]
-  traces?: StationTrace[]
-}
-
-export interface StationRunBatch {
-  runs: StationRun[]
-}
+/**
+ * A station run as the run schema admits it, after ajv has filled in the defaults (the step). json-schema-to-ts 3
+ * does not read draft 2020-12 `prefixItems`, so the trace point pair of `$defs.tracePoint` is stated here.
+ */
+export type StationRun = Omit<DerivedRun, 'traces'> & { traces?: StationTrace[] }
+export type StationMeasurement = DerivedRun['measurements'][number]
+export type StationTrace = { name: string; points: [number, number][] }
+export type StationRunBatch = { runs: StationRun[] }
 
 // Some loaders (jiti) hand a JSON import over with the object repeated under `default`.
 function jsonModule(m: unknown): AnySchemaObject {
@@ -58,8 +34,8 @@ function jsonModule(m: unknown): AnySchemaObject {
   return schema as AnySchemaObject
 }
 
-export const runSchema: AnySchemaObject = jsonModule(runSchemaJson)
-export const runBatchSchema: AnySchemaObject = jsonModule(runBatchSchemaJson)
+export const runSchema: AnySchemaObject = runSchemaObject as unknown as AnySchemaObject
+export const runBatchSchema: AnySchemaObject = runBatchSchemaObject as unknown as AnySchemaObject
 
 // useDefaults writes schema defaults (the run's step) into the validated body in place.
 const ajv = new Ajv2020({ strict: true, allErrors: true, useDefaults: true })

@@ -1,8 +1,8 @@
 import Ajv2020 from 'ajv/dist/2020.js'
 import addFormats from 'ajv-formats'
 import { describe, expect, it } from 'vitest'
-import runBatchSchemaJson from '../../../shared/schemas/run-batch.schema.json'
-import runSchemaJson from '../../../shared/schemas/run.schema.json'
+import { runBatchSchema as runBatchSchemaJson } from '../../../shared/schemas/run-batch.schema'
+import { runSchema as runSchemaJson } from '../../../shared/schemas/run.schema'
 import {
   compileSchema,
   runSchema,
@@ -66,6 +66,13 @@ describe('run schema', () => {
     addFormats(ajv)
     expect(() => ajv.addSchema(runSchemaJson).compile(runBatchSchemaJson)).not.toThrow()
     expect(runSchema.$id).toBe('https://tercet.invalid/schemas/run.json')
+  })
+
+  it('describes a trace point as the [x, y] pair of numbers the StationRun type states', () => {
+    const point = runSchemaJson.$defs.tracePoint
+    expect(point.prefixItems.map((p) => p.type)).toEqual(['number', 'number'])
+    expect(point.items).toBe(false)
+    expect(point.minItems).toBe(2)
   })
 
   it('leaves unit checks to the service (a wrong unit is a 422 there, not a schema error)', () => {
