@@ -42,7 +42,7 @@ export async function paramStatsAllAttempts(db: Knex, lotId: number): Promise<(O
             SUM((lsl IS NOT NULL AND value < lsl) OR (usl IS NOT NULL AND value > usl)) AS out_of_spec
      FROM (SELECT step, name, qualifier, unit, value, verdict, lsl, usl,
                   ABS(value - LAG(value) OVER (PARTITION BY step, name, qualifier, station_id ORDER BY started_at, id)) AS mr
-           FROM measurements WHERE lot_id = ?) m
+           FROM measurements WHERE lot_id = ? AND NOT implausible) m
      GROUP BY step, name, qualifier`, [lotId])
   return rows.map((r: any) => ({
     step: r.step, name: r.name, qualifier: r.qualifier, unit: r.unit, n: Number(r.n), mean: Number(r.mean), sd: r.sd === null ? null : Number(r.sd),

@@ -21,8 +21,8 @@ export async function anyPendingRuns(db: Knex, lotIds?: number[]): Promise<boole
 /** Rows of the given lots whose moving range must be recomputed from the measurements. */
 export async function staleParamRowKeys(db: Knex, lotIds: number[]): Promise<ParamRowKey[]> {
   if (!lotIds.length) return []
-  const rows = await db('lot_param_stats').whereIn('lot_id', lotIds).andWhere('mr_stale', true).select('lot_id', 'step', 'name', 'qualifier', 'station_id')
-  return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), stationId: Number(r.station_id) }))
+  const rows = await db('lot_param_stats').whereIn('lot_id', lotIds).andWhere('mr_stale', true).select('lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id')
+  return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), stationId: Number(r.station_id) }))
 }
 
 export async function forgetPendingRuns(trx: Knex.Transaction, runIds: number[]): Promise<void> {
@@ -35,12 +35,12 @@ export type ValueOfRow = { key: ParamRowKey; value: StoredValue }
 export async function valuesOfRuns(trx: Knex.Transaction, runIds: number[]): Promise<ValueOfRow[]> {
   if (!runIds.length) return []
   const rows = await trx('measurements').whereIn('run_id', runIds)
-    .select('id', 'lot_id', 'step', 'name', 'qualifier', 'station_id', 'unit', 'value', 'first_attempt', 'started_at', 'lsl', 'usl', 'verdict')
+    .select('id', 'lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id', 'unit', 'value', 'first_attempt', 'implausible', 'started_at', 'lsl', 'usl', 'verdict')
   return rows.map((r: any) => ({
-    key: { lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), stationId: Number(r.station_id) },
+    key: { lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), stationId: Number(r.station_id) },
     value: {
       value: Number(r.value), unit: r.unit, firstAttempt: !!r.first_attempt, startedAt: new Date(r.started_at).getTime(), id: Number(r.id),
-      lsl: r.lsl == null ? null : Number(r.lsl), usl: r.usl == null ? null : Number(r.usl), failed: r.verdict === 'fail',
+      lsl: r.lsl == null ? null : Number(r.lsl), usl: r.usl == null ? null : Number(r.usl), failed: r.verdict === 'fail', implausible: !!r.implausible,
     },
   }))
 }
@@ -48,7 +48,7 @@ export async function valuesOfRuns(trx: Knex.Transaction, runIds: number[]): Pro
 /** One lot_param_stats row as the fold and the readers use it. */
 export function paramRowFromDb(r: any): ParamRow {
   return {
-    lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), stationId: Number(r.station_id), unit: r.unit,
+    lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), stationId: Number(r.station_id), unit: r.unit,
     n: Number(r.n), shift: Number(r.shift), sumD: Number(r.sum_d), sumSqD: Number(r.sumsq_d), min: Number(r.min_value), max: Number(r.max_value),
     mrSum: Number(r.mr_sum), mrN: Number(r.mr_n), lastValue: r.last_value == null ? null : Number(r.last_value),
     lastStartedAt: r.last_started_at == null ? null : new Date(r.last_started_at).getTime(), mrStale: !!r.mr_stale,
@@ -62,23 +62,23 @@ export async function lockParamRows(trx: Knex.Transaction, lotIds: number[]): Pr
   return (await trx('lot_param_stats').whereIn('lot_id', lotIds).forUpdate()).map(paramRowFromDb)
 }
 
-const COLUMNS = ['lot_id', 'step', 'name', 'qualifier', 'station_id', 'unit', 'n', 'shift', 'sum_d', 'sumsq_d', 'min_value', 'max_value',
+const COLUMNS = ['lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id', 'unit', 'n', 'shift', 'sum_d', 'sumsq_d', 'min_value', 'max_value',
   'mr_sum', 'mr_n', 'last_value', 'last_started_at', 'mr_stale', 'out_of_spec', 'fail_all']
 const ROWS_PER_STATEMENT = 1000
 
 /** Writes whole rows back: new ones are inserted, existing ones take the values computed under their lock. */
 export async function writeParamRows(trx: Knex.Transaction, rows: ParamRow[]): Promise<void> {
   const tuple = `(${COLUMNS.map(() => '?').join(', ')})`
-  const tail = COLUMNS.slice(5).map((c) => `${c} = VALUES(${c})`).join(', ')
+  const tail = COLUMNS.slice(6).map((c) => `${c} = VALUES(${c})`).join(', ')
   for (let i = 0; i < rows.length; i += ROWS_PER_STATEMENT) {
     const part = rows.slice(i, i + ROWS_PER_STATEMENT)
-    const values = part.flatMap((r) => [r.lotId, r.step, r.name, r.qualifier, r.stationId, r.unit, r.n, r.shift, r.sumD, r.sumSqD, r.min, r.max,
+    const values = part.flatMap((r) => [r.lotId, r.step, r.name, r.qualifier, r.revisionId, r.stationId, r.unit, r.n, r.shift, r.sumD, r.sumSqD, r.min, r.max,
       r.mrSum, r.mrN, r.lastValue, r.lastStartedAt === null ? null : new Date(r.lastStartedAt), r.mrStale, r.outOfSpec, r.failAll])
     await trx.raw(`INSERT INTO lot_param_stats (${COLUMNS.join(', ')}) VALUES ${part.map(() => tuple).join(', ')} ON DUPLICATE KEY UPDATE ${tail}`, values)
   }
 }
 
-const rowWhere = (k: ParamRowKey) => ({ lot_id: k.lotId, step: k.step, name: k.name, qualifier: k.qualifier, station_id: k.stationId })
+const rowWhere = (k: ParamRowKey) => ({ lot_id: k.lotId, step: k.step, name: k.name, qualifier: k.qualifier, revision_id: k.revisionId, station_id: k.stationId })
 
 /** Locks one parameter row and says whether a late arrival left its moving range stale. */
 export async function lockStaleRow(trx: Knex.Transaction, key: ParamRowKey): Promise<boolean> {
@@ -87,7 +87,7 @@ export async function lockStaleRow(trx: Knex.Transaction, key: ParamRowKey): Pro
 
 /** The row's first-attempt values in test order, leaving out runs still queued for the fold (it applies them after). */
 export async function foldedFirstAttemptValues(trx: Knex.Transaction, key: ParamRowKey): Promise<{ value: number; startedAt: Date }[]> {
-  const rows = await trx('measurements').where({ ...rowWhere(key), first_attempt: true })
+  const rows = await trx('measurements').where({ ...rowWhere(key), first_attempt: true, implausible: false })
     .whereNotIn('run_id', trx('lot_stats_pending').where({ lot_id: key.lotId }).select('run_id'))
     .orderBy('started_at').orderBy('id').select('value', 'started_at')
   return rows.map((r: any) => ({ value: Number(r.value), startedAt: r.started_at }))

@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import mysql from 'mysql2'
-import type { JudgedMeasurement } from '../../services/ingest/judge-run'
+import type { JudgedMeasurement } from '../../../shared/types/judgement'
 
 /** A run's id as a number, or the id of the run inserted just before in the same round trip. */
 export type RunIdRef = number | { toSqlString(): string }
@@ -61,7 +61,7 @@ export function unitStepsUpsertMany(rows: { unitId: number; step: string; attemp
   }
 }
 
-export type MeasurementContext = { lotId: number; stationId: number; step: string; firstAttempt: boolean; startedAt: Date }
+export type MeasurementContext = { lotId: number; stationId: number; revisionId: number | null; step: string; firstAttempt: boolean; startedAt: Date }
 
 /** A DATETIME(3) literal in UTC, as the connection's time zone reads it. */
 function utcLiteral(d: Date): string {
@@ -74,18 +74,19 @@ function utcLiteral(d: Date): string {
  */
 export function measurementsInsert(runId: RunIdRef, ctx: MeasurementContext, ms: JudgedMeasurement[]): { sql: string; values: Knex.RawBinding[] } {
   const runRef = typeof runId === 'number' ? String(runId) : runId.toSqlString()
-  if (!Number.isInteger(ctx.lotId) || !Number.isInteger(ctx.stationId)) throw new TypeError('lot and station ids must be integers')
-  const tuple = `(${runRef}, ${ctx.lotId}, ${ctx.stationId}, ${mysql.escape(ctx.step)}, ${ctx.firstAttempt ? 1 : 0}, ${utcLiteral(ctx.startedAt)}, ${new Array(14).fill('?').join(', ')})`
+  const revisionId = ctx.revisionId ?? 0
+  if (!Number.isInteger(ctx.lotId) || !Number.isInteger(ctx.stationId) || !Number.isInteger(revisionId)) throw new TypeError('lot, station and revision ids must be integers')
+  const tuple = `(${runRef}, ${ctx.lotId}, ${ctx.stationId}, ${revisionId}, ${mysql.escape(ctx.step)}, ${ctx.firstAttempt ? 1 : 0}, ${utcLiteral(ctx.startedAt)}, ${new Array(15).fill('?').join(', ')})`
   const values: Knex.RawBinding[] = []
   for (const m of ms) {
     const l = m.limit
     values.push(m.name, m.qualifier, m.value, m.unit, m.uncertainty,
       l ? l.lsl : null, l ? l.usl : null, l ? l.target : null, l ? l.rule : null, l ? l.guardBand : null,
-      m.verdict, m.zone, m.derived, m.excessDb)
+      m.verdict, m.zone, m.derived, m.excessDb, m.implausible)
   }
   return {
-    sql: `INSERT INTO measurements (run_id, lot_id, station_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
-      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db) VALUES ${new Array(ms.length).fill(tuple).join(', ')}`,
+    sql: `INSERT INTO measurements (run_id, lot_id, station_id, revision_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
+      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible) VALUES ${new Array(ms.length).fill(tuple).join(', ')}`,
     values,
   }
 }

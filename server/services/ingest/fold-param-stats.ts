@@ -17,7 +17,7 @@ const RETRIES = 3
 // a reader waits this long for a fold in progress; a slice of 500 runs takes well under a second
 const READER_WAIT_SECONDS = 30
 
-const keyText = (k: ParamRowKey) => `${k.lotId}\u0000${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.stationId}`
+const keyText = (k: ParamRowKey) => `${k.lotId}\u0000${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.revisionId}\u0000${k.stationId}`
 
 /** One transaction: claim queued runs, add their measurements to the rows, drop them from the queue. */
 async function foldIn(trx: Knex.Transaction, lotIds: number[] | undefined): Promise<number> {

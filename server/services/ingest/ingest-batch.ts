@@ -222,7 +222,7 @@ async function writeBatch(db: Knex, station: StationRef, accepted: Accepted[]): 
     let rows = 0
     const flushMeasurements = async () => {
       if (!rows) return
-      const st = measurementsInsertMany(batch.map((a) => ({ runId: a.runId!, ctx: { ...agg(a), firstAttempt: a.attempt === 1 }, ms: a.ctx.judged.measurements })))
+      const st = measurementsInsertMany(batch.map((a) => ({ runId: a.runId!, ctx: { ...agg(a), revisionId: a.ctx.revision.id, firstAttempt: a.attempt === 1 }, ms: a.ctx.judged.measurements })))
       await trx.raw(st.sql, st.values)
       batch = []
       rows = 0

@@ -6,21 +6,9 @@ import { multiplicationCheck } from '../../../shared/utils/multiplication-check'
 import { ppmError } from '../../../shared/utils/rf'
 import type { ProductInfo, RevisionInForce, SpecLimit } from '../../database/repositories/spec-lookup'
 import type { StationRun } from '../../utils/run-validator'
+import type { AppliedLimit, JudgedMeasurement, RunJudgement } from '../../../shared/types/judgement'
 
-export type AppliedLimit = { lsl: number | null; usl: number | null; target: number | null; rule: 'simple' | 'guarded'; guardBand: number }
-
-export type JudgedMeasurement = {
-  name: string; qualifier: number; value: number; unit: string; uncertainty: number | null
-  limit: AppliedLimit | null; verdict: 'pass' | 'fail' | 'info'; zone: 'inside' | 'guard' | 'outside' | null
-  derived: boolean; excessDb: number | null; outOfSpec: boolean
-}
-
-export type RunJudgement = {
-  measurements: JudgedMeasurement[]
-  verdict: 'pass' | 'fail'
-  missingRequired: { name: string; qualifier: number }[]
-  measurementIssue: boolean
-}
+export type { AppliedLimit, JudgedMeasurement, RunJudgement }
 
 export class RunRejected extends Error {
   constructor(message: string, public errors: { pointer: string; message: string }[] = []) { super(message) }
@@ -28,13 +16,13 @@ export class RunRejected extends Error {
 
 const key = (name: string, q: number) => `${name}@${q}`
 
-type Unjudged = Omit<JudgedMeasurement, 'limit' | 'verdict' | 'zone' | 'outOfSpec'>
+type Unjudged = Omit<JudgedMeasurement, 'limit' | 'verdict' | 'zone' | 'outOfSpec' | 'implausible'>
 
 // Every judged measurement is built with the same fields in the same order: one object shape for the hot path.
 function judged(m: Unjudged, limit: AppliedLimit | null, verdict: JudgedMeasurement['verdict'], zone: JudgedMeasurement['zone'], outOfSpec: boolean): JudgedMeasurement {
   return {
     name: m.name, qualifier: m.qualifier, value: m.value, unit: m.unit, uncertainty: m.uncertainty,
-    limit, verdict, zone, derived: m.derived, excessDb: m.excessDb, outOfSpec,
+    limit, verdict, zone, derived: m.derived, excessDb: m.excessDb, outOfSpec, implausible: false,
   }
 }
 
@@ -61,7 +49,7 @@ export function judgeRun(run: StationRun, product: ProductInfo, revision: Revisi
 
   const errors: { pointer: string; message: string }[] = []
   const seen = new Set<string>()
-  const base: Omit<JudgedMeasurement, 'limit' | 'verdict' | 'zone' | 'outOfSpec'>[] = []
+  const base: Unjudged[] = []
   run.measurements.forEach((m, i) => {
     const q = qualifierKey(m.name, { offsetHz: m.offsetHz, harmonic: m.harmonic }) ?? 0
     const k = key(m.name, q)

@@ -1,7 +1,7 @@
 // Pure arithmetic of one lot × station parameter row: shifted sums for the moments, min and max, the moving range
 // in time order, and failure counts. The fold applies measurements one by one, exactly as a per-run update would.
 
-export type ParamRowKey = { lotId: number; step: string; name: string; qualifier: number; stationId: number }
+export type ParamRowKey = { lotId: number; step: string; name: string; qualifier: number; revisionId: number; stationId: number }
 
 export type ParamRow = ParamRowKey & {
   unit: string
@@ -26,6 +26,8 @@ export type ParamRow = ParamRowKey & {
 export type StoredValue = {
   value: number; unit: string; firstAttempt: boolean; startedAt: number; id: number
   lsl: number | null; usl: number | null; failed: boolean
+  /** kept out of the sample: counted among failures only */
+  implausible: boolean
 }
 
 /** A fresh row for a parameter first seen with this value. */
@@ -36,11 +38,11 @@ export function emptyParamRow(key: ParamRowKey, first: StoredValue): ParamRow {
   }
 }
 
-/** Adds one stored measurement to the row, in place. Only first attempts enter the sample; every failure counts. */
+/** Adds one stored measurement to the row, in place. Only plausible first attempts enter the sample; every failure counts. */
 export function addValue(row: ParamRow, m: StoredValue): void {
   if (!Number.isFinite(m.value)) return
   if (m.failed) row.failAll++
-  if (!m.firstAttempt) return
+  if (!m.firstAttempt || m.implausible) return
   if ((m.lsl != null && m.value < m.lsl) || (m.usl != null && m.value > m.usl)) row.outOfSpec++
   if (row.n === 0) { row.min = m.value; row.max = m.value } else { row.min = Math.min(row.min, m.value); row.max = Math.max(row.max, m.value) }
   const d = m.value - row.shift

@@ -4,7 +4,7 @@
 import { INSERTED_RUN_ID, measurementsInsert, pendingStatsInsert, REMEMBER_RUN_ID, RUN_INSERT_SQL, runInsertValues, tracesInsert, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
 import { joinStatements, type Statement } from '../../database/raw-connection'
 import { stepStatsStatement, type AggregateContext } from './aggregates'
-import type { JudgedMeasurement } from './judge-run'
+import type { JudgedMeasurement } from '../../../shared/types/judgement'
 
 export { unitLockStatements } from '../../database/repositories/runs'
 
@@ -32,7 +32,7 @@ export type RunWrite = {
 export function runWriteStatements({ row, measurements, traces, previousLatest }: RunWrite): Statement {
   const agg: AggregateContext = { lotId: row.lotId, stationId: row.stationId, step: row.step, attempt: row.attempt, startedAt: row.startedAt }
   const list: (Statement | string)[] = [{ sql: RUN_INSERT_SQL, values: runInsertValues(row) }, REMEMBER_RUN_ID]
-  if (measurements.length) list.push(measurementsInsert(INSERTED_RUN_ID, { ...agg, firstAttempt: row.attempt === 1 }, measurements))
+  if (measurements.length) list.push(measurementsInsert(INSERTED_RUN_ID, { ...agg, revisionId: row.revisionId, firstAttempt: row.attempt === 1 }, measurements))
   if (traces.length) list.push(tracesInsert(INSERTED_RUN_ID, traces))
   list.push(unitStepUpsert(row.unitId, row.step, row.attempt, row.serverVerdict, INSERTED_RUN_ID), stepStatsStatement(agg, row.serverVerdict, previousLatest))
   list.push(pendingStatsInsert([{ runId: INSERTED_RUN_ID, lotId: row.lotId }]))
