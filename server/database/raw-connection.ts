@@ -44,3 +44,40 @@ export function joinStatements(statements: (Statement | string)[]): Statement {
   return { sql, values }
 }
 
+
+// keeps each round trip well under max_allowed_packet (16 MiB by default)
+const ROUND_TRIP_BYTES = 4 * 1024 * 1024
+
+function roughBytes(s: Statement | string): number {
+  if (typeof s === 'string') return s.length
+  let n = s.sql.length
+  for (const v of s.values) n += typeof v === 'string' ? v.length + 2 : 24
+  return n
+}
+
+/**
+ * Sends the statements in order, as few round trips as the size allows, and gives back each statement's result
+ * (a statement's rows, or its OK packet). The server stops at the first statement that fails.
+ */
+export async function sendStatements(send: SendStatements, statements: (Statement | string)[]): Promise<unknown[]> {
+  const results: unknown[] = []
+  let group: (Statement | string)[] = []
+  let bytes = 0
+  const flush = async () => {
+    if (!group.length) return
+    const joined = joinStatements(group)
+    const r = await send(joined.sql, joined.values)
+    if (group.length === 1) results.push(r)
+    else for (const x of r as unknown[]) results.push(x)
+    group = []
+    bytes = 0
+  }
+  for (const s of statements) {
+    const b = roughBytes(s)
+    if (group.length && bytes + b > ROUND_TRIP_BYTES) await flush()
+    group.push(s)
+    bytes += b
+  }
+  await flush()
+  return results
+}

@@ -1,7 +1,7 @@
 // Historical import of test runs from a file. The upload is first copied to a temporary file while every line
 // is checked (UTF-8 text, and for CSV a known header); a file failing those checks is refused whole before any
-// run is written. The runs are then read back line by line and posted one at a time through the station API's
-// own postRun, so validation, judging and idempotency are exactly the station's.
+// run is written. The runs are then read back line by line and written in slices through the station batch
+// endpoint's own ingestBatch, so validation, judging, test-time order and idempotency are exactly the station's.
 import { randomUUID } from 'node:crypto'
 import { createReadStream, createWriteStream } from 'node:fs'
 import { unlink } from 'node:fs/promises'
@@ -20,16 +20,20 @@ import {
 } from '../database/repositories/imports'
 import { isBlankLine, isUtf8Line, LineSplitter, type RawLine } from '../utils/line-splitter'
 import { OrderedPipeline } from '../utils/ordered-pipeline'
-import { isStored, postRun, type PostResult, type RefusedResult } from './ingest/post-run'
+import { isStored, type PostResult, type RefusedResult } from './ingest/post-run'
+import { ingestBatch } from './ingest/ingest-batch'
 import type { StationRef } from './ingest/ingest-run'
 import { RuleError } from './rule-error'
 
 export const MAX_LINE_BYTES = 2 * 1024 * 1024
 export const MAX_FILE_BYTES = 2 * 1024 ** 3
 const FLUSH_EVERY_RUNS = 200
-// one at a time: concurrent first attempts of new units deadlock in ingest's unit_steps lookup
-const PARALLEL_RUNS = 1
-const WINDOW_RUNS = 64
+// runs are written in slices of the file (at most 100 runs or 256 KiB of lines): attempts follow test time, so slices
+// need no particular order; small slices keep each run's objects short-lived, which bounds the server's memory
+const CHUNK_RUNS = 100
+const CHUNK_BYTES = 256 * 1024
+const PARALLEL_CHUNKS = 1
+const WINDOW_CHUNKS = 2
 const WINDOW_BYTES = 16 * 1024 * 1024
 const FLUSH_EVERY_MS = 500
 const MAX_REASON = 1000
@@ -183,12 +187,6 @@ async function* csvItems(lines: AsyncIterable<RawLine>): AsyncGenerator<Item> {
   if (last) yield csvItem(last)
 }
 
-/** The unit a run body names: runs of one unit are posted one after another, so that retests follow first attempts. */
-function laneOf(body: unknown): string {
-  const b = body as { partNumber?: unknown; serial?: unknown } | null
-  return `${typeof b?.partNumber === 'string' ? b.partNumber : ''}\u0000${typeof b?.serial === 'string' ? b.serial : ''}`
-}
-
 function clip(s: string, n = MAX_REASON): string {
   return s.length <= n ? s : s.slice(0, n - 1) + '…'
 }
@@ -209,15 +207,20 @@ function isUnavailable(e: any): boolean {
   return UNAVAILABLE.has(e?.code) || /Timeout acquiring a connection/.test(String(e?.message))
 }
 
-/** postRun, with an unexpected failure of one run reported as undefined; a lost database stops the import. */
-async function postOne(db: Knex, station: StationRef, body: unknown): Promise<PostResult | undefined> {
-  try {
-    return await postRun(db, station, body, '', { touchStation: false })
-  } catch (e) {
-    if (isUnavailable(e)) throw e
-    console.error(e)
-    return undefined
-  }
+type Outcome = { item: Item; result?: PostResult; failed?: boolean }
+
+/** A slice of the file's items, its runs written together as one batch; a lost database stops the import. */
+async function writeChunk(db: Knex, station: StationRef, items: Item[]): Promise<Outcome[]> {
+  const runs = items.filter((i): i is Extract<Item, { kind: 'run' }> => i.kind === 'run')
+  const results = runs.length ? await ingestBatch(db, station, runs.map((r) => r.body), new Date(), { touchStation: false, prefixPointers: false }) : []
+  const byItem = new Map(runs.map((r, k) => [r, results[k]!]))
+  return items.map((item) => {
+    const r = item.kind === 'run' ? byItem.get(item)! : undefined
+    if (!r) return { item }
+    if (r.status === 503) throw Object.assign(new Error(String((r as { detail?: string }).detail)), { code: 'ECONNREFUSED' })
+    if (r.status === 500) return { item, failed: true }
+    return { item, result: 'run' in r ? { status: r.status as 200 | 201, run: r.run } : { status: r.status as 400 | 409 | 422, detail: r.detail, errors: r.errors } }
+  })
 }
 
 export type ImportContext = { jobId: string; userId: number; station: StationRef; fileName: string; format: ImportFormat }
@@ -260,10 +263,8 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
     })
   }
 
-  type Outcome = { item: Item; result?: PostResult; failed?: boolean; fatal?: unknown }
   const apply = (o: Outcome) => {
     const item = o.item
-    if (o.fatal !== undefined) throw o.fatal
     if (item.kind === 'run') {
       counts.runsDone++
       const r = o.result
@@ -282,30 +283,35 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
     counts.linesDone = Math.max(counts.linesDone, item.lastLine)
     sinceFlush++
   }
-  // While a run is in the database the next lines are already read and parsed; runs of one unit never overlap.
-  const pipeline = new OrderedPipeline<Outcome>(PARALLEL_RUNS, WINDOW_RUNS, WINDOW_BYTES)
+  // While one slice is in the database the next lines are already read, parsed and written.
+  const pipeline = new OrderedPipeline<Outcome[]>(PARALLEL_CHUNKS, WINDOW_CHUNKS, WINDOW_BYTES)
+  let chunk: Item[] = []
+  let chunkRuns = 0
+  let chunkBytes = 0
+  const pushChunk = async () => {
+    if (!chunk.length) return
+    const items = chunk
+    const bytes = chunkBytes
+    chunk = []
+    chunkRuns = 0
+    chunkBytes = 0
+    for (const outcomes of await pipeline.push(null, bytes, () => writeChunk(db, ctx.station, items))) for (const o of outcomes) apply(o)
+  }
   let cancelled = false
   try {
     const lines = fileLines(spooled.path)
     const items = ctx.format === 'csv' ? csvItems(lines) : jsonlItems(lines)
     for await (const item of items) {
-      const ready = item.kind === 'run'
-        ? await pipeline.push(laneOf(item.body), item.bytes, async () => {
-          try {
-            const result = await postOne(db, ctx.station, item.body)
-            return result ? { item, result } : { item, failed: true }
-          } catch (fatal) {
-            return { item, fatal }
-          }
-        })
-        : await pipeline.push(null, 0, async () => ({ item }))
-      for (const o of ready) apply(o)
+      chunk.push(item)
+      if (item.kind === 'run') { chunkRuns++; chunkBytes += item.bytes }
+      if (chunkRuns >= CHUNK_RUNS || chunkBytes >= CHUNK_BYTES) await pushChunk()
       if (sinceFlush >= FLUSH_EVERY_RUNS || (sinceFlush > 0 && Date.now() - lastFlush >= FLUSH_EVERY_MS)) {
         if (await flush()) { cancelled = true; break }
       }
     }
-    // the runs already read ahead are finished either way: each is stored whole or not at all
-    for (const o of await pipeline.finish()) apply(o)
+    if (!cancelled) await pushChunk()
+    // the slices already handed over are finished either way: each run is stored whole or not at all
+    for (const outcomes of await pipeline.finish()) for (const o of outcomes) apply(o)
     if (cancelled) {
       await finish('cancelled', `Stopped after line ${counts.linesDone} of ${spooled.lines}; the runs before it are stored. Importing the file again continues (stored runs are replayed).`)
       return

@@ -183,23 +183,31 @@ describe('the queue of runs awaiting the fold', () => {
     expect(await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()).toMatchObject({ n: 0 })
   })
 
+  /** Holds the lot's fold lease in a transaction of its own while `work` runs, as a fold in progress would. */
+  async function holdingLease<T>(lotCode: string, work: (hold: Knex.Transaction, lotId: number) => Promise<T>): Promise<T> {
+    // the lot comes into being with its first run
+    await postRuns(1, 90 + lotCode.length, 1, lotCode)
+    const lot = await db('lots').where({ code: lotCode }).first('id')
+    return db.transaction(async (hold) => {
+      const { ensureFoldLease, takeFoldLease } = await import('../../server/database/repositories/fold-leases')
+      await ensureFoldLease(db, lot.id)
+      expect(await takeFoldLease(hold, lot.id, 5)).toBe('taken')
+      return work(hold, lot.id)
+    })
+  }
+
   it('a rebuild leaves queued runs to the fold, which then counts them once', async () => {
-    // holding the background folders' lock keeps a server running beside this test from folding the runs first
-    await db.transaction(async (hold) => {
-      await hold.raw("SELECT GET_LOCK('tercet_param_stats_fold', 30)")
-      try {
-        await postRuns(20, 2, 4)
-        const lot = await db('lots').where({ code }).first('id')
-        const queued = await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()
-        expect(Number((queued as any).n)).toBe(20)
-        const { rebuildLotAggregates } = await import('../../server/services/analytics/rebuild-aggregates')
-        await rebuildLotAggregates(db, lot.id)
-      } finally {
-        await hold.raw("DO RELEASE_LOCK('tercet_param_stats_fold')")
-      }
+    const lotCode = `${code}-R`
+    // holding the lot's lease keeps a server running beside this test from folding the runs first
+    await holdingLease(lotCode, async (hold, lotId) => {
+      await postRuns(20, 2, 4, lotCode)
+      const queued = await db('lot_stats_pending').where({ lot_id: lotId }).count({ n: '*' }).first()
+      expect(Number((queued as any).n)).toBeGreaterThanOrEqual(20)
+      const { rebuildLotAggregatesIn } = await import('../../server/services/analytics/rebuild-aggregates')
+      await rebuildLotAggregatesIn(hold, lotId)
     })
     // the summary folds the queued runs (unless a background folder got there first) and must count them once
-    await expectSummaryEqualsRecomputation(code)
+    await expectSummaryEqualsRecomputation(lotCode)
   })
 
   const queuedIn = async (lotCode: string) => {
@@ -210,24 +218,31 @@ describe('the queue of runs awaiting the fold', () => {
   it('a background fold gives way to a fold in progress, and a reader waits for it', async () => {
     const waiting = `${code}-W`
     let reader: Promise<void> | undefined
-    await db.transaction(async (hold) => {
-      await hold.raw("SELECT GET_LOCK('tercet_param_stats_fold', 30)")
-      try {
-        await postRuns(6, 3, 2, waiting)
-        const lot = await db('lots').where({ code: waiting }).first('id')
-        expect(await foldPendingStats(db, { lotIds: [lot.id], background: true })).toBe(0)
-        let done = false
-        reader = freshenLotStats(db, [lot.id]).then(() => { done = true })
-        await new Promise((r) => setTimeout(r, 400))
-        expect(done).toBe(false)
-        expect(await queuedIn(waiting)).toBe(6)
-      } finally {
-        await hold.raw("DO RELEASE_LOCK('tercet_param_stats_fold')")
-      }
+    await holdingLease(waiting, async (_hold, lotId) => {
+      await postRuns(6, 3, 2, waiting)
+      expect(await foldPendingStats(db, { lotIds: [lotId], background: true })).toBe(0)
+      let done = false
+      reader = freshenLotStats(db, [lotId]).then(() => { done = true })
+      await new Promise((r) => setTimeout(r, 400))
+      expect(done).toBe(false)
+      expect(await queuedIn(waiting)).toBeGreaterThanOrEqual(6)
     })
     await reader
     expect(await queuedIn(waiting)).toBe(0)
     await expectSummaryEqualsRecomputation(waiting)
+  })
+
+  it('folds of different lots do not wait for each other', async () => {
+    const held = `${code}-H`
+    const other = `${code}-O`
+    await holdingLease(held, async () => {
+      await postRuns(5, 4, 1, other)
+      const lot = await db('lots').where({ code: other }).first('id')
+      // the other lot's reader folds at once although a fold of the held lot is in progress
+      await freshenLotStats(db, [lot.id])
+      expect(await queuedIn(other)).toBe(0)
+    })
+    await expectSummaryEqualsRecomputation(other)
   })
 
   it('readers folding new lots side by side count every run once', async () => {

@@ -1,31 +1,26 @@
-// The lot × station parameter rows and the queue of runs not yet folded into them.
+// The lot × revision × station parameter rows, the queue of runs not yet folded into them, and the rows a late run
+// left to be rebuilt.
 import type { Knex } from 'knex'
 import type { ParamRow, ParamRowKey, StoredValue } from '../../services/ingest/param-stats-merge'
 
-export type PendingRun = { runId: number; lotId: number }
-
-/** Locks up to `limit` queued runs, oldest first (the caller holds the statistics lock). */
-export async function claimPendingRuns(trx: Knex.Transaction, opts: { limit: number; lotIds?: number[] }): Promise<PendingRun[]> {
-  let q = trx('lot_stats_pending').orderBy('run_id').limit(opts.limit).forUpdate()
-  if (opts.lotIds) q = q.whereIn('lot_id', opts.lotIds)
-  const rows = await q.select('run_id', 'lot_id')
-  return rows.map((r: any) => ({ runId: Number(r.run_id), lotId: Number(r.lot_id) }))
+/** Up to `limit` queued runs of one lot, oldest first, none newer than `upTo` when given (the caller holds the lot's lease). */
+export async function queuedRunsOfLot(trx: Knex.Transaction, lotId: number, limit: number, upTo?: number): Promise<number[]> {
+  let q = trx('lot_stats_pending').where({ lot_id: lotId }).orderBy('run_id').limit(limit)
+  if (upTo !== undefined) q = q.andWhere('run_id', '<=', upTo)
+  return (await q.select('run_id')).map((r: any) => Number(r.run_id))
 }
 
-export async function anyPendingRuns(db: Knex, lotIds?: number[]): Promise<boolean> {
-  let q = db('lot_stats_pending').first('run_id')
-  if (lotIds) q = q.whereIn('lot_id', lotIds)
-  return (await q) !== undefined
+/** The newest queued run of each lot: a reader folds up to it, not whatever keeps arriving after it started. */
+export async function newestQueuedRun(db: Knex, lotId: number): Promise<number | null> {
+  const r = await db('lot_stats_pending').where({ lot_id: lotId }).max<{ id: number | null }[]>({ id: 'run_id' })
+  return r[0]?.id == null ? null : Number(r[0].id)
 }
 
-/** Rows of the given lots whose moving range must be recomputed from the measurements. */
-export async function staleParamRowKeys(db: Knex, lotIds: number[]): Promise<ParamRowKey[]> {
-  if (!lotIds.length) return []
-  const rows = await db('lot_param_stats').whereIn('lot_id', lotIds).andWhere('mr_stale', true).select('lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id')
-  return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), stationId: Number(r.station_id) }))
+export async function anyRebuildMarks(db: Knex, lotId: number): Promise<boolean> {
+  return (await db('lot_stats_rebuild').where({ lot_id: lotId }).first('lot_id')) !== undefined
 }
 
-export async function forgetPendingRuns(trx: Knex.Transaction, runIds: number[]): Promise<void> {
+export async function forgetQueuedRuns(trx: Knex.Transaction, runIds: number[]): Promise<void> {
   if (runIds.length) await trx('lot_stats_pending').whereIn('run_id', runIds).del()
 }
 
@@ -56,17 +51,16 @@ export function paramRowFromDb(r: any): ParamRow {
   }
 }
 
-/** The parameter rows of the given lots, locked for the fold's update. */
-export async function lockParamRows(trx: Knex.Transaction, lotIds: number[]): Promise<ParamRow[]> {
-  if (!lotIds.length) return []
-  return (await trx('lot_param_stats').whereIn('lot_id', lotIds).forUpdate()).map(paramRowFromDb)
+/** The parameter rows of one lot (its fold lease is held, so nobody else writes them). */
+export async function paramRowsOfLot(trx: Knex.Transaction, lotId: number): Promise<ParamRow[]> {
+  return (await trx('lot_param_stats').where({ lot_id: lotId })).map(paramRowFromDb)
 }
 
 const COLUMNS = ['lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id', 'unit', 'n', 'shift', 'sum_d', 'sumsq_d', 'min_value', 'max_value',
   'mr_sum', 'mr_n', 'last_value', 'last_started_at', 'mr_stale', 'out_of_spec', 'fail_all']
 const ROWS_PER_STATEMENT = 1000
 
-/** Writes whole rows back: new ones are inserted, existing ones take the values computed under their lock. */
+/** Writes whole rows back: new ones are inserted, existing ones take the values computed under the lease. */
 export async function writeParamRows(trx: Knex.Transaction, rows: ParamRow[]): Promise<void> {
   const tuple = `(${COLUMNS.map(() => '?').join(', ')})`
   const tail = COLUMNS.slice(6).map((c) => `${c} = VALUES(${c})`).join(', ')
@@ -80,13 +74,8 @@ export async function writeParamRows(trx: Knex.Transaction, rows: ParamRow[]): P
 
 const rowWhere = (k: ParamRowKey) => ({ lot_id: k.lotId, step: k.step, name: k.name, qualifier: k.qualifier, revision_id: k.revisionId, station_id: k.stationId })
 
-/** Locks one parameter row and says whether a late arrival left its moving range stale. */
-export async function lockStaleRow(trx: Knex.Transaction, key: ParamRowKey): Promise<boolean> {
-  return !!(await trx('lot_param_stats').where(rowWhere(key)).forUpdate().first('mr_stale'))?.mr_stale
-}
-
-/** The row's first-attempt values in test order, leaving out runs still queued for the fold (it applies them after). */
-export async function foldedFirstAttemptValues(trx: Knex.Transaction, key: ParamRowKey): Promise<{ value: number; startedAt: Date }[]> {
+/** The row's sample values in test order, leaving out runs still queued for the fold (it applies them after). */
+export async function foldedSampleValues(trx: Knex.Transaction, key: ParamRowKey): Promise<{ value: number; startedAt: Date }[]> {
   const rows = await trx('measurements').where({ ...rowWhere(key), first_attempt: true, implausible: false })
     .whereNotIn('run_id', trx('lot_stats_pending').where({ lot_id: key.lotId }).select('run_id'))
     .orderBy('started_at').orderBy('id').select('value', 'started_at')
@@ -96,4 +85,51 @@ export async function foldedFirstAttemptValues(trx: Knex.Transaction, key: Param
 export async function writeMovingRange(trx: Knex.Transaction, key: ParamRowKey, mr: { sum: number; count: number }, last: { value: number; startedAt: Date } | undefined): Promise<void> {
   await trx('lot_param_stats').where(rowWhere(key))
     .update({ mr_sum: mr.sum, mr_n: mr.count, last_value: last?.value ?? null, last_started_at: last?.startedAt ?? null, mr_stale: false })
+}
+
+export type RebuildScope = { lotId: number; step?: string; revisionId?: number; stationId?: number }
+
+const PARTITION = 'PARTITION BY step, name, qualifier, revision_id, station_id'
+// the sample: plausible first attempts
+const SAMPLE = '(first_attempt AND NOT implausible)'
+
+/**
+ * Recomputes the parameter rows of a lot (or of one step, revision and station of it) from the stored
+ * measurements. Runs still queued for the fold are left out, and left in the queue, so the fold adds them once.
+ */
+export async function rebuildParamRows(trx: Knex.Transaction, scope: RebuildScope): Promise<void> {
+  const where: Record<string, string | number> = { lot_id: scope.lotId }
+  if (scope.step !== undefined) where.step = scope.step
+  if (scope.revisionId !== undefined) where.revision_id = scope.revisionId
+  if (scope.stationId !== undefined) where.station_id = scope.stationId
+  await trx('lot_param_stats').where(where).del()
+  const cond = Object.keys(where).map((c) => `${c} = ?`).join(' AND ')
+  const vals = Object.values(where)
+  await trx.raw(
+    `INSERT INTO lot_param_stats (lot_id, step, name, qualifier, revision_id, station_id, unit, n, shift, sum_d, sumsq_d, min_value, max_value,
+       mr_sum, mr_n, last_value, last_started_at, mr_stale, out_of_spec, fail_all)
+     SELECT ?, step, name, qualifier, revision_id, station_id, MIN(unit), SUM(sample), COALESCE(MIN(shift), MIN(value)),
+       COALESCE(SUM(IF(sample, value - shift, 0)), 0), COALESCE(SUM(IF(sample, (value - shift) * (value - shift), 0)), 0),
+       COALESCE(MIN(IF(sample, value, NULL)), MIN(value)), COALESCE(MAX(IF(sample, value, NULL)), MAX(value)),
+       COALESCE(SUM(mr), 0), COUNT(mr), MAX(last_value), MAX(IF(sample, started_at, NULL)), 0,
+       SUM(sample AND ((lsl IS NOT NULL AND value < lsl) OR (usl IS NOT NULL AND value > usl))), SUM(verdict = 'fail')
+     FROM (
+       SELECT step, name, qualifier, revision_id, station_id, unit, value, lsl, usl, verdict, started_at, ${SAMPLE} AS sample,
+         AVG(IF(${SAMPLE}, value, NULL)) OVER (${PARTITION}) AS shift,
+         IF(${SAMPLE}, ABS(value - LAG(value) OVER (${PARTITION}, ${SAMPLE} ORDER BY started_at, id)), NULL) AS mr,
+         IF(${SAMPLE} AND ROW_NUMBER() OVER (${PARTITION}, ${SAMPLE} ORDER BY started_at DESC, id DESC) = 1, value, NULL) AS last_value
+       FROM measurements WHERE ${cond} AND run_id NOT IN (SELECT run_id FROM lot_stats_pending WHERE lot_id = ?)
+     ) t
+     GROUP BY step, name, qualifier, revision_id, station_id`, [scope.lotId, ...vals, scope.lotId])
+}
+
+export type RebuildMark = { lotId: number; step: string; revisionId: number; stationId: number }
+
+export async function rebuildMarksOfLot(trx: Knex.Transaction, lotId: number): Promise<RebuildMark[]> {
+  const rows = await trx('lot_stats_rebuild').where({ lot_id: lotId }).select('lot_id', 'step', 'revision_id', 'station_id')
+  return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, revisionId: Number(r.revision_id), stationId: Number(r.station_id) }))
+}
+
+export async function forgetRebuildMark(trx: Knex.Transaction, m: RebuildMark): Promise<void> {
+  await trx('lot_stats_rebuild').where({ lot_id: m.lotId, step: m.step, revision_id: m.revisionId, station_id: m.stationId }).del()
 }

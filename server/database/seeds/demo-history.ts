@@ -1,8 +1,7 @@
 import type { Knex } from 'knex'
 import { DEMO_LOTS, DEMO_PRODUCTS, DEMO_STATIONS, type DemoProduct } from '../../../fixtures/demo-catalogue'
 import { generateRun, mulberry32, type GeneratedRun } from '../../../fixtures/run-generator'
-import { ingestRun } from '../../services/ingest/ingest-run'
-import { validateRun } from '../../utils/run-validator'
+import { ingestBatch } from '../../services/ingest/ingest-batch'
 import { writeAudit } from '../repositories/audit'
 
 const HOUR = 3_600_000
@@ -17,7 +16,22 @@ function stationJudgement(product: DemoProduct, run: GeneratedRun): 'pass' | 'fa
   return 'pass'
 }
 
-/** Test history for the demo lots, posted through the same ingest service the stations use. */
+// Days before the seed when each lot's testing began and ended: the released and shipped lots finished testing
+// days before their release, the open lots are still being tested.
+const TEST_WINDOW_DAYS: Record<string, [number, number]> = {
+  'D2-2611-A': [20, 4],
+  'T3-2611-A': [18, 3],
+  'T3-2612-B': [10, 0.25],
+  'X8-2611-A': [14, 0.5],
+}
+// a station's upload reaches Tercet a little after the run finishes
+const UPLOAD_DELAY_MS = 90_000
+const BATCH = 200
+
+/**
+ * Test history for the demo lots, written through the same batch path the stations use: each step's first attempts
+ * of the whole lot, then a retest of every unit that failed, step after step.
+ */
 export async function seedDemoHistory(db: Knex, now = new Date()): Promise<number> {
   const rand = mulberry32(20261201)
   const stations = await db('stations').select('id', 'name')
@@ -26,26 +40,42 @@ export async function seedDemoHistory(db: Knex, now = new Date()): Promise<numbe
   for (const lot of DEMO_LOTS) {
     const product = DEMO_PRODUCTS.find((p) => p.partNumber === lot.partNumber)!
     const lines = DEMO_STATIONS.filter((s) => s.partNumber === lot.partNumber).map((s) => stationByName.get(s.name)!)
-    const span = 17 * 24 * HOUR
-    const start = now.getTime() - 18 * 24 * HOUR
-    for (let u = 0; u < lot.units; u++) {
-      const serial = `${lot.code.slice(0, 2)}${lot.code.slice(3, 7)}-${String(u + 1).padStart(4, '0')}`
-      const station = lines[u % lines.length]!
-      let t = start + (span * u) / lot.units
-      for (const step of product.steps) {
-        const post = async (failRate: number) => {
-          const run = generateRun({ product, lot: lot.code, serial, step, startedAt: new Date(t), rand, progress: u / lot.units, drift: lot.drift, failRate, withTrace: step === 'final' })
+    const [fromDays, toDays] = TEST_WINDOW_DAYS[lot.code] ?? [18, 1]
+    const start = now.getTime() - fromDays * 24 * HOUR
+    const span = (fromDays - toDays) * 24 * HOUR - product.steps.length * 2 * 20 * 60_000
+    const clock = Array.from({ length: lot.units }, (_, u) => start + (span * u) / lot.units)
+    const serial = (u: number) => `${lot.code.slice(0, 2)}${lot.code.slice(3, 7)}-${String(u + 1).padStart(4, '0')}`
+    for (const step of product.steps) {
+      const post = async (units: number[], failRate: number) => {
+        type Lane = { station: { id: number; name: string }; runs: ReturnType<typeof generateRun>[]; units: number[] }
+        const byStation = new Map<number, Lane>()
+        for (const u of units) {
+          const run = generateRun({ product, lot: lot.code, serial: serial(u), step, startedAt: new Date(clock[u]!), rand, progress: u / lot.units, drift: lot.drift, failRate, withTrace: step === 'final' })
           run.stationVerdict = stationJudgement(product, run)
-          const v = validateRun(run)
-          if (!v.ok) throw new Error(`generated run is invalid: ${JSON.stringify(v.errors)}`)
-          const r = await ingestRun(db, station, v.value, now, { touchStation: false })
-          count++
-          t += 20 * 60_000
-          return r.status === 201 ? r.run.verdict : 'pass'
+          clock[u] = clock[u]! + 20 * 60_000
+          const station = lines[u % lines.length]!
+          const e: Lane = byStation.get(station.id) ?? { station, runs: [], units: [] }
+          e.runs.push(run)
+          e.units.push(u)
+          byStation.set(station.id, e)
         }
-        const verdict = await post(step === 'final' ? 0.05 : 0.02)
-        if (verdict === 'fail') await post(0)
+        const failed: number[] = []
+        for (const { station, runs, units: us } of byStation.values()) {
+          for (let i = 0; i < runs.length; i += BATCH) {
+            const results = await ingestBatch(db, station, runs.slice(i, i + BATCH), now, {
+              touchStation: false, receivedAt: (r) => new Date(r.ctx.finishedAt.getTime() + UPLOAD_DELAY_MS),
+            })
+            results.forEach((r, k) => {
+              if (r.status !== 201) throw new Error(`a demo run was refused: ${JSON.stringify(r)}`)
+              count++
+              if ((r as { run: { verdict: string } }).run.verdict === 'fail') failed.push(us[i + k]!)
+            })
+          }
+        }
+        return failed
       }
+      const failed = await post(clock.map((_, u) => u), step === 'final' ? 0.05 : 0.02)
+      if (failed.length) await post(failed.sort((a, b) => a - b), 0)
     }
   }
   await seedDemoShipments(db, now)

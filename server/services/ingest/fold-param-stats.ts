@@ -1,99 +1,124 @@
-// Folds queued runs into the lot × station parameter rows, many runs per transaction. Each run's own transaction
-// only queues it (one small row), so 32 stations posting into one lot never wait on the statistics rows, and the
-// database updates each row once per fold instead of once per run. Readers fold their lot first, so what they show
-// includes every stored run.
+// Folds queued runs into the lot × revision × station parameter rows, many runs per transaction. Each run's own
+// transaction only queues it (one small row), so stations posting into one lot never wait on the statistics rows,
+// and the database updates each row once per fold instead of once per run. A fold holds its lot's lease row for the
+// length of its transaction: folds of one lot take turns, folds of different lots run side by side. Readers fold
+// their lot first, so what they show includes every run stored before they asked.
 import type { Knex } from 'knex'
 import { movingRangeSum } from '../../../shared/utils/capability'
+import { ensureFoldLease, lotsToFold, markFolded, takeFoldLease } from '../../database/repositories/fold-leases'
 import {
-  anyPendingRuns, claimPendingRuns, foldedFirstAttemptValues, forgetPendingRuns, lockParamRows, lockStaleRow, staleParamRowKeys, valuesOfRuns,
-  writeMovingRange, writeParamRows,
+  anyRebuildMarks, foldedSampleValues, forgetQueuedRuns, forgetRebuildMark, newestQueuedRun, paramRowsOfLot, queuedRunsOfLot,
+  rebuildMarksOfLot, rebuildParamRows, valuesOfRuns, writeMovingRange, writeParamRows,
 } from '../../database/repositories/param-stats'
 import { problem } from '../../utils/problem'
-import { type BeginTransaction, STATS_LOCK_BUSY, withStatsLock } from './stats-lock'
 import { addValue, emptyParamRow, inTimeOrder, type ParamRow, type ParamRowKey } from './param-stats-merge'
 
 const RUNS_PER_FOLD = 500
-const RETRIES = 3
-// a reader waits this long for a fold in progress; a slice of 500 runs takes well under a second
+const RETRIES = 4
+// a reader waits this long for a fold of its lot in progress; a slice of 500 runs takes well under a second
 const READER_WAIT_SECONDS = 30
+const LOTS_PER_PASS = 50
 
-const keyText = (k: ParamRowKey) => `${k.lotId}\u0000${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.revisionId}\u0000${k.stationId}`
+const keyText = (k: ParamRowKey) => `${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.revisionId}\u0000${k.stationId}`
 
-/** One transaction: claim queued runs, add their measurements to the rows, drop them from the queue. */
-async function foldIn(trx: Knex.Transaction, lotIds: number[] | undefined): Promise<number> {
-  const pending = await claimPendingRuns(trx, { limit: RUNS_PER_FOLD, lotIds })
-  if (!pending.length) return 0
-  const runIds = pending.map((p) => p.runId)
-  const values = await valuesOfRuns(trx, runIds)
-  const rows = new Map<string, ParamRow>()
-  for (const r of await lockParamRows(trx, [...new Set(pending.map((p) => p.lotId))])) rows.set(keyText(r), r)
-  const touched = new Set<string>()
-  values.sort((a, b) => inTimeOrder(a.value, b.value))
-  for (const { key, value } of values) {
-    const k = keyText(key)
-    let row = rows.get(k)
-    if (!row) { row = emptyParamRow(key, value); rows.set(k, row) }
-    addValue(row, value)
-    touched.add(k)
-  }
-  await writeParamRows(trx, [...touched].map((k) => rows.get(k)!))
-  await forgetPendingRuns(trx, runIds)
-  return pending.length
+type Slice = { folded: number; more: boolean } | 'busy' | 'missing'
+
+/**
+ * One transaction on one lot: take its lease, add up to RUNS_PER_FOLD queued runs to its rows, recompute the rows a
+ * late run left stale or marked for rebuild, drop the folded runs from the queue.
+ */
+async function foldSlice(db: Knex, lotId: number, waitSeconds: number, upTo?: number): Promise<Slice> {
+  return db.transaction(async (trx) => {
+    const lease = await takeFoldLease(trx, lotId, waitSeconds)
+    if (lease !== 'taken') return lease
+    const runIds = await queuedRunsOfLot(trx, lotId, RUNS_PER_FOLD, upTo)
+    const marks = await rebuildMarksOfLot(trx, lotId)
+    if (!runIds.length && !marks.length) return { folded: 0, more: false }
+    const stale: ParamRow[] = []
+    if (runIds.length) {
+      const values = await valuesOfRuns(trx, runIds)
+      const rows = new Map<string, ParamRow>()
+      for (const r of await paramRowsOfLot(trx, lotId)) rows.set(keyText(r), r)
+      const touched = new Set<string>()
+      values.sort((a, b) => inTimeOrder(a.value, b.value))
+      for (const { key, value } of values) {
+        const k = keyText(key)
+        let row = rows.get(k)
+        if (!row) { row = emptyParamRow(key, value); rows.set(k, row) }
+        addValue(row, value)
+        touched.add(k)
+      }
+      const written = [...touched].map((k) => rows.get(k)!)
+      await writeParamRows(trx, written)
+      await forgetQueuedRuns(trx, runIds)
+      stale.push(...written.filter((r) => r.mrStale))
+    }
+    // a value older than the row's latest arrived: the moving range is taken again in test order
+    for (const key of stale) {
+      const values = await foldedSampleValues(trx, key)
+      await writeMovingRange(trx, key, movingRangeSum(values.map((v) => v.value)), values.at(-1))
+    }
+    // a run that became a unit's first attempt moved values into or out of the sample
+    for (const m of marks) {
+      await rebuildParamRows(trx, m)
+      await forgetRebuildMark(trx, m)
+    }
+    await markFolded(trx, lotId)
+    return { folded: runIds.length, more: runIds.length === RUNS_PER_FOLD }
+  })
 }
 
-/** Folds slices of the queue until it is empty, retrying a slice that lost a deadlock. */
-async function foldAll(begin: BeginTransaction, lotIds: number[] | undefined): Promise<number> {
-  let total = 0
-  for (let tries = 0; ;) {
+async function withRetries<T>(work: () => Promise<T>): Promise<T> {
+  for (let tries = 1; ; tries++) {
     try {
-      const n = await begin((trx) => foldIn(trx, lotIds))
-      total += n
-      if (n < RUNS_PER_FOLD) return total
+      return await work()
     } catch (e: any) {
-      if ((e?.code === 'ER_LOCK_DEADLOCK' || e?.code === 'ER_LOCK_WAIT_TIMEOUT') && ++tries < RETRIES) continue
-      throw e
+      if (!(e?.code === 'ER_LOCK_DEADLOCK' && tries < RETRIES)) throw e
     }
   }
 }
 
-/** Recomputes one row's moving-range terms from the measurements, after a late arrival left them stale. */
-async function rebuildMovingRange(begin: BeginTransaction, key: ParamRowKey): Promise<void> {
-  await begin(async (trx) => {
-    if (!(await lockStaleRow(trx, key))) return
-    const values = await foldedFirstAttemptValues(trx, key)
-    await writeMovingRange(trx, key, movingRangeSum(values.map((v) => v.value)), values.at(-1))
-  })
-}
-
-function busy(): never {
-  throw problem(503, 'The lot statistics are being updated; retry in a moment.', { headers: { 'Retry-After': '2' } })
+/** Folds one lot's queue; a background fold gives way when another fold of the lot is running. */
+async function foldLot(db: Knex, lotId: number, background: boolean): Promise<number | 'busy'> {
+  // a reader folds what was queued when it asked, not what keeps arriving while it folds
+  const upTo = background ? undefined : (await newestQueuedRun(db, lotId)) ?? undefined
+  let total = 0
+  for (;;) {
+    const slice = await withRetries(() => foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, upTo))
+    if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
+    if (slice === 'busy') return total || 'busy'
+    total += slice.folded
+    if (!slice.more) return total
+  }
 }
 
 /**
- * Folds every queued run (of the given lots, or all). A `background` fold gives way when another fold is running;
- * any other waits for it, so that what its caller reads afterwards includes every stored run.
- * Returns how many runs were folded.
+ * Folds every queued run of the given lots (or, in the background, of the lots that have any). A background fold
+ * skips a lot another fold is working on; any other waits for it. Returns how many runs were folded.
  */
 export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; background?: boolean } = {}): Promise<number> {
-  if (!(await anyPendingRuns(db, opts.lotIds))) return 0
-  const folded = await withStatsLock(db, opts.background ? 0 : READER_WAIT_SECONDS, (begin) => foldAll(begin, opts.lotIds))
-  if (folded !== STATS_LOCK_BUSY) return folded
-  if (opts.background) return 0
-  busy()
+  const lots = opts.lotIds ?? await lotsToFold(db, LOTS_PER_PASS)
+  let total = 0
+  for (const lotId of lots) {
+    const n = await foldLot(db, lotId, !!opts.background)
+    if (n !== 'busy') total += n
+  }
+  return total
 }
 
 /**
- * Brings the lots' parameter rows up to date before a reader reads them: queued runs are folded in and moving
- * ranges that a late arrival left stale are recomputed, all under the one statistics lock.
+ * Brings the lots' parameter rows up to date before a reader reads them: runs queued so far are folded in and rows
+ * a late run left for a rebuild are recomputed. Answers 503 when a fold of the lot holds its lease too long.
  */
 export async function freshenLotStats(db: Knex, lotIds: number[]): Promise<void> {
-  if (!lotIds.length) return
-  const [queued, stale] = await Promise.all([anyPendingRuns(db, lotIds), staleParamRowKeys(db, lotIds)])
-  if (!queued && !stale.length) return
-  const done = await withStatsLock(db, READER_WAIT_SECONDS, async (begin) => {
-    if (queued) await foldAll(begin, lotIds)
-    // the fold may itself have found late arrivals
-    for (const key of queued ? await staleParamRowKeys(db, lotIds) : stale) await rebuildMovingRange(begin, key)
-  })
-  if (done === STATS_LOCK_BUSY) busy()
+  for (const lotId of lotIds) {
+    const [queued, marked] = await Promise.all([newestQueuedRun(db, lotId), anyRebuildMarks(db, lotId)])
+    if (queued === null && !marked) continue
+    try {
+      await foldLot(db, lotId, false)
+    } catch (e: any) {
+      if (e?.code === 'ER_LOCK_WAIT_TIMEOUT') throw problem(503, 'The lot statistics are being updated; retry in a moment.', { headers: { 'Retry-After': '2' } })
+      throw e
+    }
+  }
 }

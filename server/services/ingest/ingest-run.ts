@@ -1,10 +1,10 @@
 import type { Knex } from 'knex'
 import type { StationRun } from '../../utils/run-validator'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
-import { findRunHashByUuid, loadRunsWithMeasurements, type RunRow } from '../../database/repositories/runs'
-import { joinStatements, withDriverConnection } from '../../database/raw-connection'
-import { FifoGate } from '../../utils/fifo-gate'
-import { lockedUnit, runWriteStatements, unitLockStatements } from './run-statements'
+import { findRunHashByUuid, loadRunsWithMeasurements } from '../../database/repositories/runs'
+import { ensureFoldLease } from '../../database/repositories/fold-leases'
+import { GroupWriter } from '../../utils/group-writer'
+import { writeRuns, type GroupResult, type RunToWrite } from './write-runs'
 import { calibrationCache, lotCache, productCache, specCache } from './caches'
 import { bodyHash } from './canonical'
 import { judgeRun, RunRejected } from './judge-run'
@@ -42,6 +42,7 @@ async function lotFor(db: Knex, code: string, product: ProductInfo): Promise<num
     if (!row) {
       await db.raw('INSERT IGNORE INTO lots (product_id, code) VALUES (?, ?)', [product.id, code])
       row = await db('lots').where({ code }).first('id', 'product_id')
+      await ensureFoldLease(db, row.id)
     }
     return { id: row.id as number, productId: row.product_id as number }
   }) as { id: number; productId: number }
@@ -101,30 +102,27 @@ export function freshRunView(station: StationRef, run: StationRun, ctx: Prepared
   }
 }
 
-export function runRowFor(station: StationRef, run: StationRun, hash: string, ctx: Prepared, unitId: number, attempt: number): RunRow {
-  const { startedAt, finishedAt, revision, judged, lotId, calibrationLapsed } = ctx
-  return {
-    uuid: run.id, bodyHash: hash, unitId, lotId, stationId: station.id, revisionId: revision.id, step: run.step, attempt,
-    startedAt, finishedAt, operator: run.operator ?? null, softwareSequence: run.software?.sequence ?? null,
-    softwareVersion: run.software?.version ?? null, temperatureC: run.conditions?.temperatureC ?? null,
-    supplyV: run.conditions?.supplyV ?? null, stationVerdict: run.stationVerdict ?? null, serverVerdict: judged.verdict,
-    verdictDisagrees: !!run.stationVerdict && run.stationVerdict !== judged.verdict, missingRequired: judged.missingRequired,
-    calibrationLapsed, measurementIssue: judged.measurementIssue, reference: run.reference ?? null,
-  }
+/** `touchStation: false` for runs that are history (imports, seeds): the station was not seen now. */
+export type IngestOptions = { touchStation?: boolean; receivedAt?: Date }
+
+// Concurrent posts are written together: 6 groups in flight of up to 32 runs each (measured on the 2-core box)
+const LANES = Number(process.env.TERCET_WRITE_LANES || 6)
+const MAX_GROUP = Number(process.env.TERCET_WRITE_GROUP || 32)
+const writers = new WeakMap<Knex, GroupWriter<RunToWrite, GroupResult>>()
+
+function writerFor(db: Knex): GroupWriter<RunToWrite, GroupResult> {
+  let w = writers.get(db)
+  if (!w) { w = new GroupWriter((items) => writeRuns(db, items), LANES, MAX_GROUP); writers.set(db, w) }
+  return w
 }
 
-const RETRYABLE = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT'])
-
 /**
- * Stores one validated run: judged against the revision in force at its start, with the unit, attempt,
- * measurements, traces and lot aggregates written in one transaction. Same id and body again → 200.
+ * Stores one validated run: judged against the revision in force at its start, placed among the unit's runs at
+ * its step by test time, written with whatever other posts arrive at the same moment. Same id and body again → 200.
+ * Answers only once the run is committed.
  */
-/** `touchStation: false` for runs that are history (imports, seeds): the station was not seen now. */
-export type IngestOptions = { touchStation?: boolean }
-
 export async function ingestRun(db: Knex, station: StationRef, run: StationRun, now = new Date(), options: IngestOptions = {}): Promise<IngestOutcome> {
   const hash = bodyHash(run)
-  // a replay is found by the unique id when the insert collides; the first post pays no extra look-up
   let ctx: Prepared
   try {
     ctx = await prepare(db, station, run, now)
@@ -133,54 +131,17 @@ export async function ingestRun(db: Knex, station: StationRef, run: StationRun, 
     if (e instanceof RunRejected) { const again = await replay(db, run.id, hash); if (again) return again }
     throw e
   }
-
-  for (let tries = 0; ; tries++) {
-    try {
-      const attempt = await storeRun(db, station, run, hash, ctx)
+  const result = await writerFor(db).submit({ station, run, hash, ctx, receivedAt: options.receivedAt ?? null })
+  if ('error' in result) throw result.error
+  const o = result.outcome
+  switch (o.kind) {
+    case 'stored':
       if (options.touchStation !== false) touchStation(db, station.id, now)
-      return { status: 201, run: freshRunView(station, run, ctx, attempt) }
-    } catch (e: any) {
-      if (e?.code === 'ER_DUP_ENTRY') {
-        // the same id posted before (a replay), or a concurrent post of the same unit's attempt
-        const again = await replay(db, run.id, hash)
-        if (again) return again
-        if (tries < 3) continue
-      }
-      if (RETRYABLE.has(e?.code) && tries < 3) continue
-      throw e
-    }
+      return { status: 201, run: freshRunView(station, run, ctx, o.attempt) }
+    case 'replay': return { status: 200, run: await loadRunView(db, o.runId!) }
+    case 'conflict': return { status: 409, detail: o.detail }
+    case 'refused': throw new RunRejected(o.detail, o.errors)
   }
-}
-
-// 16 measured best on the 2-core box (bench:ingest with 8, 12, 16 and 32 slots)
-const writers = new FifoGate(Number(process.env.TERCET_INGEST_WRITERS || 16))
-
-/**
- * One transaction in two round trips, in one of the process's write slots: the first creates or locks the unit and
- * reads its attempts at the step, the second writes the run and its rows (see run-statements) and commits.
- * Returns the attempt number given to the run.
- */
-async function storeRun(db: Knex, station: StationRef, run: StationRun, hash: string, ctx: Prepared): Promise<number> {
-  return writers.run(() => withDriverConnection(db, async (send, discard) => {
-    try {
-      const lock = joinStatements(['START TRANSACTION', unitLockStatements(ctx.product.id, ctx.lotId, run.serial, run.step)])
-      const unit = lockedUnit(await send(lock.sql, lock.values))
-      if (unit.lotId !== ctx.lotId) {
-        throw new RunRejected(`Serial ${run.serial} is recorded in another lot.`, [{ pointer: '/lot', message: 'the serial belongs to another lot' }])
-      }
-      const attempt = unit.attempts + 1
-      const write = joinStatements([runWriteStatements({
-        row: runRowFor(station, run, hash, ctx, unit.id, attempt), measurements: ctx.judged.measurements,
-        traces: run.traces ?? [], previousLatest: unit.latestVerdict,
-      }), 'COMMIT'])
-      await send(write.sql, write.values)
-      return attempt
-    } catch (e) {
-      // nothing of the run stays: whatever ran before the failing statement is undone
-      await send('ROLLBACK').catch(discard)
-      throw e
-    }
-  }))
 }
 
 const lastTouch = new Map<number, number>()

@@ -1,0 +1,183 @@
+// Every statement that stores runs: the same texts for one run or for many, sent by the write path in a few round
+// trips. Values travel as placeholders, except a run's own columns in its measurement rows (checked integers and
+// driver-escaped literals, written once per run rather than bound on every row).
+import mysql from 'mysql2'
+import type { JudgedMeasurement } from '../../../shared/types/judgement'
+
+export type Statement = { sql: string; values: unknown[] }
+
+type Verdict = 'pass' | 'fail'
+
+const tuple = (n: number) => `(${new Array(n).fill('?').join(', ')})`
+const list = (n: number) => new Array(n).fill('?').join(', ')
+
+/** Creates units on first sight and locks every one of them, existing ones included (no shared lock to upgrade). */
+export function unitsUpsert(productId: number, units: { serial: string; lotId: number }[]): Statement {
+  return {
+    sql: `INSERT INTO units (product_id, lot_id, serial) VALUES ${units.map(() => '(?, ?, ?)').join(', ')} ON DUPLICATE KEY UPDATE id = id`,
+    values: units.flatMap((u) => [productId, u.lotId, u.serial]),
+  }
+}
+
+export type LockedUnitRow = {
+  id: number; serial: string; lot_id: number; step: string | null; attempts: number | null
+  first_verdict: Verdict | null; latest_verdict: Verdict | null; latest_run_id: number | null
+  latest_started_at: Date | null; latest_finished_at: Date | null; latest_uuid: string | null; latest_station_id: number | null
+}
+
+/** The units with their step rows at the given steps and each step's latest run, under lock. */
+export function lockUnitsWithSteps(productId: number, serials: string[], steps: string[]): Statement {
+  return {
+    sql: `SELECT u.id, u.serial, u.lot_id, s.step, s.attempts, s.first_verdict, s.latest_verdict, s.latest_run_id,
+        lr.started_at AS latest_started_at, lr.finished_at AS latest_finished_at, lr.uuid AS latest_uuid, lr.station_id AS latest_station_id
+      FROM units u LEFT JOIN unit_steps s ON s.unit_id = u.id AND s.step IN (${list(steps.length)})
+        LEFT JOIN test_runs lr ON lr.id = s.latest_run_id
+      WHERE u.product_id = ? AND u.serial IN (${list(serials.length)}) ORDER BY u.serial FOR UPDATE`,
+    values: [...steps, productId, ...serials],
+  }
+}
+
+/** Removes a unit that has no run (created for a run that was then refused); the caller holds its lock. */
+export function dropUnitWithoutRuns(unitId: number): Statement {
+  return { sql: 'DELETE FROM units WHERE id = ? AND NOT EXISTS (SELECT 1 FROM test_runs WHERE unit_id = ?)', values: [unitId, unitId] }
+}
+
+export type StoredUuidRow = { id: number; uuid: string; body_hash: string }
+
+/** Runs already stored under the given station run ids (replays). */
+export function storedRunsByUuid(uuids: string[]): Statement {
+  return { sql: `SELECT id, uuid, body_hash FROM test_runs WHERE uuid IN (${list(uuids.length)})`, values: uuids }
+}
+
+export type StoredAttemptRow = {
+  id: number; unit_id: number; step: string; uuid: string; started_at: Date; finished_at: Date; attempt: number
+  server_verdict: Verdict; station_id: number; revision_id: number | null
+}
+
+/** Every stored run of the given unit steps, in attempt order: for placing a run that arrived after later ones. */
+export function storedAttempts(pairs: { unitId: number; step: string }[]): Statement {
+  return {
+    sql: `SELECT id, unit_id, step, uuid, started_at, finished_at, attempt, server_verdict, station_id, revision_id FROM test_runs
+      WHERE ${pairs.map(() => '(unit_id = ? AND step = ?)').join(' OR ')} ORDER BY unit_id, step, attempt`,
+    values: pairs.flatMap((p) => [p.unitId, p.step]),
+  }
+}
+
+/** New attempt numbers, applied from the highest old attempt down so the unique key never sees two at once. */
+export function renumberAttempts(moves: { runId: number; to: number }[]): Statement {
+  return {
+    sql: `UPDATE test_runs SET attempt = CASE id ${moves.map(() => 'WHEN ? THEN ?').join(' ')} END
+      WHERE id IN (${list(moves.length)}) ORDER BY attempt DESC`,
+    values: [...moves.flatMap((m) => [m.runId, m.to]), ...moves.map((m) => m.runId)],
+  }
+}
+
+export type RunRow = {
+  uuid: string; bodyHash: string; unitId: number; lotId: number; stationId: number; revisionId: number | null
+  step: string; attempt: number; startedAt: Date; finishedAt: Date; operator: string | null
+  softwareSequence: string | null; softwareVersion: string | null; temperatureC: number | null; supplyV: number | null
+  stationVerdict: Verdict | null; serverVerdict: Verdict; verdictDisagrees: boolean
+  missingRequired: { name: string; qualifier: number }[]; calibrationLapsed: boolean; measurementIssue: boolean; reference: unknown
+  /** when the run reached Tercet; null for now (the database clock) */
+  receivedAt: Date | null
+}
+
+const RUN_COLUMNS = `uuid, body_hash, unit_id, lot_id, station_id, revision_id, step, attempt, started_at, finished_at, operator,
+  software_sequence, software_version, temperature_c, supply_v, station_verdict, server_verdict, verdict_disagrees, missing_required,
+  calibration_lapsed, measurement_issue, reference, received_at`
+const RUN_TUPLE = `(${list(22)}, COALESCE(?, NOW(3)))`
+
+function runValues(r: RunRow): unknown[] {
+  return [r.uuid, r.bodyHash, r.unitId, r.lotId, r.stationId, r.revisionId, r.step, r.attempt, r.startedAt, r.finishedAt, r.operator,
+    r.softwareSequence, r.softwareVersion, r.temperatureC, r.supplyV, r.stationVerdict, r.serverVerdict, r.verdictDisagrees,
+    r.missingRequired.length ? JSON.stringify(r.missingRequired) : null, r.calibrationLapsed, r.measurementIssue,
+    r.reference ? JSON.stringify(r.reference) : null, r.receivedAt]
+}
+
+/** The runs, answering each one's new id with its station run id. */
+export function runsInsert(rows: RunRow[]): Statement {
+  const values: unknown[] = []
+  for (const r of rows) values.push(...runValues(r))
+  return { sql: `INSERT INTO test_runs (${RUN_COLUMNS}) VALUES ${rows.map(() => RUN_TUPLE).join(', ')} RETURNING id, uuid`, values }
+}
+
+export type MeasurementContext = { runId: number; lotId: number; stationId: number; revisionId: number | null; step: string; firstAttempt: boolean; startedAt: Date }
+
+/** A DATETIME(3) literal in UTC, as the connection's time zone reads it. */
+function utcLiteral(d: Date): string {
+  return `'${d.toISOString().slice(0, 23).replace('T', ' ')}'`
+}
+
+const MEASUREMENT_HEAD = `INSERT INTO measurements (run_id, lot_id, station_id, revision_id, step, first_attempt, started_at, name, qualifier, value, unit,
+  uncertainty, lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible) VALUES `
+const MEASUREMENT_BOUND = list(15)
+
+/** The measurements of one or more runs in one INSERT, with the limits applied copied beside each value. */
+export function measurementsInsert(items: { ctx: MeasurementContext; ms: JudgedMeasurement[] }[]): Statement {
+  let sql = MEASUREMENT_HEAD
+  const values: unknown[] = []
+  let first = true
+  for (const { ctx, ms } of items) {
+    const revisionId = ctx.revisionId ?? 0
+    if (![ctx.runId, ctx.lotId, ctx.stationId, revisionId].every(Number.isInteger)) throw new TypeError('run, lot, station and revision ids must be integers')
+    const row = `(${ctx.runId}, ${ctx.lotId}, ${ctx.stationId}, ${revisionId}, ${mysql.escape(ctx.step)}, ${ctx.firstAttempt ? 1 : 0}, ${utcLiteral(ctx.startedAt)}, ${MEASUREMENT_BOUND})`
+    for (const m of ms) {
+      sql += first ? row : `, ${row}`
+      first = false
+      const l = m.limit
+      values.push(m.name, m.qualifier, m.value, m.unit, m.uncertainty,
+        l ? l.lsl : null, l ? l.usl : null, l ? l.target : null, l ? l.rule : null, l ? l.guardBand : null,
+        m.verdict, m.zone, m.derived, m.excessDb, m.implausible)
+    }
+  }
+  return { sql, values }
+}
+
+export function tracesInsert(rows: { runId: number; name: string; points: string }[]): Statement {
+  return { sql: `INSERT INTO traces (run_id, name, points) VALUES ${rows.map(() => '(?, ?, ?)').join(', ')}`, values: rows.flatMap((t) => [t.runId, t.name, t.points]) }
+}
+
+/** Moves stored runs' measurements into or out of the first-attempt sample. */
+export function firstAttemptFlags(runIds: number[], firstAttempt: boolean): Statement {
+  return { sql: `UPDATE measurements SET first_attempt = ? WHERE run_id IN (${list(runIds.length)})`, values: [firstAttempt, ...runIds] }
+}
+
+export type UnitStepRow = { unitId: number; step: string; attempts: number; firstVerdict: Verdict; latestVerdict: Verdict; latestRunId: number }
+
+/** The units' step rows as they stand after the write. */
+export function unitStepsUpsert(rows: UnitStepRow[]): Statement {
+  return {
+    sql: `INSERT INTO unit_steps (unit_id, step, attempts, first_verdict, latest_verdict, latest_run_id) VALUES ${rows.map(() => tuple(6)).join(', ')}
+      ON DUPLICATE KEY UPDATE attempts = VALUES(attempts), first_verdict = VALUES(first_verdict), latest_verdict = VALUES(latest_verdict), latest_run_id = VALUES(latest_run_id)`,
+    values: rows.flatMap((r) => [r.unitId, r.step, r.attempts, r.firstVerdict, r.latestVerdict, r.latestRunId]),
+  }
+}
+
+export type StepCounterRow = { lotId: number; step: string; stationId: number; runs: number; units: number; firstPass: number; latestPass: number }
+
+/**
+ * Changes to the yield counters, one row per lot, step and station. Rows are locked in key order whoever writes
+ * them, so two writers touching the same rows wait for each other instead of deadlocking.
+ */
+export function stepCountersAdd(rows: StepCounterRow[]): Statement {
+  const sorted = [...rows].sort((a, b) => a.lotId - b.lotId || (a.step < b.step ? -1 : a.step > b.step ? 1 : 0) || a.stationId - b.stationId)
+  return {
+    sql: `INSERT INTO lot_step_stats (lot_id, step, station_id, runs, units, first_pass, latest_pass) VALUES ${sorted.map(() => tuple(7)).join(', ')}
+      ON DUPLICATE KEY UPDATE runs = runs + VALUES(runs), units = units + VALUES(units), first_pass = first_pass + VALUES(first_pass),
+        latest_pass = latest_pass + VALUES(latest_pass)`,
+    values: sorted.flatMap((r) => [r.lotId, r.step, r.stationId, r.runs, r.units, r.firstPass, r.latestPass]),
+  }
+}
+
+/** Runs whose measurements the parameter statistics have yet to take in (see fold-param-stats). */
+export function pendingStatsInsert(rows: { runId: number; lotId: number }[]): Statement {
+  return { sql: `INSERT INTO lot_stats_pending (run_id, lot_id) VALUES ${rows.map(() => '(?, ?)').join(', ')}`, values: rows.flatMap((r) => [r.runId, r.lotId]) }
+}
+
+/** Statistics rows whose first-attempt sample lost or gained a stored run: the next fold recomputes them. */
+export function statsRebuildMark(rows: { lotId: number; step: string; revisionId: number; stationId: number }[]): Statement {
+  return {
+    sql: `INSERT IGNORE INTO lot_stats_rebuild (lot_id, step, revision_id, station_id) VALUES ${rows.map(() => tuple(4)).join(', ')}`,
+    values: rows.flatMap((r) => [r.lotId, r.step, r.revisionId, r.stationId]),
+  }
+}

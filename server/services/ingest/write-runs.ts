@@ -1,0 +1,155 @@
+// Writes a group of judged runs — one station post, many concurrent posts, a batch or a slice of an import — in one
+// transaction of three round trips: lock the units and find replays; insert the runs; write everything that hangs
+// off them and commit. A run placed before runs stored earlier adds one round trip for that unit's history.
+import type { Knex } from 'knex'
+import { sendStatements, withDriverConnection, type SendStatements, type Statement } from '../../database/raw-connection'
+import {
+  dropUnitWithoutRuns, firstAttemptFlags, lockUnitsWithSteps, measurementsInsert, pendingStatsInsert, renumberAttempts, runsInsert, statsRebuildMark,
+  stepCountersAdd, storedAttempts, storedRunsByUuid, tracesInsert, unitStepsUpsert, unitsUpsert,
+  type LockedUnitRow, type StoredAttemptRow, type StoredUuidRow,
+} from '../../database/repositories/run-writes'
+import { lockedUnits, placeRuns, rowsAfter, runRowFor, screen, unitsToLock, type LockedUnit, type RunToWrite, type WriteOutcome } from './write-plan'
+
+export type { RunToWrite, WriteOutcome }
+
+// keeps each measurement or trace statement well under max_allowed_packet
+const MEASUREMENT_ROWS_PER_STATEMENT = 4000
+const TRACE_BYTES_PER_STATEMENT = 2 * 1024 * 1024
+
+function measurementStatements(items: Parameters<typeof measurementsInsert>[0]): Statement[] {
+  const out: Statement[] = []
+  let part: typeof items = []
+  let rows = 0
+  for (const it of items) {
+    if (!it.ms.length) continue
+    if (rows && rows + it.ms.length > MEASUREMENT_ROWS_PER_STATEMENT) { out.push(measurementsInsert(part)); part = []; rows = 0 }
+    part.push(it)
+    rows += it.ms.length
+  }
+  if (part.length) out.push(measurementsInsert(part))
+  return out
+}
+
+function traceStatements(rows: { runId: number; name: string; points: string }[]): Statement[] {
+  const out: Statement[] = []
+  let part: typeof rows = []
+  let bytes = 0
+  for (const r of rows) {
+    if (part.length && bytes + r.points.length > TRACE_BYTES_PER_STATEMENT) { out.push(tracesInsert(part)); part = []; bytes = 0 }
+    part.push(r)
+    bytes += r.points.length
+  }
+  if (part.length) out.push(tracesInsert(part))
+  return out
+}
+
+async function lockAndScreen(send: SendStatements, items: RunToWrite[]) {
+  const plan = unitsToLock(items)
+  const statements: (Statement | string)[] = ['START TRANSACTION']
+  for (const [productId, p] of plan) statements.push(unitsUpsert(productId, p.serials), lockUnitsWithSteps(productId, p.serials.map((s) => s.serial), p.steps))
+  statements.push(storedRunsByUuid([...new Set(items.map((i) => i.run.id))]))
+  const results = await sendStatements(send, statements)
+  const units = new Map<string, LockedUnit>()
+  let k = 1
+  for (const productId of plan.keys()) {
+    lockedUnits(productId, results[k + 1] as LockedUnitRow[], units)
+    k += 2
+  }
+  return screen(items, units, results[k] as StoredUuidRow[])
+}
+
+/** One transaction for the whole group; throws (after rolling back) when the database refuses any statement. */
+export async function writeGroupOnce(db: Knex, items: RunToWrite[]): Promise<WriteOutcome[]> {
+  return withDriverConnection(db, async (send, discard) => {
+    try {
+      const screened = await lockAndScreen(send, items)
+      const history = screened.needHistory.length ? (await sendStatements(send, [storedAttempts(screened.needHistory)]))[0] as StoredAttemptRow[] : []
+      const plan = placeRuns(screened, history)
+      // a run refused as a conflict may have created its unit above: a unit left without runs goes again
+      const orphans = items.flatMap((it, i) => (plan.outcomes[i]?.kind === 'conflict' ? [screened.unitOf(it)] : []))
+      if (!plan.steps.length) {
+        await sendStatements(send, [...orphans.map(dropUnitWithoutRuns), 'COMMIT'])
+        return plan.outcomes as WriteOutcome[]
+      }
+
+      const rows = plan.steps.flatMap((s) => s.accepted.map((a) => runRowFor(a.item, a.unit.id, s.plan.attempts.get(a.index)!)))
+      const renumber = plan.steps.flatMap((s) => s.plan.renumber)
+      const inserted = (await sendStatements(send, [...(renumber.length ? [renumberAttempts(renumber)] : []), runsInsert(rows)])).at(-1) as { id: number; uuid: string }[]
+      const idByUuid = new Map(inserted.map((r) => [r.uuid, Number(r.id)]))
+      const runIds = new Map<number, number>()
+      for (const s of plan.steps) for (const a of s.accepted) runIds.set(a.index, idByUuid.get(a.item.run.id)!)
+
+      const after = rowsAfter(plan, runIds)
+      const accepted = plan.steps.flatMap((s) => s.accepted.map((a) => ({ a, attempt: s.plan.attempts.get(a.index)!, runId: runIds.get(a.index)! })))
+      const writes: (Statement | string)[] = [
+        ...measurementStatements(accepted.map(({ a, attempt, runId }) => ({
+          ctx: { runId, lotId: a.item.ctx.lotId, stationId: a.item.station.id, revisionId: a.item.ctx.revision.id, step: a.item.run.step, firstAttempt: attempt === 1, startedAt: a.item.ctx.startedAt },
+          ms: a.item.ctx.judged.measurements,
+        }))),
+        ...traceStatements(accepted.flatMap(({ a, runId }) => (a.item.run.traces ?? []).map((t) => ({ runId, name: t.name, points: JSON.stringify(t.points) })))),
+      ]
+      if (after.demoted.length) writes.push(firstAttemptFlags(after.demoted, false))
+      if (after.promoted.length) writes.push(firstAttemptFlags(after.promoted, true))
+      writes.push(unitStepsUpsert(after.unitSteps), stepCountersAdd(after.counters))
+      writes.push(pendingStatsInsert(accepted.map(({ a, runId }) => ({ runId, lotId: a.item.ctx.lotId }))))
+      if (after.rebuild.length) writes.push(statsRebuildMark(after.rebuild))
+      writes.push(...orphans.map(dropUnitWithoutRuns), 'COMMIT')
+      await sendStatements(send, writes)
+
+      for (const { a, attempt, runId } of accepted) plan.outcomes[a.index] = { kind: 'stored', attempt, runId }
+      // a repeat of a run stored earlier in this group answers with that run
+      for (const o of plan.outcomes) if (o?.kind === 'replay' && o.sameAs !== undefined) o.runId = (plan.outcomes[o.sameAs] as { runId: number }).runId
+      return plan.outcomes as WriteOutcome[]
+    } catch (e) {
+      // nothing of the group stays: whatever ran before the failing statement is undone
+      await send('ROLLBACK').catch(discard)
+      throw e
+    }
+  })
+}
+
+/** A concurrent writer took the same unit or id first, or the cluster refused the commit: the group may be tried again. */
+const RETRY = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT', 'ER_DUP_ENTRY'])
+const TRIES = 4
+
+export function isRetryable(e: unknown): boolean {
+  return RETRY.has((e as { code?: string })?.code ?? '')
+}
+
+const pause = (tries: number) => new Promise((r) => setTimeout(r, 2 + Math.random() * 8 * tries))
+
+async function withRetries<T>(work: () => Promise<T>): Promise<T> {
+  for (let tries = 1; ; tries++) {
+    try {
+      return await work()
+    } catch (e) {
+      if (!isRetryable(e) || tries >= TRIES) throw e
+      await pause(tries)
+    }
+  }
+}
+
+export type GroupResult = { outcome: WriteOutcome } | { error: unknown }
+
+/**
+ * Writes the group, retrying what a concurrent writer made fail. If the group still fails, each run is written on
+ * its own, so one run the database refuses never takes the others down: every run gets its own result.
+ */
+export async function writeRuns(db: Knex, items: RunToWrite[]): Promise<GroupResult[]> {
+  if (!items.length) return []
+  try {
+    return (await withRetries(() => writeGroupOnce(db, items))).map((outcome) => ({ outcome }))
+  } catch (e) {
+    if (items.length === 1) return [{ error: e }]
+  }
+  const out: GroupResult[] = []
+  for (const item of items) {
+    try {
+      const [outcome] = await withRetries(() => writeGroupOnce(db, [item]))
+      out.push({ outcome: outcome! })
+    } catch (error) {
+      out.push({ error })
+    }
+  }
+  return out
+}
