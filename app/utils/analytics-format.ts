@@ -105,9 +105,9 @@ export function revisionList(revisions: readonly (number | null)[]): string {
   return `revisions ${words.slice(0, -1).join(', ')} and ${words[words.length - 1]}`
 }
 
-/** "0.89–1.41" for an index interval; dash when there is none. */
+/** "0.89…1.41" for an index interval (an ellipsis, since either end may carry a minus sign); dash when there is none. */
 export function intervalText(i: readonly [number, number] | null | undefined): string {
-  return i ? `${index(i[0])}–${index(i[1])}` : DASH
+  return i ? `${index(i[0])}…${index(i[1])}` : DASH
 }
 
 /** Why a lot is flagged on the across-lot chart of its means ("" when it is not). */

@@ -37,7 +37,8 @@ describe('the lot page of a lot judged under two revisions', () => {
     expect(texts[1]).not.toContain('12.000')
     expect(await page.locator('[data-test="interval-legend"]').first().textContent()).toContain('approximate')
 
-    // the charts follow the chosen revision
+    // the charts follow the chosen revision (a drawn chart says the page has hydrated and listens to clicks)
+    await expect.poll(() => page.locator('.apexcharts-canvas').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(1)
     await powerRows.nth(0).click()
     await expect.poll(() => new URL(page.url()).searchParams.get('rev'), { timeout: 10_000 }).toBe('1')
     await expect.poll(() => page.getByLabel('Revision of the charts').inputValue(), { timeout: 20_000 }).toBe('1')
@@ -54,6 +55,8 @@ describe('the lot page of a lot judged under two revisions', () => {
     const note = page.locator('[data-test="revision-note"]')
     await expect.poll(() => note.count(), { timeout: 20_000 }).toBe(1)
     expect(await page.locator('[data-test="pn-revision"]').textContent()).toContain('rev. 2')
+    // the chart is drawn in the browser only: once it is there, the page has hydrated and the select listens
+    await expect.poll(() => page.locator('.apexcharts-canvas').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(1)
     await page.getByLabel('Revision', { exact: true }).selectOption('1')
     await expect.poll(() => page.locator('[data-test="pn-revision"]').textContent(), { timeout: 20_000 }).toContain('rev. 1')
     await shot(page, 'phase-noise-two-revisions')
