@@ -92,3 +92,28 @@ export const RULE_TEXT: Record<number, string> = {
   3: 'Rule 3: four of five points beyond 1σ on the same side',
   4: 'Rule 4: eight points in a row on one side of the centre line',
 }
+
+/** "rev. 3"; values stored without a revision read "no rev.". */
+export function revisionText(revision: number | null | undefined): string {
+  return revision === null || revision === undefined ? 'no rev.' : `rev. ${revision}`
+}
+
+/** "revision 2", "revisions 2 and 3", "revisions 1, 2 and 4" (a missing revision reads "none recorded"). */
+export function revisionList(revisions: readonly (number | null)[]): string {
+  const words = revisions.map((r) => (r === null ? 'none recorded' : String(r)))
+  if (words.length <= 1) return `revision ${words[0] ?? DASH}`
+  return `revisions ${words.slice(0, -1).join(', ')} and ${words[words.length - 1]}`
+}
+
+/** "0.89…1.41" for an index interval (an ellipsis, since either end may carry a minus sign); dash when there is none. */
+export function intervalText(i: readonly [number, number] | null | undefined): string {
+  return i ? `${index(i[0])}…${index(i[1])}` : DASH
+}
+
+/** Why a lot is flagged on the across-lot chart of its means ("" when it is not). */
+export function trendFlagNote(l: { beyondLimits: boolean; rules: number[] }): string {
+  const parts: string[] = []
+  if (l.beyondLimits) parts.push('mean beyond the across-lot limits')
+  for (const r of l.rules) if (r !== 1) parts.push(RULE_TEXT[r] ?? `Rule ${r}`)
+  return parts.join('; ')
+}

@@ -1,6 +1,6 @@
 // Process capability (Cp/Cpk from within sigma, Pp/Ppk from overall sigma), intervals and expected fallout.
 
-import { normalCdf, normalQuantile, normalUpperTail } from './distributions'
+import { chiSquareQuantile, normalCdf, normalQuantile, normalUpperTail } from './distributions'
 import { momentsFromValues, stdDev } from './moments'
 
 /** d2 for subgroups of 2: the mean range of two N(0,1) draws is exactly 2/√π = 1.1283792 (tables print 1.128). */
@@ -76,12 +76,60 @@ export function sigmaFromMovingRange(mrSum: number, mrCount: number): number {
   return mrCount > 0 ? mrSum / mrCount / D2_N2 : NaN
 }
 
-/** Approximate Cpk interval Ĉpk ± z·√(1/(9n) + Ĉpk²/(2(n−1))) (Bissell 1990, Applied Statistics 39(3)); null if undefined. */
-export function bissellCpkInterval(cpk: number | null, n: number, confidence = 0.95): [number, number] | null {
-  if (cpk === null || !Number.isFinite(cpk) || !(n >= 2) || !(confidence > 0 && confidence < 1)) return null
+/**
+ * Approximate interval for Cpk or Ppk: Ĉ ± z·√(1/(9n) + Ĉ²/(2(n−1))) (Bissell 1990, "How reliable is your capability
+ * index?", Applied Statistics 39(3)), derived for σ estimated by the sample standard deviation; null if undefined.
+ */
+export function bissellInterval(index: number | null, n: number, confidence = 0.95): [number, number] | null {
+  if (index === null || !Number.isFinite(index) || !(n >= 2) || !(confidence > 0 && confidence < 1)) return null
   const z = normalQuantile(1 - (1 - confidence) / 2)
-  const se = Math.sqrt(1 / (9 * n) + (cpk * cpk) / (2 * (n - 1)))
-  return [cpk - z * se, cpk + z * se]
+  const se = Math.sqrt(1 / (9 * n) + (index * index) / (2 * (n - 1)))
+  return [index - z * se, index + z * se]
+}
+
+/** The Bissell interval under the name the Cpk column has always used. */
+export const bissellCpkInterval = bissellInterval
+
+/**
+ * Interval for Cp or Pp: Ĉ·√(χ²(α/2; ν)/ν) ≤ C ≤ Ĉ·√(χ²(1−α/2; ν)/ν), χ²(p; ν) the lower p-quantile (NIST/SEMATECH
+ * e-Handbook §6.1.6; Montgomery, Introduction to SQC, ch. 8). Exact under normality when σ is the sample standard
+ * deviation and ν = n − 1. Null when the index or ν is unusable.
+ */
+export function chiSquareInterval(index: number | null, df: number, confidence = 0.95): [number, number] | null {
+  if (index === null || !Number.isFinite(index) || !(index > 0) || !(df >= 1) || !(confidence > 0 && confidence < 1)) return null
+  const alpha = 1 - confidence
+  return [index * Math.sqrt(chiSquareQuantile(alpha / 2, df) / df), index * Math.sqrt(chiSquareQuantile(1 - alpha / 2, df) / df)]
+}
+
+export type CapabilityIntervals = {
+  cp: [number, number] | null
+  cpk: [number, number] | null
+  pp: [number, number] | null
+  ppk: [number, number] | null
+}
+
+/**
+ * How each interval is formed, for the legend beside the figures. Pp and Ppk use σ overall, the sample standard
+ * deviation, for which the chi-square and Bissell forms were derived. Cp and Cpk use σ within = MR̄/d2, which is less
+ * efficient than the sample standard deviation of the same values; no published degrees of freedom for it is applied
+ * here, so their intervals are approximate: computed as if σ within were a sample standard deviation with n − 1
+ * degrees of freedom, and if anything too narrow.
+ */
+export const CAPABILITY_INTERVAL_BASIS = {
+  cp: { sigma: 'within', method: 'chi-square', approximate: true },
+  cpk: { sigma: 'within', method: 'bissell', approximate: true },
+  pp: { sigma: 'overall', method: 'chi-square', approximate: false },
+  ppk: { sigma: 'overall', method: 'bissell', approximate: true },
+} as const
+
+/** Intervals of all four indices from one sample of n values: chi-square on ν = n − 1 for Cp/Pp, Bissell for Cpk/Ppk. */
+export function capabilityIntervals(indices: Pick<CapabilityIndices, 'cp' | 'cpk' | 'pp' | 'ppk'>, n: number, confidence = 0.95): CapabilityIntervals {
+  return {
+    cp: chiSquareInterval(indices.cp, n - 1, confidence),
+    cpk: bissellInterval(indices.cpk, n, confidence),
+    pp: chiSquareInterval(indices.pp, n - 1, confidence),
+    ppk: bissellInterval(indices.ppk, n, confidence),
+  }
 }
 
 /** Expected fraction outside the limits under N(μ, σ²), in ppm: 10⁶·[Φ((LSL−μ)/σ) + 1 − Φ((USL−μ)/σ)]. */
@@ -121,6 +169,8 @@ export type CapabilitySummary = CapabilityIndices & {
   sigmaWithin: number | null
   sigmaOverall: number | null
   cpkInterval: [number, number] | null
+  /** 95 % intervals of all four indices (see CAPABILITY_INTERVAL_BASIS for the sigma each assumes). */
+  intervals: CapabilityIntervals
   outOfSpecCount: number
   observedPpm: number | null
   /** Normal-model fallout using σ_overall (long-term view, consistent with Ppk). */
@@ -131,7 +181,7 @@ export type CapabilitySummary = CapabilityIndices & {
 }
 
 /**
- * Full recomputation from raw values in test order: σ_within = MR̄/d2, σ_overall = sample s, Bissell interval on Cpk.
+ * Full recomputation from raw values in test order: σ_within = MR̄/d2, σ_overall = sample s, intervals on every index.
  * A value exactly on a limit counts as in spec.
  */
 export function capabilityFromValues(valuesInTestOrder: readonly number[], limits: SpecLimits): CapabilitySummary {
@@ -169,7 +219,8 @@ export function capabilityFromStats(stats: CapabilityStats): CapabilitySummary {
     sigmaWithin,
     sigmaOverall,
     ...indices,
-    cpkInterval: bissellCpkInterval(indices.cpk, n),
+    cpkInterval: bissellInterval(indices.cpk, n),
+    intervals: capabilityIntervals(indices, n),
     outOfSpecCount,
     observedPpm: hasLimits ? observedPpm(outOfSpecCount, n) : null,
     expectedPpm: mean === null ? null : expectedPpmOutOfSpec(mean, sigmaOverall, lsl, usl),

@@ -1,4 +1,4 @@
-// Normal and Student t distribution kernels, dependency-free.
+// Normal, Student t and chi-square distribution kernels, dependency-free.
 
 const SQRT_PI = Math.sqrt(Math.PI)
 const SQRT_2PI = Math.sqrt(2 * Math.PI)
@@ -198,4 +198,93 @@ export function studentTQuantile(p: number, df: number): number {
   }
   const t = 0.5 * (lo + hi)
   return p < 0.5 ? -t : t
+}
+
+/** Lower regularized gamma P(a, x) by its series, for x < a + 1 (Numerical Recipes §6.2, gser). */
+function gammaSeries(a: number, x: number): number {
+  let ap = a
+  let sum = 1 / a
+  let del = sum
+  for (let n = 1; n < 10000; n++) {
+    ap += 1
+    del *= x / ap
+    sum += del
+    if (Math.abs(del) < Math.abs(sum) * EPS) break
+  }
+  return sum * Math.exp(-x + a * Math.log(x) - lnGamma(a))
+}
+
+/** Upper regularized gamma Q(a, x) by its continued fraction, for x ≥ a + 1 (Numerical Recipes §6.2, gcf, modified Lentz). */
+function gammaContinuedFraction(a: number, x: number): number {
+  let b = x + 1 - a
+  let c = 1 / TINY
+  let d = 1 / b
+  let h = d
+  for (let i = 1; i < 10000; i++) {
+    const an = -i * (i - a)
+    b += 2
+    d = an * d + b
+    if (Math.abs(d) < TINY) d = TINY
+    c = b + an / c
+    if (Math.abs(c) < TINY) c = TINY
+    d = 1 / d
+    const delta = d * c
+    h *= delta
+    if (Math.abs(delta - 1) < EPS) break
+  }
+  return Math.exp(-x + a * Math.log(x) - lnGamma(a)) * h
+}
+
+/** Regularized lower incomplete gamma P(a, x) = γ(a, x)/Γ(a) (A&S 6.5.1). */
+export function regularizedGammaP(a: number, x: number): number {
+  if (Number.isNaN(a) || Number.isNaN(x) || !(a > 0)) return NaN
+  if (x <= 0) return 0
+  if (x === Infinity) return 1
+  return x < a + 1 ? gammaSeries(a, x) : 1 - gammaContinuedFraction(a, x)
+}
+
+/** Regularized upper incomplete gamma Q(a, x) = 1 − P(a, x), computed directly so the far tail keeps its digits. */
+export function regularizedGammaQ(a: number, x: number): number {
+  if (Number.isNaN(a) || Number.isNaN(x) || !(a > 0)) return NaN
+  if (x <= 0) return 1
+  if (x === Infinity) return 0
+  return x < a + 1 ? 1 - gammaSeries(a, x) : gammaContinuedFraction(a, x)
+}
+
+/** Chi-square cdf P(X ≤ x) with k degrees of freedom: P(k/2, x/2) (A&S 26.4.19). */
+export function chiSquareCdf(x: number, k: number): number {
+  return regularizedGammaP(k / 2, x / 2)
+}
+
+/** Chi-square upper tail P(X > x), accurate where 1 − cdf would lose digits. */
+export function chiSquareUpperTail(x: number, k: number): number {
+  return regularizedGammaQ(k / 2, x / 2)
+}
+
+/**
+ * Chi-square quantile: the x with P(X ≤ x) = p, by bisection on whichever tail is smaller (monotone, so it always
+ * converges to the last representable x). 0 at p = 0, Infinity at p = 1, NaN outside [0, 1] or for k ≤ 0.
+ */
+export function chiSquareQuantile(p: number, k: number): number {
+  if (Number.isNaN(p) || p < 0 || p > 1 || !(k > 0) || !Number.isFinite(k)) return NaN
+  if (p === 0) return 0
+  if (p === 1) return Infinity
+  const lower = p <= 0.5
+  const tail = lower ? p : 1 - p
+  // the tail probability falls as x grows for the upper tail and rises for the lower one
+  const beyond = (x: number) => (lower ? chiSquareCdf(x, k) > tail : chiSquareUpperTail(x, k) < tail)
+  let lo = 0
+  let hi = Math.max(1, 2 * k)
+  while (!beyond(hi)) {
+    lo = hi
+    hi *= 2
+    if (!Number.isFinite(hi)) return Infinity
+  }
+  for (let i = 0; i < 2000; i++) {
+    const mid = 0.5 * (lo + hi)
+    if (mid <= lo || mid >= hi) break
+    if (beyond(mid)) hi = mid
+    else lo = mid
+  }
+  return 0.5 * (lo + hi)
 }

@@ -135,7 +135,7 @@ describe('GET /api/stations/compare', () => {
 })
 
 describe('GET /api/trends', () => {
-  it('lists the fresh lot with n, mean, σ and a Cpk from the pooled moving ranges', async () => {
+  it('lists the fresh lot with n, mean, σ and, under its one revision, a Cpk from the pooled moving ranges', async () => {
     const r = await get('/api/trends?part=VFW-T3-375&name=output_power&step=final')
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     const lot = r.body.lots.find((l: any) => l.code === LOT)
@@ -145,11 +145,20 @@ describe('GET /api/trends', () => {
     expect(lot.sigma).toBeCloseTo(sampleStandardDeviation(ALL_POWER), 10)
     const sw = pooledSigmaWithin([POWER_A, POWER_B])
     expect(lot.sigmaWithin).toBeCloseTo(sw, 10)
+    // every run of the lot was judged by the demo revision 1 (LSL 5.5, USL 8.5): one capability entry
+    expect(lot.capability).toHaveLength(1)
+    const c = lot.capability[0]
+    expect(c).toMatchObject({ revision: 1, lsl: 5.5, usl: 8.5, n: ALL_POWER.length, outOfSpec: 0 })
+    expect(c.sigmaWithin).toBeCloseTo(sw, 10)
     const m = ssMean(ALL_POWER)
     const cpk = Math.min(8.5 - m, m - 5.5) / (3 * sw)
-    expect(lot.cpk).toBeCloseTo(cpk, 9)
+    expect(c.cpk).toBeCloseTo(cpk, 9)
+    // Bissell (1990) interval on Cpk, z from jstat
+    const z = jStat.normal.inv(0.975, 0, 1)
+    const se = Math.sqrt(1 / (9 * ALL_POWER.length) + cpk ** 2 / (2 * (ALL_POWER.length - 1)))
+    expect(c.intervals.cpk[0]).toBeCloseTo(cpk - z * se, 8)
     // fewer than 30 values are not banded (common-practice floor, from memory)
-    expect(lot.band).toBe(ALL_POWER.length < 30 ? 'too_few' : cpk >= 1.33 ? 'capable' : cpk >= 1 ? 'marginal' : 'not_capable')
+    expect(c.band).toBe(ALL_POWER.length < 30 ? 'too_few' : cpk >= 1.33 ? 'capable' : cpk >= 1 ? 'marginal' : 'not_capable')
     expect(lot.firstRunAt < lot.lastRunAt).toBe(true)
   })
 
@@ -212,6 +221,9 @@ describe('GET /api/lots/:code/phase-noise', () => {
       expect(o.usl).toBe(MASK[k])
     })
     expect(r.body.truncated).toBe(false)
+    // one revision judged these runs: the view names it and offers no other
+    expect(r.body.revision).toBe(1)
+    expect(r.body.revisions.map((x: any) => [x.revision, x.n])).toEqual([[1, posted.length]])
   })
 
   it('spreads the derived jitter (seconds) over histogram bins and percentiles', async () => {

@@ -43,11 +43,11 @@ afterAll(async () => { await db.destroy() })
 
 async function recompute(firstOnly: boolean, code = lotCode) {
   const lot = await db('lots').where({ code }).first('id')
-  const q = db('measurements').where({ lot_id: lot.id }).orderBy('started_at').orderBy('id').select('step', 'name', 'qualifier', 'station_id', 'value')
+  const q = db('measurements').where({ lot_id: lot.id, implausible: false }).orderBy('started_at').orderBy('id').select('step', 'name', 'qualifier', 'revision_id', 'station_id', 'value')
   const rows = firstOnly ? await q.where('first_attempt', true) : await q
   const groups = new Map<string, { all: number[]; byStation: Map<number, number[]> }>()
   for (const r of rows) {
-    const k = `${r.step}|${r.name}|${r.qualifier}`
+    const k = `${r.step}|${r.name}|${r.qualifier}|${r.revision_id}`
     const g = groups.get(k) ?? { all: [], byStation: new Map() }
     g.all.push(r.value)
     const s = g.byStation.get(r.station_id) ?? []
@@ -63,7 +63,7 @@ async function expectSummaryEqualsRecomputation(code: string) {
   const groups = await recompute(true, code)
   expect(summary.capability.length).toBe(groups.size)
   for (const c of summary.capability) {
-    const g = groups.get(`${c.step}|${c.name}|${c.qualifier}`)!
+    const g = groups.get(`${c.step}|${c.name}|${c.qualifier}|${c.revisionId}`)!
     const full = capabilityFromValues(g.all, { lsl: c.lsl, usl: c.usl })
     let mrSum = 0
     let mrN = 0
@@ -119,7 +119,7 @@ describe('incremental lot aggregates', () => {
     const summary = (await lotSummary(db, lotCode, 'all'))!
     const groups = await recompute(false)
     for (const c of summary.capability) {
-      const g = groups.get(`${c.step}|${c.name}|${c.qualifier}`)!
+      const g = groups.get(`${c.step}|${c.name}|${c.qualifier}|${c.revisionId}`)!
       expect(c.n).toBe(g.all.length)
       const full = capabilityFromValues(g.all, { lsl: c.lsl, usl: c.usl })
       expect(c.sigmaOverall! / full.sigmaOverall!).toBeCloseTo(1, 9)

@@ -17,9 +17,9 @@ export async function lotsOfProduct(db: Knex, productId: number, step: string): 
 }
 
 export type ParamKey = { step: string; name: string; qualifier: number }
-export type StationStatRow = StatRow & { lotId: number; stationId: number; stationName: string; unit: string; mrStale: boolean }
+export type StationStatRow = StatRow & { lotId: number; revisionId: number; stationId: number; stationName: string; unit: string; mrStale: boolean }
 
-/** lot_param_stats rows of one parameter, for the given lots (one row per lot × station). */
+/** lot_param_stats rows of one parameter, for the given lots (one row per lot × revision × station). */
 export async function paramRowsForLots(db: Knex, lotIds: number[], key: ParamKey): Promise<StationStatRow[]> {
   if (!lotIds.length) return []
   const rows = await db('lot_param_stats as s').join('stations as st', 'st.id', 's.station_id')
@@ -27,7 +27,7 @@ export async function paramRowsForLots(db: Knex, lotIds: number[], key: ParamKey
     .select('s.*', 'st.name as station_name')
     .orderBy('s.lot_id').orderBy('st.name')
   return rows.map((r: any) => ({
-    lotId: r.lot_id, stationId: r.station_id, stationName: r.station_name, unit: r.unit, n: r.n, shift: r.shift, sumD: r.sum_d,
+    lotId: r.lot_id, revisionId: Number(r.revision_id), stationId: r.station_id, stationName: r.station_name, unit: r.unit, n: r.n, shift: r.shift, sumD: r.sum_d,
     sumSqD: r.sumsq_d, min: r.min_value, max: r.max_value, mrSum: r.mr_sum, mrN: r.mr_n, mrStale: !!r.mr_stale,
     outOfSpec: r.out_of_spec, failAll: r.fail_all,
   }))
@@ -45,18 +45,22 @@ export async function lotRef(db: Knex, code: string): Promise<LotRef | undefined
   }
 }
 
-/** Offsets (or other qualifiers) a lot has aggregates for, at one step and name. */
-export async function qualifiersOf(db: Knex, lotId: number, step: string, name: string): Promise<number[]> {
-  const rows = await db('lot_param_stats').where({ lot_id: lotId, step, name }).distinct('qualifier').orderBy('qualifier')
-  return rows.map((r: any) => Number(r.qualifier))
+export type SampleCount = { revisionId: number; name: string; qualifier: number; n: number }
+
+/** Sample sizes (plausible first attempts) per revision, name and qualifier at one step of a lot, from the aggregates. */
+export async function sampleCounts(db: Knex, lotId: number, step: string, names: string[]): Promise<SampleCount[]> {
+  const rows = await db('lot_param_stats').where({ lot_id: lotId, step }).whereIn('name', names)
+    .groupBy('revision_id', 'name', 'qualifier').select('revision_id', 'name', 'qualifier').sum({ n: 'n' })
+  return rows.map((r: any) => ({ revisionId: Number(r.revision_id), name: r.name, qualifier: Number(r.qualifier), n: Number(r.n) }))
 }
 
 /**
- * First-attempt values of one lot parameter, newest first, at most `cap` of them
- * (one range of the (lot, name, qualifier, step, started_at) index).
+ * Plausible first-attempt values of one lot parameter judged by one revision, newest first, at most `cap` of them
+ * (one range of the (lot, name, qualifier, step, started_at) index, filtered by revision).
  */
-export async function firstAttemptValues(db: Knex, lotId: number, key: ParamKey, cap: number): Promise<number[]> {
-  const rows = await db('measurements').where({ lot_id: lotId, name: key.name, qualifier: key.qualifier, step: key.step, first_attempt: true })
+export async function firstAttemptValues(db: Knex, lotId: number, key: ParamKey & { revisionId: number }, cap: number): Promise<number[]> {
+  const rows = await db('measurements')
+    .where({ lot_id: lotId, name: key.name, qualifier: key.qualifier, step: key.step, first_attempt: true, implausible: false, revision_id: key.revisionId })
     .orderBy('started_at', 'desc').limit(cap).select('value')
   return rows.map((r: any) => Number(r.value))
 }

@@ -1,9 +1,12 @@
 import type { Knex } from 'knex'
 
-export type ParamKey = { lotId: number; step: string; name: string; qualifier: number; firstOnly: boolean }
+/** One parameter of one lot; with revisionId, only the values judged by that revision (0: stored without one). */
+export type ParamKey = { lotId: number; step: string; name: string; qualifier: number; firstOnly: boolean; revisionId?: number }
 
+// implausible values are stored and judged but kept out of every chart, as they are out of the statistics
 function scope(db: Knex, k: ParamKey) {
-  const q = db('measurements as m').where({ 'm.lot_id': k.lotId, 'm.name': k.name, 'm.qualifier': k.qualifier, 'm.step': k.step })
+  const q = db('measurements as m').where({ 'm.lot_id': k.lotId, 'm.name': k.name, 'm.qualifier': k.qualifier, 'm.step': k.step, 'm.implausible': false })
+  if (k.revisionId !== undefined) q.where('m.revision_id', k.revisionId)
   return k.firstOnly ? q.where('m.first_attempt', true) : q
 }
 
@@ -19,9 +22,16 @@ export async function parameterPoints(db: Knex, k: ParamKey, opts: { head?: numb
   return rows.map((r: any) => ({ value: r.value, startedAt: r.started_at, runId: r.uuid, serial: r.serial, station: r.station }))
 }
 
-export async function parameterMoments(db: Knex, k: ParamKey): Promise<{ n: number; mean: number | null; sd: number | null; min: number | null; max: number | null }> {
-  const r = await scope(db, k).first(db.raw('COUNT(*) AS n, AVG(value) AS mean, STDDEV_SAMP(value) AS sd, MIN(value) AS min, MAX(value) AS max'))
-  return { n: Number(r.n), mean: r.mean === null ? null : Number(r.mean), sd: r.sd === null ? null : Number(r.sd), min: r.min, max: r.max }
+export type RevisionMoments = { revisionId: number; n: number; mean: number | null; sd: number | null; min: number | null; max: number | null }
+
+/** Count, mean, sample sd and range of the parameter's values per revision judged, in one pass over its index range. */
+export async function parameterMomentsByRevision(db: Knex, k: Omit<ParamKey, 'revisionId'>): Promise<RevisionMoments[]> {
+  const rows = await scope(db, k).groupBy('m.revision_id')
+    .select('m.revision_id', db.raw('COUNT(*) AS n, AVG(value) AS mean, STDDEV_SAMP(value) AS sd, MIN(value) AS min, MAX(value) AS max'))
+  return rows.map((r: any) => ({
+    revisionId: Number(r.revision_id), n: Number(r.n), mean: r.mean === null ? null : Number(r.mean), sd: r.sd === null ? null : Number(r.sd),
+    min: r.min === null ? null : Number(r.min), max: r.max === null ? null : Number(r.max),
+  }))
 }
 
 /** Histogram counts computed in the database: `bins` equal bins over [min, max]. */
@@ -40,17 +50,17 @@ export async function parameterTrendSums(db: Knex, k: ParamKey, n: number, centr
   return { n: Number(r.n), sxx: Number(r.sxx), sxy: Number(r.sxy), sy: Number(r.sy), syy: Number(r.syy) }
 }
 
-export async function findBaseline(db: Knex, k: Omit<ParamKey, 'firstOnly'>) {
+export async function findBaseline(db: Knex, k: Omit<ParamKey, 'firstOnly' | 'revisionId'>) {
   return db('control_baselines').where({ lot_id: k.lotId, step: k.step, name: k.name, qualifier: k.qualifier }).first()
 }
 
-export async function saveBaseline(db: Knex, k: Omit<ParamKey, 'firstOnly'>, b: { centre: number; sigma: number; n: number; setBy: number }) {
+export async function saveBaseline(db: Knex, k: Omit<ParamKey, 'firstOnly' | 'revisionId'>, b: { centre: number; sigma: number; n: number; setBy: number }) {
   await db.raw(
     `INSERT INTO control_baselines (lot_id, step, name, qualifier, centre, sigma, n, set_by) VALUES (?, ?, ?, ?, ?, ?, ?, ?)
      ON DUPLICATE KEY UPDATE centre = VALUES(centre), sigma = VALUES(sigma), n = VALUES(n), set_by = VALUES(set_by), set_at = NOW(3)`,
     [k.lotId, k.step, k.name, k.qualifier, b.centre, b.sigma, b.n, b.setBy])
 }
 
-export async function deleteBaseline(db: Knex, k: Omit<ParamKey, 'firstOnly'>) {
+export async function deleteBaseline(db: Knex, k: Omit<ParamKey, 'firstOnly' | 'revisionId'>) {
   return db('control_baselines').where({ lot_id: k.lotId, step: k.step, name: k.name, qualifier: k.qualifier }).del()
 }

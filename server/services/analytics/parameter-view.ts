@@ -3,28 +3,52 @@ import { ewma, individualsLimits, westernElectricHits } from '../../../shared/ut
 import { qualifierKind } from '../../../shared/utils/measurement-names'
 import { slopeFromCentredSums } from '../../../shared/utils/regression'
 import { findLotHeader } from '../../database/repositories/lot-stats'
-import { findBaseline, parameterHistogram, parameterMoments, parameterPoints, parameterTrendSums, type ParamKey } from '../../database/repositories/parameter-values'
-import { listEffectiveRevisions, revisionAt } from '../../database/repositories/spec-lookup'
+import { findBaseline, parameterHistogram, parameterMomentsByRevision, parameterPoints, parameterTrendSums, type ParamKey, type RevisionMoments } from '../../database/repositories/parameter-values'
+import type { ParameterView, RevisionCount } from '../../../shared/types/capability'
+import { problem } from '../../utils/problem'
 import { parameterLabel } from './lot-summary'
+import { revisionBook, type RevisionBook } from './revision-limits'
 
 export const BASELINE_POINTS = 25
 export const CHART_POINTS = 2000
 const BINS = 30
 
-export type ParameterQuery = { code: string; name: string; step: string; qualifier: number; attempts: 'first' | 'all' }
+/** revision: the revision number whose values to show; null for the latest revision the lot's values were judged by. */
+export type ParameterQuery = { code: string; name: string; step: string; qualifier: number; attempts: 'first' | 'all'; revision: number | null }
 
-/** Histogram, individuals chart with rule hits, EWMA and drift of one parameter in one lot. Sends at most CHART_POINTS points. */
-export async function parameterView(db: Knex, q: ParameterQuery, now = new Date()) {
+const EMPTY: RevisionMoments = { revisionId: 0, n: 0, mean: null, sd: null, min: null, max: null }
+
+/** The revision to show: the one asked for (a revision of the part, with or without values here) or the latest with values. */
+function chooseRevision(q: ParameterQuery, partNumber: string, book: RevisionBook, revisions: RevisionCount[], groups: RevisionMoments[]): RevisionMoments {
+  if (q.revision === null) {
+    const latest = revisions[revisions.length - 1]
+    return groups.find((g) => g.revisionId === latest?.revisionId) ?? EMPTY
+  }
+  const id = book.idOf(q.revision)
+  if (id === undefined) throw problem(400, `${partNumber} has no approved revision ${q.revision}.`, { errors: [{ pointer: '/revision', message: 'not an approved revision of this part' }] })
+  return groups.find((g) => g.revisionId === id) ?? { ...EMPTY, revisionId: id }
+}
+
+/**
+ * Histogram, individuals chart with rule hits, EWMA and drift of one parameter in one lot, over the values judged by
+ * one revision and drawn against that revision's limits. Sends at most CHART_POINTS points.
+ */
+export async function parameterView(db: Knex, q: ParameterQuery): Promise<ParameterView | undefined> {
   const lot = await findLotHeader(db, q.code)
   if (!lot) return undefined
-  const key: ParamKey = { lotId: lot.id, step: q.step, name: q.name, qualifier: q.qualifier, firstOnly: q.attempts === 'first' }
-  const [moments, revisions, frozen] = await Promise.all([parameterMoments(db, key), listEffectiveRevisions(db, lot.productId), findBaseline(db, key)])
-  const limit = revisionAt(revisions, now)?.limits.find((l) => l.step === q.step && l.name === q.name && l.qualifier === q.qualifier)
+  const all = { lotId: lot.id, step: q.step, name: q.name, qualifier: q.qualifier, firstOnly: q.attempts === 'first' }
+  const [groups, book, frozen] = await Promise.all([parameterMomentsByRevision(db, all), revisionBook(db, lot.productId), findBaseline(db, all)])
+  const revisions = book.judged(groups.filter((g) => g.n > 0).map((g) => g.revisionId))
+    .map((r) => ({ revisionId: r.revisionId, revision: r.revision, n: groups.find((g) => g.revisionId === r.revisionId)!.n }))
+  const moments = chooseRevision(q, lot.partNumber, book, revisions, groups)
+  const key: ParamKey = { ...all, revisionId: moments.revisionId }
+  const limit = book.limitFor(moments.revisionId, q)
   const parameter = {
+    ...book.tag(moments.revisionId),
     step: q.step, name: q.name, qualifier: q.qualifier, label: parameterLabel(q.name, q.qualifier), unit: limit?.unit ?? null,
     lsl: limit?.lsl ?? null, usl: limit?.usl ?? null, target: limit?.target ?? null, qualifierKind: qualifierKind(q.name),
   }
-  if (moments.n === 0) return { lot: { code: lot.code, partNumber: lot.partNumber }, parameter, n: 0, histogram: null, normal: null, control: null, ewma: null, drift: null }
+  if (moments.n === 0) return { lot: { code: lot.code, partNumber: lot.partNumber }, parameter, revisions, n: 0, histogram: null, normal: null, control: null, ewma: null, drift: null }
 
   const lo = Math.min(moments.min!, parameter.lsl ?? Infinity)
   const hi = Math.max(moments.max!, parameter.usl ?? -Infinity)
@@ -48,7 +72,7 @@ export async function parameterView(db: Knex, q: ParameterQuery, now = new Date(
     const hits = westernElectricHits(points.map((p) => p.value), base.centre, base.sigma)
     control = {
       baselineN: base.n, frozen: !!frozen, centre: base.centre, sigma: base.sigma, ucl: base.centre + 3 * base.sigma, lcl: base.centre - 3 * base.sigma,
-      points: points.map((p, i) => ({ index: firstIndex + i, runId: p.runId, serial: p.serial, station: p.station, startedAt: p.startedAt, value: p.value, rules: hits[i] ?? [] })),
+      points: points.map((p, i) => ({ index: firstIndex + i, runId: p.runId, serial: p.serial, station: p.station, startedAt: new Date(p.startedAt).toISOString(), value: p.value, rules: hits[i] ?? [] })),
     }
     const e = ewma(points.map((p) => p.value), { lambda: 0.2, L: 3, mu0: base.centre, sigma: base.sigma })
     ewmaView = { lambda: e.lambda, L: e.L, asymptoticUcl: e.asymptoticUcl, asymptoticLcl: e.asymptoticLcl, points: e.points.map((p, i) => ({ index: firstIndex + i, z: p.z, ucl: p.ucl, lcl: p.lcl, signal: p.signal })) }
@@ -57,6 +81,7 @@ export async function parameterView(db: Knex, q: ParameterQuery, now = new Date(
   return {
     lot: { code: lot.code, partNumber: lot.partNumber },
     parameter,
+    revisions,
     n: moments.n,
     histogram,
     normal: moments.sd ? { mean: moments.mean!, sigma: moments.sd } : null,

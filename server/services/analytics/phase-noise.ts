@@ -1,10 +1,12 @@
 // Phase noise of a lot by offset (percentile band against the mask) and the spread of integrated jitter.
 import type { Knex } from 'knex'
 import { histogram, quantileSorted } from '../../../shared/utils/percentiles'
-import { firstAttemptValues, lotRef, qualifiersOf } from '../../database/repositories/analytics-params'
+import { firstAttemptValues, lotRef, sampleCounts, type SampleCount } from '../../database/repositories/analytics-params'
 import { listEffectiveRevisions, revisionAt } from '../../database/repositories/spec-lookup'
+import type { PhaseNoiseView, RevisionCount } from '../../../shared/types/capability'
 import { problem } from '../../utils/problem'
 import { freshenLotStats } from '../ingest/fold-param-stats'
+import { bookOf } from './revision-limits'
 
 /** Most recent first attempts read per offset; beyond this the view says it is a sample. */
 export const VALUES_PER_OFFSET_CAP = 20_000
@@ -22,21 +24,54 @@ export function bandOf(values: number[]) {
   }
 }
 
-export async function lotPhaseNoise(db: Knex, code: string, query: Record<string, unknown>, now = new Date()) {
+function parseRevision(query: Record<string, unknown>): number | null {
+  const raw = query.revision
+  if (raw === undefined || raw === '') return null
+  const n = Number(raw)
+  if (!Number.isInteger(n) || n < 1) throw problem(400, 'The revision is not valid.', { errors: [{ pointer: '/revision', message: 'must be a revision number (1, 2, …)' }] })
+  return n
+}
+
+/** Revisions with phase-noise or jitter values at the step, oldest first; n is the count at the most-measured offset. */
+function revisionsPresent(counts: SampleCount[], judged: (ids: number[]) => { revisionId: number; revision: number | null }[]): RevisionCount[] {
+  const most = new Map<number, number>()
+  for (const c of counts) if (c.n > 0) most.set(c.revisionId, Math.max(most.get(c.revisionId) ?? 0, c.n))
+  return judged([...most.keys()]).map((r) => ({ revisionId: r.revisionId, revision: r.revision, n: most.get(r.revisionId)! }))
+}
+
+/**
+ * Percentiles of L(f) per offset and the spread of integrated jitter, over the first attempts judged by one revision
+ * (asked for, or the latest present) and against that revision's mask: values judged by other masks are not mixed in.
+ */
+export async function lotPhaseNoise(db: Knex, code: string, query: Record<string, unknown>, now = new Date()): Promise<PhaseNoiseView> {
   const step = typeof query.step === 'string' && query.step !== '' ? query.step : 'final'
   if (!/^[a-z][a-z0-9-]{0,23}$/.test(step)) throw problem(400, 'The step is not valid.', { errors: [{ pointer: '/step', message: 'not a step name' }] })
+  const asked = parseRevision(query)
   const lot = await lotRef(db, code)
   if (!lot) throw problem(404, `No lot ${code}.`)
   if (!lot.steps.includes(step)) throw problem(400, `${lot.partNumber} has no step ${step}.`, { errors: [{ pointer: '/step', message: `one of ${lot.steps.join(', ')}` }] })
-  const revision = revisionAt(await listEffectiveRevisions(db, lot.productId), now)
-  const limits = (revision?.limits ?? []).filter((l) => l.step === step)
-  const mask = limits.filter((l) => l.name === 'phase_noise')
+  const effective = await listEffectiveRevisions(db, lot.productId)
+  const book = bookOf(effective)
   await freshenLotStats(db, [lot.id])
-  const offsets = [...new Set([...(await qualifiersOf(db, lot.id, step, 'phase_noise')), ...mask.map((l) => l.qualifier)])].sort((a, b) => a - b)
+  const counts = await sampleCounts(db, lot.id, step, ['phase_noise', 'integrated_jitter'])
+  const revisions = revisionsPresent(counts, (ids) => book.judged(ids))
+  let revisionId: number
+  if (asked !== null) {
+    const id = book.idOf(asked)
+    if (id === undefined) throw problem(400, `${lot.partNumber} has no approved revision ${asked}.`, { errors: [{ pointer: '/revision', message: 'not an approved revision of this part' }] })
+    revisionId = id
+  } else {
+    // without values yet, the mask in force now is drawn with empty bands
+    revisionId = revisions[revisions.length - 1]?.revisionId ?? revisionAt(effective, now)?.id ?? 0
+  }
+  const limits = (effective.find((r) => r.id === revisionId)?.limits ?? []).filter((l) => l.step === step)
+  const mask = limits.filter((l) => l.name === 'phase_noise')
+  const measured = counts.filter((c) => c.revisionId === revisionId && c.name === 'phase_noise' && c.n > 0).map((c) => c.qualifier)
+  const offsets = [...new Set([...measured, ...mask.map((l) => l.qualifier)])].sort((a, b) => a - b)
 
   let truncated = false
   const read = async (name: string, qualifier: number) => {
-    const values = await firstAttemptValues(db, lot.id, { step, name, qualifier }, VALUES_PER_OFFSET_CAP + 1)
+    const values = await firstAttemptValues(db, lot.id, { step, name, qualifier, revisionId }, VALUES_PER_OFFSET_CAP + 1)
     if (values.length > VALUES_PER_OFFSET_CAP) { truncated = true; values.length = VALUES_PER_OFFSET_CAP }
     return values
   }
@@ -52,15 +87,16 @@ export async function lotPhaseNoise(db: Knex, code: string, query: Record<string
   return {
     lot: { code: lot.code, partNumber: lot.partNumber, productName: lot.productName, status: lot.status, steps: lot.steps },
     step,
-    revision: revision?.revision ?? null,
+    ...book.tag(revisionId),
+    revisions,
     population: 'first' as const,
     cap: VALUES_PER_OFFSET_CAP,
     truncated,
     offsets: bands,
     jitter: jb.n === 0 ? null : {
-      unit: 's', n: jb.n, usl: jitterLimit?.usl ?? null,
+      unit: 's' as const, n: jb.n, usl: jitterLimit?.usl ?? null,
       mean: jitterValues.reduce((s, x) => s + x, 0) / jb.n,
-      percentiles: { p10: jb.p10, p50: jb.median, p90: jb.p90 }, min: jb.min, max: jb.max,
+      percentiles: { p10: jb.p10!, p50: jb.median!, p90: jb.p90! }, min: jb.min!, max: jb.max!,
       histogram: { edges: h!.edges, counts: h!.counts },
     },
   }

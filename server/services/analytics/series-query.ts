@@ -39,22 +39,27 @@ export type ResolvedSeries = {
   product: ProductInfo
   step: string
   limit: SpecLimit | undefined
-  parameter: { step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string; unit: string | null; lsl: number | null; usl: number | null; target: number | null }
+  parameter: { step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string; unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null }
 }
 
-/** The product, the step (default: the last step of the product) and the limit of the revision in force now. */
+/**
+ * The product, the step (default: the last step of the product) and the limit of the revision in force now, for
+ * display; figures judged by other revisions take their own limits (see revision-limits.ts).
+ */
 export async function resolveSeries(db: Knex, q: SeriesQuery, now = new Date()): Promise<ResolvedSeries> {
   const product = await findProductByPart(db, q.part)
   if (!product) throw problem(404, `Unknown part number ${q.part}.`)
   const step = q.step ?? product.steps[product.steps.length - 1] ?? 'final'
   if (!product.steps.includes(step)) throw problem(400, `${product.partNumber} has no step ${step}.`, { errors: [{ pointer: '/step', message: `one of ${product.steps.join(', ')}` }] })
-  const limit = revisionAt(await listEffectiveRevisions(db, product.id), now)?.limits.find((l) => l.step === step && l.name === q.name && l.qualifier === q.qualifier)
+  const inForce = revisionAt(await listEffectiveRevisions(db, product.id), now)
+  const limit = inForce?.limits.find((l) => l.step === step && l.name === q.name && l.qualifier === q.qualifier)
   const known = (KNOWN_MEASUREMENTS as Record<string, { unit: string }>)[q.name]
   return {
     product, step, limit,
     parameter: {
       step, name: q.name, qualifier: q.qualifier, ...qualifierFields(q.name, q.qualifier), label: parameterLabelOf(q.name, q.qualifier),
       unit: limit?.unit ?? known?.unit ?? null, lsl: limit?.lsl ?? null, usl: limit?.usl ?? null, target: limit?.target ?? null,
+      revision: inForce?.revision ?? null,
     },
   }
 }

@@ -1,13 +1,15 @@
 // One parameter of one part across its lots, from the lot × station aggregates only.
 import type { Knex } from 'knex'
-import { capabilityBand, capabilityIndices } from '../../../shared/utils/capability'
+import { capabilityBand, capabilityIndices, capabilityIntervals } from '../../../shared/utils/capability'
 import { individualsLimits, westernElectricHits } from '../../../shared/utils/control'
 import { linearRegression } from '../../../shared/utils/regression'
 import { lotsOfProduct, paramRowsForLots, type ParamKey, type StationStatRow } from '../../database/repositories/analytics-params'
 import type { FieldError } from '../../utils/problem'
 import { freshenLotStats } from '../ingest/fold-param-stats'
 import { parseInstant, parseSeriesQuery, resolveSeries } from './series-query'
-import { poolBy, summarise } from './station-rows'
+import type { TrendCapability, TrendLot, TrendsView } from '../../../shared/types/capability'
+import { byRevision, revisionBook, type RevisionBook } from './revision-limits'
+import { poolBy, poolRows, summarise } from './station-rows'
 
 /** The lots' rows of one parameter, with every stored run folded in first. */
 export async function freshParamRows(db: Knex, lotIds: number[], key: ParamKey): Promise<StationStatRow[]> {
@@ -19,7 +21,27 @@ function endOfDayIfDate(raw: unknown, d: Date | undefined): Date | undefined {
   return d && typeof raw === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(raw) ? new Date(d.getTime() + 86_400_000 - 1) : d
 }
 
-export async function lotTrends(db: Knex, query: Record<string, unknown>, now = new Date()) {
+/** A lot's capability under each revision its values were judged by, against that revision's limits. */
+function capabilityByRevision(rows: StationStatRow[], book: RevisionBook, key: ParamKey): TrendCapability[] {
+  return [...poolBy(rows, (r) => r.revisionId)].flatMap(([revisionId, p]) => {
+    if (p.moments.n === 0) return []
+    const s = summarise(p)
+    const limit = book.limitFor(revisionId, key)
+    const lsl = limit?.lsl ?? null
+    const usl = limit?.usl ?? null
+    const c = capabilityIndices({ mean: s.mean!, sigmaWithin: s.sigmaWithin, sigmaOverall: s.sigmaOverall, lsl, usl, n: s.n })
+    return [{
+      ...book.tag(revisionId), lsl, usl, n: s.n, mean: s.mean!, sigma: s.sigmaOverall, sigmaWithin: s.sigmaWithin, outOfSpec: p.outOfSpec,
+      cp: c.cp, cpk: c.cpk, pp: c.pp, ppk: c.ppk, intervals: capabilityIntervals(c, s.n), band: capabilityBand(c.cpk, s.n),
+    }]
+  }).sort(byRevision)
+}
+
+/**
+ * One parameter of a part lot by lot. Each lot's location and spread pool all its values (they do not depend on the
+ * limits) and feed the across-lot chart; its capability is given per revision judged, each against its own limits.
+ */
+export async function lotTrends(db: Knex, query: Record<string, unknown>, now = new Date()): Promise<TrendsView> {
   const errors: FieldError[] = []
   const from = parseInstant(query, 'from', errors)
   const to = endOfDayIfDate(query.to, parseInstant(query, 'to', errors))
@@ -30,19 +52,19 @@ export async function lotTrends(db: Knex, query: Record<string, unknown>, now = 
   const lots = (await lotsOfProduct(db, series.product.id, series.step))
     .filter((l) => l.firstRunAt && l.lastRunAt && (!from || l.lastRunAt >= from) && (!to || l.firstRunAt <= to))
     .sort((a, b) => a.createdAt.getTime() - b.createdAt.getTime() || a.firstRunAt!.getTime() - b.firstRunAt!.getTime() || a.code.localeCompare(b.code))
-  const pooled = poolBy(await freshParamRows(db, lots.map((l) => l.id), key), (r) => r.lotId)
-  const lsl = series.limit?.lsl ?? null
-  const usl = series.limit?.usl ?? null
+  const [paramRows, book] = await Promise.all([freshParamRows(db, lots.map((l) => l.id), key), revisionBook(db, series.product.id)])
+  const rowsOfLot = new Map<number, StationStatRow[]>()
+  for (const r of paramRows) rowsOfLot.set(r.lotId, [...(rowsOfLot.get(r.lotId) ?? []), r])
 
-  const rows = lots.flatMap((l) => {
-    const p = pooled.get(l.id)
-    if (!p || p.moments.n === 0) return []
+  const rows: Omit<TrendLot, 'beyondLimits' | 'rules'>[] = lots.flatMap((l) => {
+    const own = rowsOfLot.get(l.id) ?? []
+    const p = poolRows(own)
+    if (p.moments.n === 0) return []
     const s = summarise(p)
-    const c = capabilityIndices({ mean: s.mean!, sigmaWithin: s.sigmaWithin, sigmaOverall: s.sigmaOverall, lsl, usl, n: s.n })
     return [{
       code: l.code, status: l.status, createdAt: l.createdAt.toISOString(), firstRunAt: l.firstRunAt!.toISOString(), lastRunAt: l.lastRunAt!.toISOString(),
-      n: s.n, mean: s.mean!, sigma: s.sigmaOverall, sigmaWithin: s.sigmaWithin, min: s.min!, max: s.max!, outOfSpec: p.outOfSpec,
-      cpk: c.cpk, ppk: c.ppk, band: capabilityBand(c.cpk, s.n),
+      n: s.n, mean: s.mean!, sigma: s.sigmaOverall, sigmaWithin: s.sigmaWithin, min: s.min!, max: s.max!,
+      capability: capabilityByRevision(own, book, key),
     }]
   })
 

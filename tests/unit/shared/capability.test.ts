@@ -3,10 +3,14 @@ import { mean as ssMean, sampleStandardDeviation } from 'simple-statistics'
 import { describe, expect, it } from 'vitest'
 import {
   D2_N2,
+  CAPABILITY_INTERVAL_BASIS,
   bissellCpkInterval,
+  bissellInterval,
   capabilityBand,
   capabilityFromValues,
   capabilityIndices,
+  capabilityIntervals,
+  chiSquareInterval,
   expectedPpmOutOfSpec,
   movingRangeSum,
   observedPpm,
@@ -147,6 +151,72 @@ describe('bissellCpkInterval', () => {
     expect(bissellCpkInterval(null, 50)).toBeNull()
     expect(bissellCpkInterval(1.2, 1)).toBeNull()
     expect(bissellCpkInterval(1.2, 50, 1)).toBeNull()
+  })
+})
+
+describe('chiSquareInterval (Cp, Pp)', () => {
+  it('Montgomery ISQC, n 20, Cp 1.33, 95 %: 0.91 to 1.75 (published values from memory)', () => {
+    const [lo, hi] = chiSquareInterval(1.33, 19) as [number, number]
+    expect(Math.abs(lo - 0.91)).toBeLessThan(half(2))
+    expect(Math.abs(hi - 1.75)).toBeLessThan(half(2))
+    // Unrounded, with χ²(0.025; 19) = 8.907 and χ²(0.975; 19) = 32.852 from chi-square tables: 0.9106 – 1.7489.
+    expect(Math.abs(lo - 0.9106)).toBeLessThan(half(4))
+    expect(Math.abs(hi - 1.7489)).toBeLessThan(half(4))
+  })
+
+  it('is the formula of SAS/QC PROC CAPABILITY with jstat chi-square quantiles, at any confidence', () => {
+    // Ĉ·√(χ²(α/2; ν)/ν) … Ĉ·√(χ²(1−α/2; ν)/ν), ν = n − 1 (NIST/SEMATECH e-Handbook §6.1.6; SAS/QC PROC CAPABILITY)
+    for (const [cp, n, conf] of [[1, 10, 0.95], [1.67, 125, 0.9], [0.8, 31, 0.99], [2.4, 3, 0.95]] as const) {
+      const alpha = 1 - conf
+      const [lo, hi] = chiSquareInterval(cp, n - 1, conf) as [number, number]
+      expect(lo).toBeCloseTo(cp * Math.sqrt(jStat.chisquare.inv(alpha / 2, n - 1) / (n - 1)), 9)
+      expect(hi).toBeCloseTo(cp * Math.sqrt(jStat.chisquare.inv(1 - alpha / 2, n - 1) / (n - 1)), 9)
+    }
+  })
+
+  it('returns null when the index or the degrees of freedom are unusable', () => {
+    expect(chiSquareInterval(null, 19)).toBeNull()
+    expect(chiSquareInterval(NaN, 19)).toBeNull()
+    expect(chiSquareInterval(1.33, 0)).toBeNull()
+    expect(chiSquareInterval(1.33, 19, 1)).toBeNull()
+  })
+})
+
+describe('capabilityIntervals', () => {
+  it('gives Pp by chi-square and Ppk by Bissell with the sample standard deviation and n − 1', () => {
+    // NIST §6.1.6 example (USL 20, LSL 8, mean 16, s 2) taken as a sample of n = 45: Pp = 1.0, Ppk = 0.6667.
+    const ix = capabilityIndices({ mean: 16, sigmaWithin: 2.2, sigmaOverall: 2, lsl: 8, usl: 20 })
+    const r = capabilityIntervals(ix, 45)
+    expect(r.pp![0]).toBeCloseTo(Math.sqrt(jStat.chisquare.inv(0.025, 44) / 44), 9)
+    expect(r.pp![1]).toBeCloseTo(Math.sqrt(jStat.chisquare.inv(0.975, 44) / 44), 9)
+    const z = jStat.normal.inv(0.975, 0, 1)
+    const se = Math.sqrt(1 / (9 * 45) + (2 / 3) ** 2 / (2 * 44))
+    expect(r.ppk![0]).toBeCloseTo(2 / 3 - z * se, 9)
+    expect(r.ppk![1]).toBeCloseTo(2 / 3 + z * se, 9)
+  })
+
+  it('forms the Cp and Cpk intervals the same way on σ within, marked approximate', () => {
+    // Quality Digest, May 2000: Cpk 1.15, n 45 → 0.89 to 1.41, whatever sigma the index came from.
+    const ix = { cp: 1.5, cpk: 1.15, pp: null, ppk: null }
+    const r = capabilityIntervals(ix, 45)
+    expect(Math.abs(r.cpk![0] - 0.89)).toBeLessThan(half(2))
+    expect(Math.abs(r.cpk![1] - 1.41)).toBeLessThan(half(2))
+    expect(r.cp).toEqual(chiSquareInterval(1.5, 44))
+    expect(r.pp).toBeNull()
+    expect(r.ppk).toBeNull()
+    expect(CAPABILITY_INTERVAL_BASIS.cp).toMatchObject({ sigma: 'within', approximate: true })
+    expect(CAPABILITY_INTERVAL_BASIS.cpk).toMatchObject({ sigma: 'within', approximate: true })
+    expect(CAPABILITY_INTERVAL_BASIS.pp).toMatchObject({ sigma: 'overall', method: 'chi-square', approximate: false })
+    expect(CAPABILITY_INTERVAL_BASIS.ppk).toMatchObject({ sigma: 'overall', method: 'bissell' })
+  })
+
+  it('widens as n falls: 1.0509 – 1.6091 at n 50 against a wider one at n 20 for Cpk 1.33', () => {
+    // 1.0509 – 1.6091: independent recomputation of the Bissell form with jstat (not a published value)
+    const at50 = bissellInterval(1.33, 50) as [number, number]
+    expect(Math.abs(at50[0] - 1.0509)).toBeLessThan(half(4))
+    expect(Math.abs(at50[1] - 1.6091)).toBeLessThan(half(4))
+    const at20 = bissellInterval(1.33, 20) as [number, number]
+    expect(at20[1] - at20[0]).toBeGreaterThan(at50[1] - at50[0])
   })
 })
 

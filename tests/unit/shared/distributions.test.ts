@@ -1,6 +1,9 @@
 import jStat from 'jstat'
 import { describe, expect, it } from 'vitest'
 import {
+  chiSquareCdf,
+  chiSquareQuantile,
+  chiSquareUpperTail,
   erfc,
   lnGamma,
   normalCdf,
@@ -8,6 +11,8 @@ import {
   normalQuantile,
   normalUpperTail,
   regularizedBeta,
+  regularizedGammaP,
+  regularizedGammaQ,
   studentTCdf,
   studentTQuantile,
   studentTUpperTail,
@@ -260,5 +265,51 @@ describe('studentTQuantile', () => {
     expect(studentTQuantile(1, 4)).toBe(Infinity)
     expect(studentTQuantile(0.975, Infinity)).toBe(normalQuantile(0.975))
     expect(Number.isNaN(studentTQuantile(0.5, 0))).toBe(true)
+  })
+})
+
+describe('chi-square distribution', () => {
+  it('matches printed chi-square tables', () => {
+    // Lower-tail quantiles as printed in chi-square critical-value tables (e.g. NIST/SEMATECH e-Handbook §1.3.6.7.4),
+    // three decimals, values from memory; jstat below checks them to more digits.
+    const table: [number, number, number][] = [
+      [0.025, 19, 8.907], [0.975, 19, 32.852], [0.95, 1, 3.841], [0.99, 1, 6.635], [0.95, 10, 18.307],
+      [0.05, 10, 3.94], [0.025, 30, 16.791], [0.975, 30, 46.979], [0.95, 100, 124.342],
+    ]
+    for (const [p, k, x] of table) expect(Math.abs(chiSquareQuantile(p, k) - x)).toBeLessThan(0.0005)
+  })
+
+  it('inverts the closed forms for one and two degrees of freedom', () => {
+    // k = 2: F(x) = 1 − e^(−x/2); k = 1: X = Z², so F(x) = 2Φ(√x) − 1 (A&S 26.4.5).
+    for (const p of [1e-8, 0.001, 0.025, 0.3, 0.5, 0.9, 0.975, 0.999, 1 - 1e-9]) {
+      expect(chiSquareQuantile(p, 2) / (-2 * Math.log1p(-p))).toBeCloseTo(1, 11)
+      // the reference is written with (1 − p)/2, exact for p near 1; near 0 it keeps too few digits, so k = 1 starts at 0.001
+      if (p >= 0.001) expect(chiSquareQuantile(p, 1) / normalQuantile((1 - p) / 2) ** 2).toBeCloseTo(1, 9)
+    }
+  })
+
+  it('agrees with jstat chisquare.cdf and chisquare.inv', () => {
+    for (const k of [1, 2, 3, 4.5, 9, 19, 44, 120, 999]) {
+      for (const p of [0.001, 0.01, 0.025, 0.05, 0.5, 0.95, 0.975, 0.99, 0.999]) {
+        const ref = jStat.chisquare.inv(p, k)
+        expect(Math.abs(chiSquareQuantile(p, k) - ref)).toBeLessThan(1e-7 * Math.max(1, ref))
+        expect(Math.abs(chiSquareCdf(ref, k) - p)).toBeLessThan(1e-9)
+      }
+    }
+  })
+
+  it('keeps the upper tail accurate far out, and P + Q = 1', () => {
+    // k = 2: Q = e^(−x/2) exactly
+    expect(chiSquareUpperTail(80, 2) / Math.exp(-40)).toBeCloseTo(1, 12)
+    for (const [a, x] of [[0.5, 0.1], [3, 2], [10, 25], [50, 40]] as const) expect(regularizedGammaP(a, x) + regularizedGammaQ(a, x)).toBeCloseTo(1, 14)
+  })
+
+  it('handles the edges', () => {
+    expect(chiSquareQuantile(0, 5)).toBe(0)
+    expect(chiSquareQuantile(1, 5)).toBe(Infinity)
+    expect(Number.isNaN(chiSquareQuantile(0.5, 0))).toBe(true)
+    expect(Number.isNaN(chiSquareQuantile(1.5, 3))).toBe(true)
+    expect(chiSquareCdf(0, 3)).toBe(0)
+    expect(chiSquareUpperTail(Infinity, 3)).toBe(0)
   })
 })

@@ -1,0 +1,122 @@
+// What the lot summary, the parameter view, the phase-noise view and trends answer. Every capability figure is
+// tagged with the specification revision its values were judged by and carries that revision's limits, so a page
+// can never show one figure taken over two limit sets.
+import type { CapabilityBand, CapabilityIntervals } from '../utils/capability'
+
+/** The revision a group of values was judged by: revisionId 0 (revision null) for values stored without one. */
+export type RevisionTag = { revisionId: number; revision: number | null }
+
+/** A revision a lot's values were judged by, with when it took effect. */
+export type JudgedRevision = RevisionTag & { effectiveAt: string | null }
+
+/** How many values of one parameter (or step) were judged by a revision: the choices of a per-revision view. */
+export type RevisionCount = RevisionTag & { n: number }
+
+export type Population = 'first' | 'all'
+
+export type YieldInterval = { p: number; lo: number; hi: number } | null
+
+export type StepYield = {
+  step: string; runs: number; units: number; firstPass: number; latestPass: number; finalPass: number
+  firstPassYield: YieldInterval; finalYield: YieldInterval
+}
+
+/** One parameter of a lot under one revision: the sample, that revision's limits and the indices against them. */
+export type CapabilityRow = RevisionTag & {
+  step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string; unit: string
+  n: number; mean: number | null; sigmaWithin: number | null; sigmaOverall: number | null; min: number; max: number
+  lsl: number | null; usl: number | null; target: number | null
+  cp: number | null; cpk: number | null; pp: number | null; ppk: number | null
+  /** 95 % intervals; Cp/Cpk approximate (σ within), Pp exact under normality, Ppk Bissell (σ overall) */
+  intervals: CapabilityIntervals
+  /** values of the sample outside this revision's limits */
+  outOfSpec: number
+  observedPpm: number | null; expectedPpm: number | null
+  band: CapabilityBand; keyCharacteristic: boolean
+  /** how many revisions this parameter's values of the lot were judged by (more than 1: read the rows together) */
+  revisionsOfParameter: number
+}
+
+export type FailureParetoRow = { step: string; name: string; qualifier: number; label: string; count: number; percent: number; cumulativePercent: number }
+
+export type LotSummary = {
+  lot: { code: string; partNumber: string; productName: string; status: string; plannedQty: number | null; unitsTested: number }
+  population: Population
+  steps: StepYield[]
+  rolledThroughputYield: number | null
+  /** the revisions the capability rows were judged by, oldest first; more than one means figures are per revision */
+  revisions: JudgedRevision[]
+  capability: CapabilityRow[]
+  pareto: FailureParetoRow[]
+}
+
+export type ControlPoint = { index: number; runId: string; serial: string; station: string; startedAt: string; value: number; rules: number[] }
+
+/** Charts of one parameter of one lot, over the values judged by one revision. */
+export type ParameterView = {
+  lot: { code: string; partNumber: string }
+  parameter: RevisionTag & {
+    step: string; name: string; qualifier: number; label: string; unit: string | null
+    lsl: number | null; usl: number | null; target: number | null; qualifierKind: 'offsetHz' | 'harmonic' | null
+  }
+  /** every revision this parameter's values were judged by in the lot, oldest first */
+  revisions: RevisionCount[]
+  n: number
+  histogram: { edges: number[]; counts: number[] } | null
+  normal: { mean: number; sigma: number } | null
+  control: { baselineN: number; frozen: boolean; centre: number; sigma: number; ucl: number; lcl: number; points: ControlPoint[] } | null
+  ewma: { lambda: number; L: number; asymptoticUcl: number; asymptoticLcl: number; points: { index: number; z: number; ucl: number; lcl: number; signal: boolean }[] } | null
+  drift: { slopePer1000: number; interval: [number, number] | null; n: number } | null
+}
+
+export type PhaseNoiseOffset = { offsetHz: number; n: number; median: number | null; p10: number | null; p90: number | null; min: number | null; max: number | null; usl: number | null; lsl: number | null }
+
+/** Phase noise of a lot at one step, over the first attempts judged by one revision and against that revision's mask. */
+export type PhaseNoiseView = {
+  lot: { code: string; partNumber: string; productName: string; status: string; steps: string[] }
+  step: string
+  /** the revision shown: the one asked for, else the latest with values, else the one in force now */
+  revision: number | null
+  revisionId: number
+  /** the revisions this step's values were judged by, oldest first, with their count of phase-noise runs */
+  revisions: RevisionCount[]
+  population: 'first'
+  cap: number
+  truncated: boolean
+  offsets: PhaseNoiseOffset[]
+  jitter: {
+    unit: 's'; n: number; usl: number | null; mean: number; percentiles: { p10: number; p50: number; p90: number }
+    min: number; max: number; histogram: { edges: number[]; counts: number[] }
+  } | null
+}
+
+/** One lot's capability for a parameter under one revision, against that revision's limits. */
+export type TrendCapability = RevisionTag & {
+  lsl: number | null; usl: number | null
+  n: number; mean: number; sigma: number | null; sigmaWithin: number | null; outOfSpec: number
+  cp: number | null; cpk: number | null; pp: number | null; ppk: number | null; intervals: CapabilityIntervals; band: CapabilityBand
+}
+
+/**
+ * One lot of a trend. Location and spread (n, mean, σ, min, max) pool every revision: they do not depend on limits,
+ * and the across-lot chart reads them. Capability is given per revision in `capability`.
+ */
+export type TrendLot = {
+  code: string; status: string; createdAt: string; firstRunAt: string; lastRunAt: string
+  n: number; mean: number; sigma: number | null; sigmaWithin: number | null; min: number; max: number
+  capability: TrendCapability[]
+  beyondLimits: boolean; rules: number[]
+}
+
+export type TrendsView = {
+  part: { partNumber: string; name: string; steps: string[] }
+  /** the parameter with the limits of the revision in force now (drawn on the spread chart) */
+  parameter: {
+    step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string
+    unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null
+  }
+  from: string | null; to: string | null
+  lots: TrendLot[]
+  acrossLots: { n: number; centre: number; sigma: number; ucl: number; lcl: number } | null
+  drift: { slopePerLot: number; interval: [number, number] | null; n: number; r2: number | null } | null
+}
