@@ -1,10 +1,15 @@
-// npm run bench:ingest [-- --no-build] — throughput and latency of station ingest against the same rows written
-// straight through mysql2, on a fresh bench database and the built server, loopback only.
-// Prints one JSON line per endpoint on stdout; progress goes to stderr.
-// The single-run raw writer runs half its time just before and half just after the HTTP stage; every stage's rate
-// counts the time until its runs are folded into the lot statistics.
+// npm run bench:ingest [-- --no-build] — throughput and latency of station ingest on a fresh bench database and the
+// built server, loopback only, at the commit durability the database runs with (printed as flushLogAtTrxCommit).
+// Two yardsticks, each written by 32 connections in the same run:
+//   minimal — one run row and its 20 measurement rows in one transaction, nothing else, through mysql2 in one round
+//             trip: the least any store of a run can cost (minimalRawRunsPerSec, minimalRatio);
+//   raw     — the server's own write path (write plan and statements) called directly, one run per call, without
+//             HTTP, validation or gathering (rawRunsPerSec, ratio).
+// Each yardstick runs half its time just before and half just after the HTTP stage; every stage's rate counts the
+// time until its runs are folded into the lot statistics. Prints one JSON line per endpoint; progress goes to stderr.
 // TERCET_BENCH_SECONDS sets the length of each HTTP stage (default 20); TERCET_BENCH_PROFILE=<dir>
-// starts the server with --cpu-prof into that folder; TERCET_INGEST_WRITERS overrides the server's number of write slots.
+// starts the server with --cpu-prof into that folder; TERCET_WRITE_LANES and TERCET_WRITE_GROUP override the server's
+// number of write groups in flight and their largest size.
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { randomUUID } from 'node:crypto'
 import { existsSync, readFileSync } from 'node:fs'
@@ -18,9 +23,7 @@ import { createKnex } from '../server/database/connection'
 import { generateStationToken } from '../server/utils/station-token'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../server/database/repositories/spec-lookup'
 import { judgeRun, type JudgedMeasurement } from '../server/services/ingest/judge-run'
-import type { RunRow } from '../server/database/repositories/runs'
-import { lockedUnit, runWriteStatements, unitLockStatements } from '../server/services/ingest/run-statements'
-import { joinStatements } from '../server/database/raw-connection'
+import { writeRuns, type RunToWrite } from '../server/services/ingest/write-runs'
 import { foldPendingStats } from '../server/services/ingest/fold-param-stats'
 import type { Knex } from 'knex'
 import { validateRun, type StationRun } from '../server/utils/run-validator'
@@ -150,74 +153,60 @@ async function waitHealthy(base: string): Promise<void> {
   }
 }
 
-// ---- raw side ----------------------------------------------------------------------------------
-// The same rows the server writes for a run — a new unit, the run, its measurements, the unit's step row and the
-// lot aggregates — with the very statement texts and round trips the server sends, straight through mysql2:
-// what is left between the two figures is the server's own cost (HTTP, parsing, validation, judgement, SQL building).
+// ---- yardsticks ----------------------------------------------------------------------------------
 
-type RawCtx = { pool: mysql.Pool; knex: Knex; lotId: number; productId: number; stationIds: number[]; revisionId: number }
+type RawCtx = { pool: mysql.Pool; knex: Knex; lotId: number; productId: number; stationIds: number[]; revision: RevisionInForce; product: ProductInfo }
 
 let rawSerial = 0
 
-function runRowFor(p: Prepared, ctx: RawCtx, unitId: number, stationId: number): RunRow {
-  const r = p.run
+/** A bench body as the server's write path takes it, for a unit no other writer touches. */
+function toWrite(p: Prepared, ctx: RawCtx, stationId: number): RunToWrite {
+  const run: StationRun = { ...p.run, id: randomUUID(), serial: `RAW-${process.pid}-${++rawSerial}` }
   return {
-    uuid: randomUUID(), bodyHash: 'f'.repeat(64), unitId, lotId: ctx.lotId, stationId, revisionId: ctx.revisionId, step: r.step, attempt: 1,
-    startedAt: new Date(r.startedAt), finishedAt: new Date(r.finishedAt), operator: r.operator ?? null, softwareSequence: r.software?.sequence ?? null,
-    softwareVersion: r.software?.version ?? null, temperatureC: r.conditions?.temperatureC ?? null, supplyV: r.conditions?.supplyV ?? null,
-    stationVerdict: r.stationVerdict ?? null, serverVerdict: p.verdict, verdictDisagrees: false, missingRequired: [], calibrationLapsed: false,
-    measurementIssue: false, reference: r.reference ?? null,
+    station: { id: stationId, name: 'bench' }, run, hash: 'f'.repeat(64),
+    ctx: {
+      startedAt: new Date(run.startedAt), finishedAt: new Date(run.finishedAt), product: ctx.product, revision: ctx.revision,
+      judged: { measurements: p.judged, verdict: p.verdict, missingRequired: [], measurementIssue: false }, lotId: ctx.lotId, calibrationLapsed: false,
+    },
   }
 }
 
-/** One run as the server stores it: the unit-lock round trip, then the writes ending in COMMIT. */
-async function rawRun(conn: mysql.PoolConnection, ctx: RawCtx, p: Prepared, stationId: number): Promise<void> {
-  const lock = joinStatements(['START TRANSACTION', unitLockStatements(ctx.productId, ctx.lotId, `RAW-${process.pid}-${++rawSerial}`, p.run.step)])
-  const [results] = await conn.query(lock.sql, lock.values)
-  const unit = lockedUnit(results)
-  const write = joinStatements([runWriteStatements({ row: runRowFor(p, ctx, unit.id, stationId), measurements: p.judged, traces: p.run.traces ?? [], previousLatest: null }), 'COMMIT'])
-  await conn.query(write.sql, write.values)
+const MEASUREMENT_COLUMNS = `run_id, lot_id, station_id, revision_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
+  lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible`
+
+/** One run row and its measurement rows, nothing else, in one transaction sent as one round trip. */
+function minimalStatements(p: Prepared, ctx: RawCtx, unitId: number, attempt: number, stationId: number): { sql: string; values: unknown[] } {
+  const r = p.run
+  const startedAt = new Date(r.startedAt)
+  const values: unknown[] = [randomUUID(), 'f'.repeat(64), unitId, ctx.lotId, stationId, ctx.revision.id, r.step, attempt, startedAt, new Date(r.finishedAt), p.verdict]
+  const rows: string[] = []
+  for (const m of p.judged) {
+    rows.push('(@run, ?, ?, ?, ?, 1, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)')
+    const l = m.limit
+    values.push(ctx.lotId, stationId, ctx.revision.id, r.step, startedAt, m.name, m.qualifier, m.value, m.unit, m.uncertainty,
+      l ? l.lsl : null, l ? l.usl : null, l ? l.target : null, l ? l.rule : null, l ? l.guardBand : null, m.verdict, m.zone, m.derived, m.excessDb, false)
+  }
+  return {
+    sql: `START TRANSACTION;
+      INSERT INTO test_runs (uuid, body_hash, unit_id, lot_id, station_id, revision_id, step, attempt, started_at, finished_at, server_verdict) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?);
+      SET @run = LAST_INSERT_ID();
+      INSERT INTO measurements (${MEASUREMENT_COLUMNS}) VALUES ${rows.join(', ')};
+      COMMIT`,
+    values,
+  }
 }
 
-/** Several runs in one transaction, each with the same two round trips inside it. */
-async function rawRunsInOneTransaction(conn: mysql.PoolConnection, ctx: RawCtx, runs: Prepared[], stationId: number): Promise<void> {
-  await conn.query('START TRANSACTION')
-  for (const p of runs) {
-    const lock = unitLockStatements(ctx.productId, ctx.lotId, `RAW-${process.pid}-${++rawSerial}`, p.run.step)
-    const [results] = await conn.query(lock.sql, lock.values)
-    const unit = lockedUnit(results)
-    const write = runWriteStatements({ row: runRowFor(p, ctx, unit.id, stationId), measurements: p.judged, traces: p.run.traces ?? [], previousLatest: null })
-    await conn.query(write.sql, write.values)
-  }
-  await conn.query('COMMIT')
-}
+type Stage = { runs: number; seconds: number; p50Ms: number; p99Ms: number }
 
 /**
- * 32 workers, each writing `perTx` runs per transaction, for `seconds`, while the queued runs are folded into the
- * parameter statistics every 250 ms as the server's folder does: the same rows in the end.
+ * 32 workers for `seconds`, each calling `one(worker)` for one run after another, while the queued runs are folded
+ * into the parameter statistics every 250 ms as the server's folder does.
  */
-async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds: number): Promise<{ runs: number; seconds: number; p50Ms: number; p99Ms: number }> {
-  let next = 0
+async function yardstick(ctx: RawCtx, seconds: number, one: (worker: number) => Promise<number>): Promise<Stage> {
   let runs = 0
   const took: number[] = []
   const started = Date.now()
   const until = started + seconds * 1000
-  const worker = async (w: number) => {
-    const conn = await ctx.pool.getConnection()
-    await conn.query("SET SESSION tx_isolation = 'READ-COMMITTED'")
-    try {
-      while (Date.now() < until) {
-        const stationId = ctx.stationIds[w % ctx.stationIds.length]!
-        const t0 = performance.now()
-        if (perTx === 1) await rawRun(conn, ctx, bodies[next++ % bodies.length]!, stationId)
-        else await rawRunsInOneTransaction(conn, ctx, Array.from({ length: perTx }, () => bodies[next++ % bodies.length]!), stationId)
-        took.push(performance.now() - t0)
-        runs += perTx
-      }
-    } finally {
-      conn.release()
-    }
-  }
   let writing = true
   const folder = (async () => {
     while (writing) {
@@ -225,7 +214,13 @@ async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds
       await new Promise((r) => setTimeout(r, 250))
     }
   })()
-  await Promise.all(Array.from({ length: CONNECTIONS }, (_, w) => worker(w)))
+  await Promise.all(Array.from({ length: CONNECTIONS }, async (_, w) => {
+    while (Date.now() < until) {
+      const t0 = performance.now()
+      runs += await one(w)
+      took.push(performance.now() - t0)
+    }
+  }))
   // as on the HTTP side, the caller times the folding of what is still queued when the stage ends
   const elapsed = (Date.now() - started) / 1000
   writing = false
@@ -233,6 +228,38 @@ async function rawInsert(ctx: RawCtx, bodies: Prepared[], perTx: number, seconds
   took.sort((a, b) => a - b)
   const at = (q: number) => Math.round(took[Math.min(took.length - 1, Math.floor(q * took.length))] ?? Number.NaN)
   return { runs, seconds: elapsed, p50Ms: at(0.5), p99Ms: at(0.99) }
+}
+
+/** The minimal writer: each of 32 connections keeps one unit of its own and adds attempts to it. */
+async function minimalStage(ctx: RawCtx, bodies: Prepared[], seconds: number): Promise<Stage> {
+  const conns = await Promise.all(Array.from({ length: CONNECTIONS }, () => ctx.pool.getConnection()))
+  try {
+    const units: { id: number; attempt: number }[] = []
+    for (let w = 0; w < CONNECTIONS; w++) {
+      const [res] = await conns[w]!.query<any>('INSERT INTO units (product_id, lot_id, serial) VALUES (?, ?, ?)', [ctx.productId, ctx.lotId, `MIN-${process.pid}-${++rawSerial}`])
+      units.push({ id: Number(res.insertId), attempt: 0 })
+    }
+    let next = 0
+    return await yardstick(ctx, seconds, async (w) => {
+      const u = units[w]!
+      const st = minimalStatements(bodies[next++ % bodies.length]!, ctx, u.id, ++u.attempt, ctx.stationIds[w % ctx.stationIds.length]!)
+      await conns[w]!.query(st.sql, st.values)
+      return 1
+    })
+  } finally {
+    for (const c of conns) c.release()
+  }
+}
+
+/** The server's write path without HTTP: one run per call, 32 calls in flight. */
+async function rawStage(ctx: RawCtx, bodies: Prepared[], seconds: number, perCall = 1): Promise<Stage> {
+  let next = 0
+  return yardstick(ctx, seconds, async (w) => {
+    const items = Array.from({ length: perCall }, () => toWrite(bodies[next++ % bodies.length]!, ctx, ctx.stationIds[w % ctx.stationIds.length]!))
+    const results = await writeRuns(ctx.knex, items)
+    for (const r of results) if ('error' in r) throw r.error
+    return perCall
+  })
 }
 
 /**
@@ -284,7 +311,7 @@ async function main() {
 
   const env = loadEnv()
   const settings = dbSettings(env, DATABASE)
-  const knex = createKnex({ host: HOST, port: settings.port, user: settings.user, password: settings.password, database: DATABASE })
+  const knex = createKnex({ host: HOST, port: settings.port, user: settings.user, password: settings.password, database: DATABASE }, { min: 0, max: CONNECTIONS + 4 })
   const pool = mysql.createPool({ host: HOST, port: settings.port, user: settings.user, password: settings.password, database: DATABASE, connectionLimit: CONNECTIONS, timezone: 'Z', multipleStatements: true })
   try {
     const product = (await findProductByPart(knex, PART))!
@@ -299,7 +326,10 @@ async function main() {
       tokens.push(t.token)
       stationIds.push(id!)
     }
-    const ctx: RawCtx = { pool, knex, lotId: lotId!, productId: product.id, stationIds, revisionId: revision.id }
+    const ctx: RawCtx = { pool, knex, lotId: lotId!, productId: product.id, stationIds, revision, product }
+    const [[durability]] = await pool.query<any[]>('SELECT @@innodb_flush_log_at_trx_commit AS flush, @@sync_binlog AS sync, @@log_bin AS bin')
+    const flushLogAtTrxCommit = Number(durability.flush)
+    say(`database commits with innodb_flush_log_at_trx_commit=${flushLogAtTrxCommit}, sync_binlog=${durability.sync}, binary log ${Number(durability.bin) ? 'on' : 'off'}`)
 
     say(`generating ${SINGLE_BODIES} single-run bodies and ${BATCH_RUNS} batch runs (${MEASUREMENTS} measurements each)…`)
     const single = makeBodies(SINGLE_BODIES, 1, product, revision, 'S')
@@ -313,7 +343,7 @@ async function main() {
     const base = `http://${HOST}:${port}`
     const profileDir = process.env.TERCET_BENCH_PROFILE
     server = spawn(process.execPath, [...(profileDir ? ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] : []), entry], {
-      env: { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD, ...(process.env.TERCET_INGEST_WRITERS ? { TERCET_INGEST_WRITERS: process.env.TERCET_INGEST_WRITERS } : {}) },
+      env: { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD, ...(process.env.TERCET_WRITE_LANES ? { TERCET_WRITE_LANES: process.env.TERCET_WRITE_LANES } : {}), ...(process.env.TERCET_WRITE_GROUP ? { TERCET_WRITE_GROUP: process.env.TERCET_WRITE_GROUP } : {}) },
       stdio: ['ignore', 2, 2],
     })
     await waitHealthy(base)
@@ -325,25 +355,31 @@ async function main() {
     const warm = await cannon(port, '/api/v1/runs', singleBuffers, tokens, { seconds: WARMUP_SECONDS })
     const rest = singleBuffers.slice(warm.used)
 
-    // the raw writer runs for half its time just before the HTTP stage and half just after, so that a machine
-    // whose speed drifts during the bench (other tenants, clock boost) weighs on both figures alike
-    const rawHalf = async (when: string) => {
-      say(`raw (${when}): ${CONNECTIONS} connections, one run's rows (unit, run, ${MEASUREMENTS}+ measurements, step row, aggregates) per transaction, for ${RAW_SECONDS / 2} s…`)
-      // each raw stage starts from an empty queue: what was left queued is folded first, untimed
+    /** Runs a yardstick stage from an empty queue and reports its rate, statements and CPU per run. */
+    const timed = async (label: string, stage: () => Promise<Stage>) => {
+      // each stage starts from an empty queue: what was left queued is folded first, untimed
       await foldPendingStats(knex)
       const q0 = await questions(pool)
       const d0 = cpuSeconds(databasePid())
-      const t0 = Date.now()
       const u0 = process.cpuUsage()
-      const r = await rawInsert(ctx, single, 1, RAW_SECONDS / 2)
+      const r = await stage()
       const drain = await drained(knex)
       const u = process.cpuUsage(u0)
       const q1 = await questions(pool)
       const perSec = r.runs / (r.seconds + drain.seconds)
-      say(`  ${round(perSec)} runs/s (${drain.runs} runs left to fold, in ${round(drain.seconds, 2)} s), ${round((q1 - q0) / Math.max(1, r.runs))} statements per run, transaction p50 ${r.p50Ms} ms, p99 ${r.p99Ms} ms; CPU per run: direct writer ${round((u.user + u.system) / 1000 / r.runs, 2)} ms, MariaDB ${round((1000 * (cpuSeconds(databasePid()) - d0)) / r.runs, 2)} ms`)
+      say(`  ${label}: ${round(perSec)} runs/s (${drain.runs} runs left to fold, in ${round(drain.seconds, 2)} s), ${round((q1 - q0) / Math.max(1, r.runs))} statements per run, p50 ${r.p50Ms} ms, p99 ${r.p99Ms} ms; CPU per run: writer ${round((u.user + u.system) / 1000 / r.runs, 2)} ms, MariaDB ${round((1000 * (cpuSeconds(databasePid()) - d0)) / r.runs, 2)} ms`)
       return perSec
     }
-    const rawBefore = await rawHalf('before')
+    // each yardstick runs for half its time just before the HTTP stage and half just after, so that a machine whose
+    // speed drifts during the bench (other tenants, clock boost) weighs on every figure alike
+    const half = RAW_SECONDS / 2
+    const yardsticks = async (when: string) => {
+      say(`yardsticks (${when}), ${CONNECTIONS} connections, ${half} s each…`)
+      const minimal = await timed(`minimal (run row + ${MEASUREMENTS} measurement rows per transaction)`, () => minimalStage(ctx, single, half))
+      const raw = await timed('raw (the write path called directly, one run per call)', () => rawStage(ctx, single, half))
+      return { minimal, raw }
+    }
+    const before = await yardsticks('before')
 
     say(`POST /api/v1/runs: ${CONNECTIONS} connections for ${SECONDS} s…`)
     const q0 = await questions(pool)
@@ -358,12 +394,14 @@ async function main() {
     const q1 = await questions(pool)
     const runsPerSec = s['2xx'] / (s.duration + drain.seconds)
     say(`  ${s['2xx']} runs stored (${drain.runs} left to fold, in ${round(drain.seconds, 2)} s), ${round((q1 - q0) / Math.max(1, s['2xx']))} statements per run (all clients of the database); CPU per run: server ${round((1000 * (c1 - c0)) / s['2xx'], 2)} ms (of it in the kernel ${round((1000 * (k1 - k0)) / s['2xx'], 2)} ms), MariaDB ${round((1000 * (d1 - d0)) / s['2xx'], 2)} ms`)
-    const rawAfter = await rawHalf('after')
-    // both halves last the same time, so their mean rate is the rate over the whole raw stage
-    const rawSingle = (rawBefore + rawAfter) / 2
+    const after = await yardsticks('after')
+    // both halves last the same time, so their mean rate is the rate over the whole stage
+    const minimal = (before.minimal + after.minimal) / 2
+    const raw = (before.raw + after.raw) / 2
     process.stdout.write(JSON.stringify({
       endpoint: 'runs', runsPerSec: round(runsPerSec), p50Ms: s.latency.p50, p99Ms: s.latency.p99, errors: s.errors + s.timeouts,
-      non2xx: s.non2xx, rawRunsPerSec: round(rawSingle), ratio: round(runsPerSec / rawSingle, 3),
+      non2xx: s.non2xx, rawRunsPerSec: round(raw), ratio: round(runsPerSec / raw, 3),
+      minimalRawRunsPerSec: round(minimal), minimalRatio: round(runsPerSec / minimal, 3), flushLogAtTrxCommit,
     }) + '\n')
 
     say(`POST /api/v1/runs/batch: ${BATCH} runs per request, ${CONNECTIONS} connections…`)
@@ -379,15 +417,13 @@ async function main() {
     const bDrain = await drained(knex)
     const batchPerSec = stored / (b.duration + bDrain.seconds)
     say(`  ${stored} runs stored in ${b['2xx']} requests (${bDrain.runs} left to fold, in ${round(bDrain.seconds, 2)} s), ${refused} runs refused inside batches`)
-    say(`raw: ${CONNECTIONS} connections, ${BATCH} runs' rows per transaction, for ${RAW_SECONDS} s…`)
-    const rb = await rawInsert(ctx, batchRuns, BATCH, RAW_SECONDS)
-    const rbDrain = await drained(knex)
-    const rawBatch = rb.runs / (rb.seconds + rbDrain.seconds)
-    say(`  ${round(rawBatch)} runs/s (${rbDrain.runs} left to fold, in ${round(rbDrain.seconds, 2)} s)`)
+    const rawBatch = await timed(`raw batches (the write path called directly, ${BATCH} runs per call)`, () => rawStage(ctx, batchRuns, RAW_SECONDS, BATCH))
     process.stdout.write(JSON.stringify({
-      // non2xx counts refused requests and refused runs inside 200 batch answers alike
+      // non2xx counts refused requests and refused runs inside 200 batch answers alike; the minimal writer is the
+      // same one-run-per-transaction yardstick as on the single endpoint
       endpoint: 'runs/batch', runsPerSec: round(batchPerSec), p50Ms: b.latency.p50, p99Ms: b.latency.p99, errors: b.errors + b.timeouts,
       non2xx: b.non2xx + refused, rawRunsPerSec: round(rawBatch), ratio: round(batchPerSec / rawBatch, 3),
+      minimalRawRunsPerSec: round(minimal), minimalRatio: round(batchPerSec / minimal, 3), flushLogAtTrxCommit,
     }) + '\n')
   } finally {
     await stopServer()

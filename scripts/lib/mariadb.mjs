@@ -28,9 +28,27 @@ function portTaken(port) {
   })
 }
 
+/**
+ * Commits are durable by default: every commit is on disk before it is acknowledged (innodb_flush_log_at_trx_commit=1,
+ * and sync_binlog=1 should a binary log be turned on). TERCET_DB_FAST_COMMIT=1 writes the log to the operating
+ * system at each commit and to disk about once a second instead: faster, but a power cut or a crash of the machine
+ * can lose about the last second of runs that stations were told were stored.
+ */
+export function commitSetting(env = process.env) {
+  const fast = env.TERCET_DB_FAST_COMMIT === '1'
+  return { fast, flushLog: fast ? 2 : 1, syncBinlog: fast ? 0 : 1 }
+}
+
+/** A server started earlier, perhaps with another setting, is brought to the one asked for (both are dynamic). */
+function applyCommitSetting() {
+  const c = commitSetting()
+  sql(`SET GLOBAL innodb_flush_log_at_trx_commit = ${c.flushLog}; SET GLOBAL sync_binlog = ${c.syncBinlog};`)
+  if (c.fast) log('WARNING: TERCET_DB_FAST_COMMIT=1: commits reach the disk about once a second; a power cut can lose the last second of acknowledged runs.')
+}
+
 export async function startMariadb(port) {
   ensureDebianPackage('mariadbd', 'mariadb-server')
-  if (isRunning()) return
+  if (isRunning()) { applyCommitSetting(); return }
   if (await portTaken(port)) fail(`port ${port} on 127.0.0.1 is already in use; set TERCET_DB_PORT to a free port (e.g. TERCET_DB_PORT=3317 npm start).`)
   mkdirSync(base, { recursive: true })
   if (!existsSync(resolve(datadir, 'mysql'))) {
@@ -41,7 +59,8 @@ export async function startMariadb(port) {
   log(`starting MariaDB on 127.0.0.1:${port}…`)
   const child = spawn('mariadbd', ['--no-defaults', '--user=root', `--datadir=${datadir}`, '--bind-address=127.0.0.1',
     `--port=${port}`, `--socket=${socket}`, `--pid-file=${pidFile}`, `--log-error=${errLog}`, '--skip-name-resolve',
-    '--innodb-buffer-pool-size=512M', '--innodb-flush-log-at-trx-commit=2', '--max-connections=300', '--thread-handling=pool-of-threads',
+    '--innodb-buffer-pool-size=512M', `--innodb-flush-log-at-trx-commit=${commitSetting().flushLog}`, `--sync-binlog=${commitSetting().syncBinlog}`,
+    '--max-connections=300', '--thread-handling=pool-of-threads',
     // a statistics fold runs for tens of milliseconds: after 20 ms its thread-pool group takes another thread,
     // so the short run transactions queued behind it do not wait the default half second
     '--thread-pool-stall-limit=20',
@@ -49,7 +68,7 @@ export async function startMariadb(port) {
   { detached: true, stdio: 'ignore' })
   child.unref()
   for (let i = 0; i < 120; i++) {
-    if (isRunning()) return
+    if (isRunning()) { applyCommitSetting(); return }
     await new Promise((r) => setTimeout(r, 250))
   }
   const tail = existsSync(errLog) ? readFileSync(errLog, 'utf8').split('\n').slice(-15).join('\n') : ''
