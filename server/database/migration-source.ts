@@ -11,6 +11,7 @@ import * as m009 from './migrations/20261201_009_control_baselines'
 import * as m010 from './migrations/20261201_010_stats_pending'
 import * as m011 from './migrations/20261202_011_import_cancel'
 import * as m012 from './migrations/20261202_012_test_order'
+import * as m013 from './migrations/20261203_013_measurement_offset'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -28,6 +29,7 @@ const migrations: Record<string, Migration> = {
   '20261201_010_stats_pending': m010,
   '20261202_011_import_cancel': m011,
   '20261202_012_test_order': m012,
+  '20261203_013_measurement_offset': m013,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

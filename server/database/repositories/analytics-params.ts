@@ -53,10 +53,10 @@ export async function qualifiersOf(db: Knex, lotId: number, step: string, name: 
 
 /**
  * First-attempt values of one lot parameter, newest first, at most `cap` of them
- * (one range of the (lot, name, qualifier, step, started_at) index).
+ * (one range of the (lot, name, qualifier, step, started_at) index); implausible values left out.
  */
 export async function firstAttemptValues(db: Knex, lotId: number, key: ParamKey, cap: number): Promise<number[]> {
-  const rows = await db('measurements').where({ lot_id: lotId, name: key.name, qualifier: key.qualifier, step: key.step, first_attempt: true })
+  const rows = await db('measurements').where({ lot_id: lotId, name: key.name, qualifier: key.qualifier, step: key.step, first_attempt: true, implausible: false })
     .orderBy('started_at', 'desc').limit(cap).select('value')
   return rows.map((r: any) => Number(r.value))
 }

@@ -2,8 +2,9 @@ import type { Knex } from 'knex'
 
 export type ParamKey = { lotId: number; step: string; name: string; qualifier: number; firstOnly: boolean }
 
+// implausible values (a bench fault, not the part) stay out of every chart and figure drawn from these rows
 function scope(db: Knex, k: ParamKey) {
-  const q = db('measurements as m').where({ 'm.lot_id': k.lotId, 'm.name': k.name, 'm.qualifier': k.qualifier, 'm.step': k.step })
+  const q = db('measurements as m').where({ 'm.lot_id': k.lotId, 'm.name': k.name, 'm.qualifier': k.qualifier, 'm.step': k.step, 'm.implausible': false })
   return k.firstOnly ? q.where('m.first_attempt', true) : q
 }
 

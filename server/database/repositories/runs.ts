@@ -76,17 +76,17 @@ export function measurementsInsert(runId: RunIdRef, ctx: MeasurementContext, ms:
   const runRef = typeof runId === 'number' ? String(runId) : runId.toSqlString()
   const revisionId = ctx.revisionId ?? 0
   if (!Number.isInteger(ctx.lotId) || !Number.isInteger(ctx.stationId) || !Number.isInteger(revisionId)) throw new TypeError('lot, station and revision ids must be integers')
-  const tuple = `(${runRef}, ${ctx.lotId}, ${ctx.stationId}, ${revisionId}, ${mysql.escape(ctx.step)}, ${ctx.firstAttempt ? 1 : 0}, ${utcLiteral(ctx.startedAt)}, ${new Array(15).fill('?').join(', ')})`
+  const tuple = `(${runRef}, ${ctx.lotId}, ${ctx.stationId}, ${revisionId}, ${mysql.escape(ctx.step)}, ${ctx.firstAttempt ? 1 : 0}, ${utcLiteral(ctx.startedAt)}, ${new Array(16).fill('?').join(', ')})`
   const values: Knex.RawBinding[] = []
   for (const m of ms) {
     const l = m.limit
     values.push(m.name, m.qualifier, m.value, m.unit, m.uncertainty,
       l ? l.lsl : null, l ? l.usl : null, l ? l.target : null, l ? l.rule : null, l ? l.guardBand : null,
-      m.verdict, m.zone, m.derived, m.excessDb, m.implausible)
+      m.verdict, m.zone, m.derived, m.excessDb, m.implausible, m.atOffsetHz ?? null)
   }
   return {
     sql: `INSERT INTO measurements (run_id, lot_id, station_id, revision_id, step, first_attempt, started_at, name, qualifier, value, unit, uncertainty,
-      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible) VALUES ${new Array(ms.length).fill(tuple).join(', ')}`,
+      lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible, at_offset_hz) VALUES ${new Array(ms.length).fill(tuple).join(', ')}`,
     values,
   }
 }
