@@ -104,3 +104,31 @@ export function maskDecision(limits: readonly { rule: DecisionRule; defaultUncer
   for (const l of limits) if (l.defaultUncertainty != null) w = Math.max(w ?? 0, l.defaultUncertainty)
   return { rule: limits.some((l) => l.rule === 'guarded') ? 'guarded' : 'simple', defaultUncertainty: w }
 }
+
+export const MASK_MARGIN = 'phase_noise_mask_margin'
+
+type LimitRow = {
+  step: string; name: string; qualifier: number; lsl: number | null; usl: number | null; target: number | null; unit: string
+  required: boolean; rule: DecisionRule; defaultUncertainty: number | null; key: boolean
+}
+
+/**
+ * The limit the mask margin of a step is held to, derived from that step's phase-noise limits (the specification
+ * names no limit of its own for it): at least 0 dB, with the mask's decision rule and guard band. Undefined when the
+ * step has no phase-noise upper limit.
+ */
+export function maskMarginLimit<L extends LimitRow>(limits: readonly L[], step: string): LimitRow | undefined {
+  const spots = limits.filter((l) => l.step === step && l.name === 'phase_noise' && l.usl != null)
+  if (!spots.length) return undefined
+  const d = maskDecision(spots)
+  return {
+    step, name: MASK_MARGIN, qualifier: 0, lsl: 0, usl: null, target: null, unit: 'dB', required: false,
+    rule: d.rule, defaultUncertainty: d.defaultUncertainty, key: spots.some((l) => l.key),
+  }
+}
+
+/** The limit in force for one parameter: the specification's own, or for the mask margin the one derived above. */
+export function limitInForce<L extends LimitRow>(limits: readonly L[], p: { step: string; name: string; qualifier: number }): LimitRow | undefined {
+  return limits.find((l) => l.step === p.step && l.name === p.name && l.qualifier === p.qualifier)
+    ?? (p.name === MASK_MARGIN && p.qualifier === 0 ? maskMarginLimit(limits, p.step) : undefined)
+}

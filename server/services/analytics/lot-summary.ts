@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
 import { capabilityFromStats, sigmaFromMovingRange } from '../../../shared/utils/capability'
 import { formatQualifier, KNOWN_MEASUREMENTS } from '../../../shared/utils/measurement-names'
+import { limitInForce } from '../../../shared/utils/phase-noise-mask'
 import { emptyMoments, mergeMoments, momentsFromShiftedSums, stdDev } from '../../../shared/utils/moments'
 import { paretoFailures, rolledThroughputYield, wilsonInterval } from '../../../shared/utils/yield'
 import { findLotHeader, paramStats, paramStatsAllAttempts, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
@@ -47,7 +48,7 @@ async function allAttemptStats(db: Knex, lotId: number): Promise<Merged[]> {
 }
 
 function limitFor(limits: SpecLimit[], p: { step: string; name: string; qualifier: number }) {
-  return limits.find((l) => l.step === p.step && l.name === p.name && l.qualifier === p.qualifier)
+  return limitInForce(limits, p)
 }
 
 function stepOrder(lot: LotHeader, step: string) {

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
 import { ewma, individualsLimits, westernElectricHits } from '../../../shared/utils/control'
 import { qualifierKind } from '../../../shared/utils/measurement-names'
+import { limitInForce } from '../../../shared/utils/phase-noise-mask'
 import { slopeFromCentredSums } from '../../../shared/utils/regression'
 import { findLotHeader } from '../../database/repositories/lot-stats'
 import { findBaseline, parameterHistogram, parameterMoments, parameterPoints, parameterTrendSums, type ParamKey } from '../../database/repositories/parameter-values'
@@ -19,7 +20,7 @@ export async function parameterView(db: Knex, q: ParameterQuery, now = new Date(
   if (!lot) return undefined
   const key: ParamKey = { lotId: lot.id, step: q.step, name: q.name, qualifier: q.qualifier, firstOnly: q.attempts === 'first' }
   const [moments, revisions, frozen] = await Promise.all([parameterMoments(db, key), listEffectiveRevisions(db, lot.productId), findBaseline(db, key)])
-  const limit = revisionAt(revisions, now)?.limits.find((l) => l.step === q.step && l.name === q.name && l.qualifier === q.qualifier)
+  const limit = limitInForce(revisionAt(revisions, now)?.limits ?? [], q)
   const parameter = {
     step: q.step, name: q.name, qualifier: q.qualifier, label: parameterLabel(q.name, q.qualifier), unit: limit?.unit ?? null,
     lsl: limit?.lsl ?? null, usl: limit?.usl ?? null, target: limit?.target ?? null, qualifierKind: qualifierKind(q.name),

@@ -3,7 +3,7 @@ import { judge, hasLimit } from '../../../shared/utils/decision'
 import { rmsJitterSeconds, type PhaseNoisePointTuple } from '../../../shared/utils/jitter'
 import { expectedUnit, qualifierKey } from '../../../shared/utils/measurement-names'
 import { multiplicationCheck } from '../../../shared/utils/multiplication-check'
-import { maskDecision, traceMaskMargin } from '../../../shared/utils/phase-noise-mask'
+import { maskMarginLimit, traceMaskMargin } from '../../../shared/utils/phase-noise-mask'
 import { impossibleValues, implausibleReason, implausibleTrace } from '../../../shared/utils/plausibility'
 import { frequencyTolerancePpm, referenceFrequencyCheck } from '../../../shared/utils/reference-frequency'
 import { ppmError } from '../../../shared/utils/rf'
@@ -35,15 +35,6 @@ function applyLimit(m: Unjudged, limit: SpecLimit | undefined): JudgedMeasuremen
   const j = judge(m.value, { lsl: limit.lsl, usl: limit.usl, rule: limit.rule, defaultUncertainty: limit.defaultUncertainty }, m.uncertainty)
   const outOfSpec = (limit.lsl != null && m.value < limit.lsl) || (limit.usl != null && m.value > limit.usl) || !Number.isFinite(m.value)
   return judged(m, { lsl: limit.lsl, usl: limit.usl, target: limit.target, rule: limit.rule, guardBand: j.guardBand }, j.verdict, j.zone, outOfSpec)
-}
-
-/** The limit the phase-noise mask margin is judged by: at least 0 dB, with the phase-noise limits' rule and guard band. */
-function maskMarginLimit(step: string, phaseNoise: SpecLimit[]): SpecLimit {
-  const d = maskDecision(phaseNoise)
-  return {
-    step, name: 'phase_noise_mask_margin', qualifier: 0, lsl: 0, usl: null, target: null, unit: 'dB', required: false,
-    rule: d.rule, defaultUncertainty: d.defaultUncertainty, key: false,
-  }
 }
 
 function jitterPoints(run: StationRun, posted: JudgedMeasurement[]): PhaseNoisePointTuple[] {
@@ -121,13 +112,14 @@ export function judgeRun(run: StationRun, product: ProductInfo, revision: Revisi
       }
     } catch { /* the points do not cover the band: no jitter is derived */ }
   }
-  const maskLimits = [...limits.values()].filter((l) => l.name === 'phase_noise' && l.usl != null)
-  if (sweep && maskLimits.length && !seen.has(key('phase_noise_mask_margin', 0))) {
-    const margin = traceMaskMargin(maskLimits.map((l) => ({ offsetHz: l.qualifier, usl: l.usl! })), sweep.points)
+  const marginLimit = limits.get(key('phase_noise_mask_margin', 0)) ?? maskMarginLimit([...limits.values()], run.step)
+  if (sweep && marginLimit && !seen.has(key('phase_noise_mask_margin', 0))) {
+    const mask = [...limits.values()].filter((l) => l.name === 'phase_noise' && l.usl != null).map((l) => ({ offsetHz: l.qualifier, usl: l.usl! }))
+    const margin = traceMaskMargin(mask, sweep.points)
     if (margin) {
       const m = applyLimit({
         name: 'phase_noise_mask_margin', qualifier: 0, value: margin.worstMarginDb, unit: 'dB', uncertainty: null, derived: true, excessDb: null, atOffsetHz: margin.worstOffsetHz,
-      }, maskMarginLimit(run.step, maskLimits))
+      }, marginLimit)
       if (sweepImplausible) m.implausible = true
       derived.push(m)
     }

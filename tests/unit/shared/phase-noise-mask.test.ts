@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { maskDecision, maskLimitAt, maskLine, traceMaskMargin } from '../../../shared/utils/phase-noise-mask'
+import { limitInForce, maskDecision, maskLimitAt, maskLine, maskMarginLimit, traceMaskMargin } from '../../../shared/utils/phase-noise-mask'
 
 // The demo tripler's final-test mask. Between spot offsets the limit is a straight line on a log-frequency axis
 // (common practice for phase-noise masks): between 1 kHz (−134) and 10 kHz (−144) it falls 10 dB per decade.
@@ -98,5 +98,21 @@ describe('maskDecision', () => {
   it('is guarded if any spot limit is, with the widest default uncertainty among them', () => {
     expect(maskDecision([{ rule: 'guarded', defaultUncertainty: 1.5 }, { rule: 'simple', defaultUncertainty: 2 }])).toEqual({ rule: 'guarded', defaultUncertainty: 2 })
     expect(maskDecision([{ rule: 'simple', defaultUncertainty: null }, { rule: 'simple', defaultUncertainty: null }])).toEqual({ rule: 'simple', defaultUncertainty: null })
+  })
+})
+
+describe('the mask margin\'s limit', () => {
+  const spec = (name: string, qualifier: number, usl: number | null, rule: 'simple' | 'guarded' = 'guarded', step = 'final') => ({
+    step, name, qualifier, lsl: null, usl, target: null, unit: 'dBc/Hz', required: true, rule, defaultUncertainty: 1.5, key: true,
+  })
+  const limits = [spec('phase_noise', 100, -114), spec('phase_noise', 1000, -134), spec('output_power', 0, 8.5, 'simple'), spec('phase_noise', 1000, -120, 'simple', 'tune')]
+
+  it('is at least 0 dB with the step\'s phase-noise rule and guard band, and found like any limit', () => {
+    expect(maskMarginLimit(limits, 'final')).toMatchObject({ name: 'phase_noise_mask_margin', qualifier: 0, lsl: 0, usl: null, unit: 'dB', rule: 'guarded', defaultUncertainty: 1.5, required: false })
+    expect(maskMarginLimit(limits, 'tune')).toMatchObject({ rule: 'simple' })
+    expect(maskMarginLimit(limits, 'burn-in')).toBeUndefined()
+    expect(limitInForce(limits, { step: 'final', name: 'phase_noise_mask_margin', qualifier: 0 })).toMatchObject({ lsl: 0 })
+    expect(limitInForce(limits, { step: 'final', name: 'output_power', qualifier: 0 })).toBe(limits[2])
+    expect(limitInForce(limits, { step: 'final', name: 'supply_current', qualifier: 0 })).toBeUndefined()
   })
 })

@@ -48,6 +48,8 @@ describe('measurement display', () => {
     expect(formatInUnit(0.1 + 0.2, 'ppm')).toBe('0.3')
     expect(formatInUnit(375_000_150.5, 'Hz')).toBe('375000150.5')
     expect(formatInUnit(null, 'dBm')).toBe('—')
+    expect(formatInUnit(-2.500030681, 'dB', 5)).toBe('-2.5')
+    expect(formatInUnit(0.123456789, 'ppm', 5)).toBe('0.12346')
   })
 
   it('marks a pass inside the guard band as marginal, nothing else', () => {
