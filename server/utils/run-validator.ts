@@ -40,6 +40,8 @@ export const runBatchSchema: AnySchemaObject = runBatchSchemaObject as unknown a
 // useDefaults writes schema defaults (the run's step) into the validated body in place.
 const ajv = new Ajv2020({ strict: true, allErrors: true, useDefaults: true })
 addFormats(ajv)
+// other bodies may refer to a run by its $id
+ajv.addSchema(runSchema)
 // Station runs on their own instance that lets non-finite numbers through (JSON's 1e400 parses to Infinity): the
 // judgement refuses them with 422 and a reason, with every other value no instrument produces (shared/utils/plausibility.ts).
 const runAjv = new Ajv2020({ strict: true, allErrors: true, useDefaults: true, strictNumbers: false })
