@@ -1,16 +1,12 @@
 import type { Knex } from 'knex'
-import { findUnitsBySerial, loadUnitRuns, type UnitRecord } from '../database/repositories/units'
-import { limitMaskFromMeasurements, type MaskPoint } from '../../shared/utils/phase-noise-plot'
-import { runViewFromRows, type RunView } from './ingest/run-view'
-
-export type UnitRunView = RunView & {
-  receivedAt: string
-  traces: { name: string; points: [number, number][] }[]
-  phaseNoiseMask: MaskPoint[]
-}
+import { findUnitsBySerial, loadUnitRuns, phaseNoiseMasksOf } from '../database/repositories/units'
+import { limitMaskFromMeasurements } from '../../shared/utils/phase-noise-plot'
+import type { UnitInfo, UnitRun } from '../../shared/types/unit-history'
+import { runViewFromRows } from './ingest/run-view'
+import { unitRfChecks } from './unit-rf-checks'
 
 export type UnitHistory =
-  | { kind: 'found'; unit: Omit<UnitRecord, 'id' | 'createdAt'> & { createdAt: string }; runs: UnitRunView[] }
+  | { kind: 'found'; unit: UnitInfo; runs: UnitRun[] }
   | { kind: 'ambiguous'; parts: string[] }
   | { kind: 'missing'; parts: string[] }
 
@@ -27,13 +23,17 @@ export async function unitHistory(db: Knex, serial: string, part?: string): Prom
   if (!unit) return units.length > 1 && part === undefined ? { kind: 'ambiguous', parts } : { kind: 'missing', parts }
 
   const rows = await loadUnitRuns(db, unit.id)
-  const runs = rows.map(({ run, measurements, traces }) => {
+  const masks = await phaseNoiseMasksOf(db, [...new Set(rows.map(({ run }) => Number(run.revision_id)).filter((id) => id > 0))])
+  const runs: UnitRun[] = rows.map(({ run, measurements, traces }) => {
     const view = runViewFromRows(run, measurements)
+    // the mask of the revision the run was judged by (the sweep is judged against all of it), else the spot snapshots
+    const mask = masks.get(`${run.revision_id}\u0000${run.step}`) ?? limitMaskFromMeasurements(view.measurements)
     return {
       ...view,
       receivedAt: new Date(run.received_at).toISOString(),
       traces: traces.map((t: any) => ({ name: t.name, points: points(t.points) })),
-      phaseNoiseMask: limitMaskFromMeasurements(view.measurements),
+      phaseNoiseMask: mask,
+      rf: unitRfChecks(unit, run.reference, view.measurements),
     }
   })
   const { id: _id, createdAt, ...rest } = unit

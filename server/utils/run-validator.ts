@@ -40,7 +40,13 @@ export const runBatchSchema: AnySchemaObject = runBatchSchemaObject as unknown a
 // useDefaults writes schema defaults (the run's step) into the validated body in place.
 const ajv = new Ajv2020({ strict: true, allErrors: true, useDefaults: true })
 addFormats(ajv)
+// other bodies may refer to a run by its $id
 ajv.addSchema(runSchema)
+// Station runs on their own instance that lets non-finite numbers through (JSON's 1e400 parses to Infinity): the
+// judgement refuses them with 422 and a reason, with every other value no instrument produces (shared/utils/plausibility.ts).
+const runAjv = new Ajv2020({ strict: true, allErrors: true, useDefaults: true, strictNumbers: false })
+addFormats(runAjv)
+runAjv.addSchema(runSchema)
 
 function escapePointerToken(token: string): string {
   return token.replace(/~/g, '~0').replace(/\//g, '~1')
@@ -80,16 +86,16 @@ function mapErrors(errors: readonly ErrorObject[] | null | undefined): Validatio
 }
 
 /** Compiles a JSON Schema (draft 2020-12, strict) into a validator with pointer/message errors. */
-export function compileSchema<T>(schemaModule: AnySchemaObject): Validator<T> {
+export function compileSchema<T>(schemaModule: AnySchemaObject, on: Ajv2020 = ajv): Validator<T> {
   const schema = jsonModule(schemaModule)
   // Schemas are shared by $id on one instance so that they can $ref each other; compiling a known $id again reuses it.
-  const known = typeof schema.$id === 'string' ? ajv.getSchema(schema.$id) : undefined
-  const validate = known ?? ajv.compile(schema)
+  const known = typeof schema.$id === 'string' ? on.getSchema(schema.$id) : undefined
+  const validate = known ?? on.compile(schema)
   return (body: unknown) => {
     if (validate(body)) return { ok: true, value: body as T }
     return { ok: false, errors: mapErrors(validate.errors) }
   }
 }
 
-export const validateRun: Validator<StationRun> = compileSchema<StationRun>(runSchema)
-export const validateRunBatch: Validator<StationRunBatch> = compileSchema<StationRunBatch>(runBatchSchema)
+export const validateRun: Validator<StationRun> = compileSchema<StationRun>(runSchema, runAjv)
+export const validateRunBatch: Validator<StationRunBatch> = compileSchema<StationRunBatch>(runBatchSchema, runAjv)

@@ -82,6 +82,7 @@ export const runSchema = {
       type: 'object',
       additionalProperties: false,
       required: ['frequencyHz'],
+      description: 'The reference the unit was driven from, as the station measured it. The output frequency is checked against N × frequencyHz and the phase noise against the reference + 20·log10(N); a disagreement flags the run as a measurement problem.',
       properties: {
         frequencyHz: {
           type: 'number',
@@ -90,6 +91,7 @@ export const runSchema = {
         phaseNoise: {
           type: 'array',
           maxItems: 64,
+          description: 'Offsets must lie below frequencyHz and levels at or below 0 dBc/Hz (422 otherwise: no sideband lies beyond its carrier, and no 1 Hz of one sideband holds more power than the carrier).',
           items: {
             '$ref': '#/$defs/phaseNoisePoint',
           },
@@ -141,6 +143,7 @@ export const runSchema = {
         },
         value: {
           type: 'number',
+          description: 'Refused with 422 when no instrument can produce it: a number that is not finite (1e400); a negative integrated_jitter (an RMS value), output_frequency or supply_current; phase_noise above 0 dBc/Hz (more power in 1 Hz of a sideband than in the carrier). Values a working bench does not produce (more than ten spec widths from the centre of two-sided limits, phase noise below −200 dBc/Hz, harmonic rejection above 150 dB, jitter above 1 µs) are stored but flagged as a measurement problem and kept out of capability and charts.',
         },
         unit: {
           type: 'string',
@@ -156,6 +159,7 @@ export const runSchema = {
         offsetHz: {
           type: 'number',
           exclusiveMinimum: 0,
+          description: 'Offset from the carrier; for phase_noise it must lie below the product\'s output frequency (422 otherwise).',
         },
         harmonic: {
           type: 'integer',
@@ -230,7 +234,7 @@ export const runSchema = {
       ],
       items: false,
       minItems: 2,
-      description: '[x, y]; x is a frequency or offset in Hz.',
+      description: '[x, y]; x is a frequency or offset in Hz. In a phase_noise_sweep trace ([offset, dBc/Hz]) the offset must lie below the product\'s output frequency and the level at or below 0 dBc/Hz (422 otherwise); the sweep is judged against the phase-noise limit mask.',
     },
   },
 } as const

@@ -7,6 +7,8 @@ export type JudgedMeasurement = {
   name: string; qualifier: number; value: number; unit: string; uncertainty: number | null
   limit: AppliedLimit | null; verdict: 'pass' | 'fail' | 'info'; zone: 'inside' | 'guard' | 'outside' | null
   derived: boolean; excessDb: number | null; outOfSpec: boolean
+  /** where along a sweep a derived value was found (the mask margin's worst offset, Hz); null otherwise */
+  atOffsetHz: number | null
   /** a value no working bench produces: stored and judged, kept out of capability and charts */
   implausible: boolean
 }

@@ -1,17 +1,25 @@
 export type CsvValue = string | number | boolean | null | undefined
 
-// A spreadsheet evaluates a cell starting with one of these as a formula.
+// A spreadsheet evaluates a text cell starting with one of these as a formula (OWASP, "CSV Injection").
 const FORMULA_START = /^[=+\-@\t\r]/
 
 /**
- * One CSV cell: formula-looking text gets a leading apostrophe, and a value already starting with an
- * apostrophe gets a second one so that csvUnescapeCell restores every value exactly.
+ * One CSV cell. Numbers are written as numbers: shortest round-trip form (every digit of the double), ASCII minus,
+ * never escaped, so a spreadsheet reads −136.9 as a number it can chart; a number cannot start a formula. Text that
+ * looks like a formula gets a leading apostrophe, and text already starting with an apostrophe gets a second one so
+ * that csvUnescapeCell restores every value exactly. Non-finite numbers are written empty.
  */
 export function csvEscapeCell(value: CsvValue): string {
   if (value == null) return ''
-  let s = typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : String(value)
+  if (typeof value === 'number') return Number.isFinite(value) ? String(value) : ''
+  let s = String(value)
   if (FORMULA_START.test(s) || s.startsWith("'")) s = `'${s}`
   return /[",\r\n]/.test(s) || s !== s.trim() ? `"${s.replace(/"/g, '""')}"` : s
+}
+
+/** A column header carrying its unit, e.g. "p10 [dBc/Hz]"; without a unit the name alone. */
+export function csvHeaderWithUnit(name: string, unit: string | null | undefined): string {
+  return unit ? `${name} [${unit}]` : name
 }
 
 /** Reverses csvEscapeCell on a parsed cell; a lone apostrophe in hand-written text is left alone. */

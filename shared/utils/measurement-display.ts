@@ -14,12 +14,15 @@ export function displayScale(unit: string): { unit: string; factor: number } {
   return unit === 's' ? { unit: 'fs', factor: 1e15 } : { unit, factor: 1 }
 }
 
-/** A number in the display unit: as posted (no float noise), derived jitter to three significant digits. */
-export function formatInUnit(value: number | null | undefined, unit: string): string {
+/**
+ * A number in the display unit: as posted (no float noise), derived jitter to three significant digits; `significant`
+ * overrides the digits (derived values such as the mask margin carry more than a reader can use).
+ */
+export function formatInUnit(value: number | null | undefined, unit: string, significant?: number): string {
   if (value == null || !Number.isFinite(value)) return '—'
   const { factor } = displayScale(unit)
   const v = value * factor
-  return String(Number.parseFloat(v.toPrecision(unit === 's' ? 3 : 10)))
+  return String(Number.parseFloat(v.toPrecision(significant ?? (unit === 's' ? 3 : 10))))
 }
 
 export type ChipVerdict = 'pass' | 'fail' | 'info' | 'marginal'

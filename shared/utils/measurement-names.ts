@@ -16,6 +16,8 @@ export const KNOWN_MEASUREMENTS = {
   phase_noise: { unit: 'dBc/Hz', qualifier: 'offsetHz', label: 'Phase noise', derived: false },
   supply_current: { unit: 'mA', qualifier: null, label: 'Supply current', derived: false },
   integrated_jitter: { unit: 's', qualifier: null, label: 'Integrated jitter', derived: true },
+  // limit minus the phase_noise_sweep trace at its worst place under the mask (see phase-noise-mask.ts)
+  phase_noise_mask_margin: { unit: 'dB', qualifier: null, label: 'Phase-noise mask margin', derived: true },
 } as const satisfies Record<string, MeasurementDefinition>
 
 export type KnownMeasurementName = keyof typeof KNOWN_MEASUREMENTS

@@ -19,23 +19,6 @@ export function limitMaskFromMeasurements(ms: MeasurementLike[]): MaskPoint[] {
   return [...byOffset].sort((a, b) => a[0] - b[0]).map(([offsetHz, usl]) => ({ offsetHz, usl }))
 }
 
-/**
- * The mask as a step line centred on the spot offsets: each limit holds from the log-midpoint with
- * its lower neighbour to the log-midpoint with its upper one, so every spot sits under its own limit.
- * The outer steps reach startHz / endHz when those lie beyond the outer offsets.
- */
-export function maskStepPoints(mask: MaskPoint[], startHz?: number, endHz?: number): [number, number][] {
-  const out: [number, number][] = []
-  mask.forEach((p, i) => {
-    const prev = mask[i - 1]
-    const next = mask[i + 1]
-    const from = prev ? Math.sqrt(prev.offsetHz * p.offsetHz) : Math.min(p.offsetHz, startHz ?? p.offsetHz)
-    const to = next ? Math.sqrt(p.offsetHz * next.offsetHz) : Math.max(p.offsetHz, endHz ?? p.offsetHz)
-    out.push([from, p.usl], [to, p.usl])
-  })
-  return out
-}
-
 /** Whole decades covering [lo, hi] in Hz, as exponents: 150 … 2e6 → [2, 7]. */
 export function decadeRange(lo: number, hi: number): [number, number] {
   if (!(lo > 0) || !(hi > 0)) throw new RangeError('offsets must be positive')

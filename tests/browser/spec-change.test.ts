@@ -53,7 +53,7 @@ describe('a limit change drafted by an engineer and approved by quality', () => 
     const quality = await signInPage(browser, baseUrl(), 'quality@tercet.test')
     await quality.goto(draftUrl)
     await quality.getByRole('button', { name: /Approve revision/ }).click()
-    await expect.poll(() => quality.locator('[data-test="revision-status"]').textContent()).toMatch(/approved/i)
+    await expect.poll(() => quality.locator('[data-test="revision-status"]').textContent(), { timeout: 15_000 }).toMatch(/approved/i)
     await shot(quality, 'spec-approved-quality')
     await quality.context().close()
 

@@ -109,8 +109,8 @@ function utcLiteral(d: Date): string {
 }
 
 const MEASUREMENT_HEAD = `INSERT INTO measurements (run_id, lot_id, station_id, revision_id, step, first_attempt, started_at, name, qualifier, value, unit,
-  uncertainty, lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible) VALUES `
-const MEASUREMENT_BOUND = list(15)
+  uncertainty, lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible, at_offset_hz) VALUES `
+const MEASUREMENT_BOUND = list(16)
 
 /** The measurements of one or more runs in one INSERT, with the limits applied copied beside each value. */
 export function measurementsInsert(items: { ctx: MeasurementContext; ms: JudgedMeasurement[] }[]): Statement {
@@ -127,7 +127,7 @@ export function measurementsInsert(items: { ctx: MeasurementContext; ms: JudgedM
       const l = m.limit
       values.push(m.name, m.qualifier, m.value, m.unit, m.uncertainty,
         l ? l.lsl : null, l ? l.usl : null, l ? l.target : null, l ? l.rule : null, l ? l.guardBand : null,
-        m.verdict, m.zone, m.derived, m.excessDb, m.implausible)
+        m.verdict, m.zone, m.derived, m.excessDb, m.implausible, m.atOffsetHz ?? null)
     }
   }
   return { sql, values }

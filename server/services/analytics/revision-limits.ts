@@ -3,6 +3,7 @@
 import type { Knex } from 'knex'
 import { listEffectiveRevisions, type RevisionInForce, type SpecLimit } from '../../database/repositories/spec-lookup'
 import type { JudgedRevision, RevisionTag } from '../../../shared/types/capability'
+import { limitInForce } from '../../../shared/utils/phase-noise-mask'
 
 export type ParameterKey = { step: string; name: string; qualifier: number }
 
@@ -22,7 +23,8 @@ export function bookOf(revisions: RevisionInForce[]): RevisionBook {
   const order = (id: number) => { const r = byId.get(id); return r ? r.effectiveAt.getTime() * 1e3 + r.revision : -Infinity }
   return {
     tag: (revisionId) => ({ revisionId, revision: byId.get(revisionId)?.revision ?? null }),
-    limitFor: (revisionId, k) => byId.get(revisionId)?.limits.find((l) => l.step === k.step && l.name === k.name && l.qualifier === k.qualifier),
+    // the mask margin of a sweep has no limit row of its own: its limit follows from the revision's phase-noise limits
+    limitFor: (revisionId, k) => limitInForce(byId.get(revisionId)?.limits ?? [], k) as SpecLimit | undefined,
     judged: (ids) => [...new Set(ids)].sort((a, b) => order(a) - order(b) || a - b).map((id) => ({
       revisionId: id, revision: byId.get(id)?.revision ?? null, effectiveAt: byId.get(id)?.effectiveAt.toISOString() ?? null,
     })),

@@ -1,6 +1,7 @@
 // The query naming one parameter of one part: ?part=&name=&qualifier=&step= (plus view-specific extras).
 import type { Knex } from 'knex'
 import { CUSTOM_NAME_PATTERN, formatQualifier, KNOWN_MEASUREMENTS, qualifierKind } from '../../../shared/utils/measurement-names'
+import { limitInForce } from '../../../shared/utils/phase-noise-mask'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type SpecLimit } from '../../database/repositories/spec-lookup'
 import { problem, type FieldError } from '../../utils/problem'
 import { qualifierFields } from '../ingest/run-view'
@@ -52,7 +53,7 @@ export async function resolveSeries(db: Knex, q: SeriesQuery, now = new Date()):
   const step = q.step ?? product.steps[product.steps.length - 1] ?? 'final'
   if (!product.steps.includes(step)) throw problem(400, `${product.partNumber} has no step ${step}.`, { errors: [{ pointer: '/step', message: `one of ${product.steps.join(', ')}` }] })
   const inForce = revisionAt(await listEffectiveRevisions(db, product.id), now)
-  const limit = inForce?.limits.find((l) => l.step === step && l.name === q.name && l.qualifier === q.qualifier)
+  const limit = limitInForce(inForce?.limits ?? [], { step, name: q.name, qualifier: q.qualifier })
   const known = (KNOWN_MEASUREMENTS as Record<string, { unit: string }>)[q.name]
   return {
     product, step, limit,

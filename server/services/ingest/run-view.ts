@@ -5,6 +5,10 @@ export type MeasurementView = {
   name: string; offsetHz?: number; harmonic?: number; value: number; unit: string; uncertainty: number | null
   limit: { lsl: number | null; usl: number | null; target: number | null; rule: 'simple' | 'guarded'; guardBand: number } | null
   verdict: 'pass' | 'fail' | 'info'; zone: 'inside' | 'guard' | 'outside' | null; derived: boolean; excessDb: number | null
+  /** a value no working bench produces: kept out of capability and charts */
+  implausible: boolean
+  /** where along the phase-noise sweep a derived value was found (the mask margin's worst offset) */
+  atOffsetHz?: number
 }
 
 export type RunView = {
@@ -25,7 +29,7 @@ export function qualifierFields(name: string, q: number): { offsetHz?: number; h
 type MeasurementLike = {
   name: string; qualifier: number; value: number; unit: string; uncertainty: number | null; verdict: 'pass' | 'fail' | 'info'
   zone: 'inside' | 'guard' | 'outside' | null; derived: boolean; excessDb: number | null
-  limit: MeasurementView['limit']
+  limit: MeasurementView['limit']; implausible: boolean; atOffsetHz: number | null
 }
 
 export function measurementView(m: MeasurementLike): MeasurementView {
@@ -42,6 +46,8 @@ export function measurementView(m: MeasurementLike): MeasurementView {
   view.zone = m.zone
   view.derived = m.derived
   view.excessDb = m.excessDb
+  view.implausible = m.implausible
+  if (m.atOffsetHz != null) view.atOffsetHz = m.atOffsetHz
   return view
 }
 
@@ -49,7 +55,7 @@ export function measurementFromRow(r: any): MeasurementLike {
   const hasLimit = r.lsl != null || r.usl != null
   return {
     name: r.name, qualifier: r.qualifier, value: r.value, unit: r.unit, uncertainty: r.uncertainty, verdict: r.verdict,
-    zone: r.zone ?? null, derived: !!r.derived, excessDb: r.excess_db ?? null,
+    zone: r.zone ?? null, derived: !!r.derived, excessDb: r.excess_db ?? null, implausible: !!r.implausible, atOffsetHz: r.at_offset_hz ?? null,
     limit: hasLimit ? { lsl: r.lsl, usl: r.usl, target: r.target, rule: r.rule, guardBand: r.guard_band ?? 0 } : null,
   }
 }

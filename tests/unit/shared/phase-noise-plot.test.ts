@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { decadeRange, limitMaskFromMeasurements, logFrequencyLabel, maskStepPoints } from '../../../shared/utils/phase-noise-plot'
+import { decadeRange, limitMaskFromMeasurements, logFrequencyLabel } from '../../../shared/utils/phase-noise-plot'
 import { chipVerdict, displayScale, formatInUnit, measurementLabel } from '../../../shared/utils/measurement-display'
 
 const pn = (offsetHz: number, usl: number | null) => ({ name: 'phase_noise', offsetHz, limit: usl === null ? null : { usl } })
@@ -15,16 +15,6 @@ describe('limitMaskFromMeasurements', () => {
 
   it('is empty when no phase noise carried a limit', () => {
     expect(limitMaskFromMeasurements([pn(100, null), { name: 'output_power', limit: null }])).toEqual([])
-  })
-})
-
-describe('maskStepPoints', () => {
-  it('centres each limit on its offset (log midpoints) and stretches the outer ones to the plot edges', () => {
-    const mask = [{ offsetHz: 100, usl: -114 }, { offsetHz: 10_000, usl: -144 }, { offsetHz: 1e6, usl: -151 }]
-    expect(maskStepPoints(mask, 10, 1e7)).toEqual([[10, -114], [1000, -114], [1000, -144], [1e5, -144], [1e5, -151], [1e7, -151]])
-    expect(maskStepPoints(mask)).toEqual([[100, -114], [1000, -114], [1000, -144], [1e5, -144], [1e5, -151], [1e6, -151]])
-    expect(maskStepPoints([{ offsetHz: 1000, usl: -134 }], 1000, 1000)).toEqual([[1000, -134], [1000, -134]])
-    expect(maskStepPoints([])).toEqual([])
   })
 })
 
@@ -58,6 +48,8 @@ describe('measurement display', () => {
     expect(formatInUnit(0.1 + 0.2, 'ppm')).toBe('0.3')
     expect(formatInUnit(375_000_150.5, 'Hz')).toBe('375000150.5')
     expect(formatInUnit(null, 'dBm')).toBe('—')
+    expect(formatInUnit(-2.500030681, 'dB', 5)).toBe('-2.5')
+    expect(formatInUnit(0.123456789, 'ppm', 5)).toBe('0.12346')
   })
 
   it('marks a pass inside the guard band as marginal, nothing else', () => {

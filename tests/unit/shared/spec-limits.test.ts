@@ -125,12 +125,14 @@ describe('limit CSV', () => {
     expect(parsed.rows.map((r) => r.row)).toEqual([2, 3, 4, 5])
   })
 
-  it('escapes cells a spreadsheet would run as formulas, and the import undoes it', () => {
+  it('writes negative limits as plain numbers a spreadsheet can chart, and only text cells could start a formula', () => {
     const csv = specLimitsToCsv(table)
-    expect(csv).toContain(",'-149.5,")
-    expect(csv).toContain("'-2,2,0")
+    expect(csv).toContain(',-149.5,')
+    expect(csv).toContain(',-2,2,0,')
+    expect(csv).not.toContain("'-")
     expect(csv.split('\r\n')[0]).toBe('step,name,qualifier,lsl,usl,target,unit,required,rule,default_uncertainty,key_characteristic')
-    for (const line of csv.split('\r\n').slice(1)) for (const cell of line.split(',')) expect(cell).not.toMatch(/^[=+\-@]/)
+    // a cell starting with a formula character is a number: a spreadsheet reads it as a value, never a formula
+    for (const line of csv.split('\r\n').slice(1)) for (const cell of line.split(',')) if (/^[=+\-@]/.test(cell)) expect(Number.isFinite(Number(cell))).toBe(true)
   })
 
   it('numbers the rows of every error and reports them all', () => {
