@@ -1,4 +1,6 @@
 // The shape GET /api/units/:serial answers with, as the unit pages read it.
+import type { RunInstrumentView } from '#shared/types/calibration'
+
 export type UnitMeasurement = {
   name: string; offsetHz?: number; harmonic?: number; value: number; unit: string; uncertainty: number | null
   limit: { lsl: number | null; usl: number | null; target: number | null; rule: 'simple' | 'guarded'; guardBand: number } | null
@@ -13,6 +15,7 @@ export type UnitRun = {
   measurements: UnitMeasurement[]
   traces: { name: string; points: [number, number][] }[]
   phaseNoiseMask: { offsetHz: number; usl: number }[]
+  instruments: RunInstrumentView[]
 }
 
 export type UnitInfo = { serial: string; partNumber: string; productName: string; lot: string; createdAt: string }

@@ -10,6 +10,7 @@ import * as m008 from './migrations/20261201_008_imports'
 import * as m009 from './migrations/20261201_009_control_baselines'
 import * as m010 from './migrations/20261201_010_stats_pending'
 import * as m011 from './migrations/20261202_011_import_cancel'
+import * as m014 from './migrations/20261202_014_calibration_history'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -26,6 +27,7 @@ const migrations: Record<string, Migration> = {
   '20261201_009_control_baselines': m009,
   '20261201_010_stats_pending': m010,
   '20261202_011_import_cancel': m011,
+  '20261202_014_calibration_history': m014,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -1,12 +1,16 @@
 import type { Knex } from 'knex'
 import { findUnitsBySerial, loadUnitRuns, type UnitRecord } from '../database/repositories/units'
 import { limitMaskFromMeasurements, type MaskPoint } from '../../shared/utils/phase-noise-plot'
+import type { RunInstrumentView } from '../../shared/types/calibration'
 import { runViewFromRows, type RunView } from './ingest/run-view'
+import { runInstrumentViews } from './calibration/views'
 
 export type UnitRunView = RunView & {
   receivedAt: string
   traces: { name: string; points: [number, number][] }[]
   phaseNoiseMask: MaskPoint[]
+  /** the instruments the run recorded and the calibration record in force for each at its test time */
+  instruments: RunInstrumentView[]
 }
 
 export type UnitHistory =
@@ -27,6 +31,7 @@ export async function unitHistory(db: Knex, serial: string, part?: string): Prom
   if (!unit) return units.length > 1 && part === undefined ? { kind: 'ambiguous', parts } : { kind: 'missing', parts }
 
   const rows = await loadUnitRuns(db, unit.id)
+  const instruments = await runInstrumentViews(db, rows.map(({ run }) => Number(run.id)))
   const runs = rows.map(({ run, measurements, traces }) => {
     const view = runViewFromRows(run, measurements)
     return {
@@ -34,6 +39,7 @@ export async function unitHistory(db: Knex, serial: string, part?: string): Prom
       receivedAt: new Date(run.received_at).toISOString(),
       traces: traces.map((t: any) => ({ name: t.name, points: points(t.points) })),
       phaseNoiseMask: limitMaskFromMeasurements(view.measurements),
+      instruments: instruments.get(Number(run.id)) ?? [],
     }
   })
   const { id: _id, createdAt, ...rest } = unit

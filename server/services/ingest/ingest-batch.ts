@@ -5,6 +5,7 @@ import { bodyHash } from './canonical'
 import { freshRunView, loadRunView, prepare, RunRejected, runRowFor, touchStation, type Prepared, type StationRef } from './ingest-run'
 import { isStored, postRun, type PostResult } from './post-run'
 import { stepStatsStatementMany, stepStatsValues } from './aggregates'
+import { batchCalibrationStatements } from '../calibration/run-links'
 import type { RunView } from './run-view'
 
 export type BatchItemResult =
@@ -255,6 +256,9 @@ async function writeBatch(db: Knex, station: StationRef, accepted: Accepted[]): 
 
     const pending = pendingStatsInsert(accepted.map((a) => ({ runId: a.runId!, lotId: a.ctx.lotId })))
     await trx.raw(pending.sql, pending.values)
+
+    // calibration hook: instrument links and the history-version guard (services/calibration/run-links)
+    for (const c of batchCalibrationStatements(accepted.map((a) => ({ runId: a.runId!, calibration: a.ctx.calibration })))) await trx.raw(c.sql, c.values as any[])
   })
   for (const a of accepted) a.view = freshRunView(station, a.run, a.ctx, a.attempt!)
 }

@@ -4,6 +4,8 @@
 import { INSERTED_RUN_ID, measurementsInsert, pendingStatsInsert, REMEMBER_RUN_ID, RUN_INSERT_SQL, runInsertValues, tracesInsert, unitStepUpsert, type RunRow } from '../../database/repositories/runs'
 import { joinStatements, type Statement } from '../../database/raw-connection'
 import { stepStatsStatement, type AggregateContext } from './aggregates'
+import { runCalibrationStatements } from '../calibration/run-links'
+import type { RunCalibration } from '../calibration/in-force'
 import type { JudgedMeasurement } from './judge-run'
 
 export { unitLockStatements } from '../../database/repositories/runs'
@@ -23,18 +25,22 @@ export type RunWrite = {
   measurements: JudgedMeasurement[]
   traces: { name: string; points: [number, number][] }[]
   previousLatest: 'pass' | 'fail' | null
+  /** the instruments in force and their records (calibrationAt); the bench's writer leaves it out */
+  calibration?: RunCalibration
 }
 
 /**
  * The run, its measurements and traces, the unit's step row, the lot's yield counters, and the run's place in the
  * queue of runs whose measurements the parameter statistics have yet to take in (see fold-param-stats).
  */
-export function runWriteStatements({ row, measurements, traces, previousLatest }: RunWrite): Statement {
+export function runWriteStatements({ row, measurements, traces, previousLatest, calibration }: RunWrite): Statement {
   const agg: AggregateContext = { lotId: row.lotId, stationId: row.stationId, step: row.step, attempt: row.attempt, startedAt: row.startedAt }
   const list: (Statement | string)[] = [{ sql: RUN_INSERT_SQL, values: runInsertValues(row) }, REMEMBER_RUN_ID]
   if (measurements.length) list.push(measurementsInsert(INSERTED_RUN_ID, { ...agg, firstAttempt: row.attempt === 1 }, measurements))
   if (traces.length) list.push(tracesInsert(INSERTED_RUN_ID, traces))
   list.push(unitStepUpsert(row.unitId, row.step, row.attempt, row.serverVerdict, INSERTED_RUN_ID), stepStatsStatement(agg, row.serverVerdict, previousLatest))
   list.push(pendingStatsInsert([{ runId: INSERTED_RUN_ID, lotId: row.lotId }]))
+  // calibration hook: the run's instrument links and the history-version guard (services/calibration/run-links)
+  if (calibration) list.push(runCalibrationStatements(INSERTED_RUN_ID, calibration))
   return joinStatements(list)
 }

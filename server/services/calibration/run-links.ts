@@ -1,0 +1,29 @@
+// What a run's own transaction adds for calibration: the instruments it was taken with, the record in force for
+// each, and the guard that sends it back for judging when the history changed after it was judged.
+import { joinStatements, type Statement } from '../../database/raw-connection'
+import { calibrationGuard, runInstrumentsInsert } from '../../database/repositories/calibration-runs'
+import type { RunIdRef } from '../../database/repositories/runs'
+import type { RunCalibration } from './in-force'
+
+export { runInstrumentsInsert } from '../../database/repositories/calibration-runs'
+
+const LINKS_PER_STATEMENT = 1000
+
+/** For one run, in the same round trip as its insert (`runId` may be the id remembered there). */
+export function runCalibrationStatements(runId: RunIdRef, c: RunCalibration): Statement {
+  const links = c.instruments.map((i) => ({ runId, instrumentId: i.instrumentId, calibrationId: i.calibrationId, named: c.named }))
+  return joinStatements(links.length ? [runInstrumentsInsert(links), calibrationGuard([runId], c.version)] : [calibrationGuard([runId], c.version)])
+}
+
+/** For runs already inserted in the current transaction: link inserts in chunks, one guard per history version. */
+export function batchCalibrationStatements(items: readonly { runId: number; calibration: RunCalibration }[]): Statement[] {
+  const out: Statement[] = []
+  const links = items.flatMap(({ runId, calibration: c }) => c.instruments.map((i) => ({ runId, instrumentId: i.instrumentId, calibrationId: i.calibrationId, named: c.named })))
+  for (let i = 0; i < links.length; i += LINKS_PER_STATEMENT) out.push(runInstrumentsInsert(links.slice(i, i + LINKS_PER_STATEMENT)))
+  const byVersion = new Map<number, number[]>()
+  for (const { runId, calibration } of items) byVersion.set(calibration.version, [...(byVersion.get(calibration.version) ?? []), runId])
+  for (const [version, ids] of byVersion) {
+    for (let i = 0; i < ids.length; i += LINKS_PER_STATEMENT) out.push(calibrationGuard(ids.slice(i, i + LINKS_PER_STATEMENT), version))
+  }
+  return out
+}
