@@ -3,8 +3,8 @@ import type { CalibrationState } from '../utils/calibration'
 
 export type AsFoundResult = 'in_tolerance' | 'out_of_tolerance'
 
-/** A run taken under a calibration record, as listed beside it. */
-export type RecordRunView = { id: string; serial: string; lot: string; station: string; startedAt: string; lapsed: boolean }
+/** A run taken under a calibration record, as listed beside it; pastDue: at or after that record's due date (or with none in force). */
+export type RecordRunView = { id: string; serial: string; lot: string; station: string; startedAt: string; pastDue: boolean }
 
 /** Runs taken under one record (or under none, for an instrument with no record in force). */
 export type RecordRunsView = { count: number; pastDue: number; lastStartedAt: string | null; latest: RecordRunView[] }

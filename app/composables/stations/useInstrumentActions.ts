@@ -22,7 +22,7 @@ export function useInstrumentActions(onDone: () => unknown) {
     errors.value = {}
     message.value = null
     try {
-      const r = await $fetch<R>(url, { method, body })
+      const r = (await $fetch(url, { method, body })) as R
       message.value = { ok: true, text: describe(pick(r)) }
       await onDone()
       return true

@@ -135,20 +135,21 @@ export async function runCountsByRecord(db: Knex, instrumentIds: readonly number
   }))
 }
 
-export type RecentRun = { instrumentId: number; calibrationId: number | null; runUuid: string; serial: string; lot: string; station: string; startedAt: Date; lapsed: boolean }
+export type RecentRun = { instrumentId: number; calibrationId: number | null; runUuid: string; serial: string; lot: string; station: string; startedAt: Date; pastDue: boolean }
 
-/** The latest few runs under each instrument and calibration record. */
+/** The latest few runs under each instrument and calibration record, each with whether it was taken at or past that record's due date. */
 export async function latestRunsByRecord(db: Knex, instrumentIds: readonly number[], perRecord: number): Promise<RecentRun[]> {
   if (!instrumentIds.length) return []
   const [rows] = await db.raw(`SELECT x.* FROM (
-      SELECT ri.instrument_id, ri.calibration_id, r.uuid, u.serial, l.code AS lot, s.name AS station, r.started_at, r.calibration_lapsed,
+      SELECT ri.instrument_id, ri.calibration_id, r.uuid, u.serial, l.code AS lot, s.name AS station, r.started_at,
+        (c.id IS NULL OR r.started_at >= c.due_at) AS past_due,
         ROW_NUMBER() OVER (PARTITION BY ri.instrument_id, ri.calibration_id ORDER BY r.started_at DESC, r.id DESC) AS n
-      FROM run_instruments ri JOIN test_runs r ON r.id = ri.run_id JOIN units u ON u.id = r.unit_id
+      FROM run_instruments ri JOIN test_runs r ON r.id = ri.run_id LEFT JOIN calibration_records c ON c.id = ri.calibration_id JOIN units u ON u.id = r.unit_id
         JOIN lots l ON l.id = r.lot_id JOIN stations s ON s.id = r.station_id
       WHERE ri.instrument_id IN (${instrumentIds.map(() => '?').join(', ')})
     ) x WHERE x.n <= ? ORDER BY x.instrument_id, x.calibration_id, x.n`, [...instrumentIds, perRecord])
   return (rows as any[]).map((r) => ({
     instrumentId: r.instrument_id, calibrationId: r.calibration_id ?? null, runUuid: r.uuid, serial: r.serial, lot: r.lot, station: r.station,
-    startedAt: r.started_at, lapsed: !!r.calibration_lapsed,
+    startedAt: r.started_at, pastDue: !!r.past_due,
   }))
 }

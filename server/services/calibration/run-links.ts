@@ -9,21 +9,24 @@ export { runInstrumentsInsert } from '../../database/repositories/calibration-ru
 
 const LINKS_PER_STATEMENT = 1000
 
+// The guard comes first: it takes the version row before the links' foreign keys touch instrument and record rows,
+// the same order a history change takes them in, so the two never wait on each other crosswise.
+
 /** For one run, in the same round trip as its insert (`runId` may be the id remembered there). */
 export function runCalibrationStatements(runId: RunIdRef, c: RunCalibration): Statement {
   const links = c.instruments.map((i) => ({ runId, instrumentId: i.instrumentId, calibrationId: i.calibrationId, named: c.named }))
-  return joinStatements(links.length ? [runInstrumentsInsert(links), calibrationGuard([runId], c.version)] : [calibrationGuard([runId], c.version)])
+  return joinStatements(links.length ? [calibrationGuard([runId], c.version), runInstrumentsInsert(links)] : [calibrationGuard([runId], c.version)])
 }
 
-/** For runs already inserted in the current transaction: link inserts in chunks, one guard per history version. */
+/** For runs already inserted in the current transaction: one guard per history version, then link inserts in chunks. */
 export function batchCalibrationStatements(items: readonly { runId: number; calibration: RunCalibration }[]): Statement[] {
   const out: Statement[] = []
-  const links = items.flatMap(({ runId, calibration: c }) => c.instruments.map((i) => ({ runId, instrumentId: i.instrumentId, calibrationId: i.calibrationId, named: c.named })))
-  for (let i = 0; i < links.length; i += LINKS_PER_STATEMENT) out.push(runInstrumentsInsert(links.slice(i, i + LINKS_PER_STATEMENT)))
   const byVersion = new Map<number, number[]>()
   for (const { runId, calibration } of items) byVersion.set(calibration.version, [...(byVersion.get(calibration.version) ?? []), runId])
   for (const [version, ids] of byVersion) {
     for (let i = 0; i < ids.length; i += LINKS_PER_STATEMENT) out.push(calibrationGuard(ids.slice(i, i + LINKS_PER_STATEMENT), version))
   }
+  const links = items.flatMap(({ runId, calibration: c }) => c.instruments.map((i) => ({ runId, instrumentId: i.instrumentId, calibrationId: i.calibrationId, named: c.named })))
+  for (let i = 0; i < links.length; i += LINKS_PER_STATEMENT) out.push(runInstrumentsInsert(links.slice(i, i + LINKS_PER_STATEMENT)))
   return out
 }

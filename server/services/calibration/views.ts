@@ -42,7 +42,7 @@ export async function currentInstrumentsOfStations(db: Knex, stationIds: readonl
 function runsView(count: RecordRunCount | undefined, latest: RecentRun[]): RecordRunsView {
   return {
     count: count?.runs ?? 0, pastDue: count?.pastDue ?? 0, lastStartedAt: count?.lastStartedAt ? iso(count.lastStartedAt) : null,
-    latest: latest.map((r) => ({ id: r.runUuid, serial: r.serial, lot: r.lot, station: r.station, startedAt: iso(r.startedAt), lapsed: r.lapsed })),
+    latest: latest.map((r) => ({ id: r.runUuid, serial: r.serial, lot: r.lot, station: r.station, startedAt: iso(r.startedAt), pastDue: r.pastDue })),
   }
 }
 
