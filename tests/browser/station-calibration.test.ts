@@ -38,6 +38,17 @@ describe('station calibration history in the browser', () => {
     await page.getByRole('button', { name: /this station held before/ }).click()
     await expect.poll(() => page.locator('[data-asset="VFW-PS-2207"]').textContent(), { timeout: 10_000 }).toContain('on no station now')
     await shot(page, 'station-calibration-ATE-X8-01')
+
+    // the latest ×8-lot run under the lapsed record opens on the unit page, which names the certificate and its due date
+    const latest = sensor.locator('[data-test="record-runs"] li', { hasText: 'X8-2611-A' }).first()
+    const serial = ((await latest.locator('a').textContent()) ?? '').trim()
+    await latest.locator('a').click()
+    await page.waitForURL(new RegExp(`/units/${serial}`))
+    const panel = page.locator('article[data-run]').last().locator('[data-test="run-instruments"]')
+    await expect.poll(() => panel.locator('[data-asset="VFW-PS-2262"]').textContent(), { timeout: 20_000 }).toContain('CCS-2025-1044')
+    expect(await panel.locator('[data-asset="VFW-PS-2262"]').textContent()).toContain('past due at this run')
+    expect(await panel.locator('[data-asset="VFW-SA-0440"]').textContent()).toContain('BML-25-1302')
+    await shot(page, 'unit-run-instruments')
     expect(errors).toEqual([])
     await page.context().close()
   })

@@ -21,9 +21,10 @@ type StationHistory = { holdings: HoldingSpan[]; spans: CalibrationSpan[] }
  */
 let cached: { version: number; stations: Map<number, StationHistory>; assets: Map<string, number>; spans: Map<number, CalibrationSpan[]> } | undefined
 
+/** The cache for this version; a newer one replaces it, an older reader gets a throw-away one and leaves it be. */
 function cacheAt(version: number) {
-  if (!cached || cached.version !== version) cached = { version, stations: new Map(), assets: new Map(), spans: new Map() }
-  return cached
+  if (!cached || cached.version < version) cached = { version, stations: new Map(), assets: new Map(), spans: new Map() }
+  return cached.version === version ? cached : { version, stations: new Map(), assets: new Map(), spans: new Map() }
 }
 
 async function stationHistory(db: Knex, stationId: number, version: number): Promise<StationHistory> {
@@ -33,7 +34,7 @@ async function stationHistory(db: Knex, stationId: number, version: number): Pro
   const holdings = await holdingsOfStations(db, [stationId])
   const spans = await spansOfInstruments(db, [...new Set(holdings.map((h) => h.instrumentId))])
   const history = { holdings, spans }
-  cacheAt(version).stations.set(stationId, history)
+  c.stations.set(stationId, history)
   return history
 }
 
