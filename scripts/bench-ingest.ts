@@ -24,6 +24,7 @@ import { generateStationToken } from '../server/utils/station-token'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../server/database/repositories/spec-lookup'
 import { judgeRun, type JudgedMeasurement } from '../server/services/ingest/judge-run'
 import { writeRuns, type RunToWrite } from '../server/services/ingest/write-runs'
+import { calibrationAt, type RunCalibration } from '../server/services/calibration/in-force'
 import { foldPendingStats } from '../server/services/ingest/fold-param-stats'
 import type { Knex } from 'knex'
 import { validateRun, type StationRun } from '../server/utils/run-validator'
@@ -155,7 +156,7 @@ async function waitHealthy(base: string): Promise<void> {
 
 // ---- yardsticks ----------------------------------------------------------------------------------
 
-type RawCtx = { pool: mysql.Pool; knex: Knex; lotId: number; productId: number; stationIds: number[]; revision: RevisionInForce; product: ProductInfo }
+type RawCtx = { pool: mysql.Pool; knex: Knex; lotId: number; productId: number; stationIds: number[]; revision: RevisionInForce; product: ProductInfo; calibration: RunCalibration }
 
 let rawSerial = 0
 
@@ -167,6 +168,7 @@ function toWrite(p: Prepared, ctx: RawCtx, stationId: number): RunToWrite {
     ctx: {
       startedAt: new Date(run.startedAt), finishedAt: new Date(run.finishedAt), product: ctx.product, revision: ctx.revision,
       judged: { measurements: p.judged, verdict: p.verdict, missingRequired: [], measurementIssue: false }, lotId: ctx.lotId, calibrationLapsed: false,
+      calibration: ctx.calibration,
     },
   }
 }
@@ -326,7 +328,8 @@ async function main() {
       tokens.push(t.token)
       stationIds.push(id!)
     }
-    const ctx: RawCtx = { pool, knex, lotId: lotId!, productId: product.id, stationIds, revision, product }
+    // the bench stations hold no instruments: every run is judged at the current history version with no links
+    const ctx: RawCtx = { pool, knex, lotId: lotId!, productId: product.id, stationIds, revision, product, calibration: await calibrationAt(knex, stationIds[0]!, new Date()) }
     const [[durability]] = await pool.query<any[]>('SELECT @@innodb_flush_log_at_trx_commit AS flush, @@sync_binlog AS sync, @@log_bin AS bin')
     const flushLogAtTrxCommit = Number(durability.flush)
     say(`database commits with innodb_flush_log_at_trx_commit=${flushLogAtTrxCommit}, sync_binlog=${durability.sync}, binary log ${Number(durability.bin) ? 'on' : 'off'}`)

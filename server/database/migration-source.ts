@@ -12,6 +12,7 @@ import * as m010 from './migrations/20261201_010_stats_pending'
 import * as m011 from './migrations/20261202_011_import_cancel'
 import * as m012 from './migrations/20261202_012_test_order'
 import * as m013 from './migrations/20261202_013_attempts_by_test_time'
+import * as m014 from './migrations/20261202_014_calibration_history'
 import * as m015 from './migrations/20261202_015_measurement_offset'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
@@ -31,6 +32,7 @@ const migrations: Record<string, Migration> = {
   '20261202_011_import_cancel': m011,
   '20261202_012_test_order': m012,
   '20261202_013_attempts_by_test_time': m013,
+  '20261202_014_calibration_history': m014,
   '20261202_015_measurement_offset': m015,
 }
 

@@ -1,5 +1,5 @@
 // Whether every unit of a lot is ready to release: a result at every step of the product, the latest one a pass,
-// and that latest result taken on a station whose instruments were in calibration.
+// and that latest result taken with instruments in calibration at its start (the run's calibration flag).
 
 export type UnitStepRow = { serial: string; step: string | null; latestVerdict: 'pass' | 'fail' | null; calibrationLapsed: boolean }
 

@@ -3,7 +3,7 @@ import { problem } from '../utils/problem'
 
 /** A domain rule refused the request; handlers turn it into problem+json with the given status. */
 export class RuleError extends Error {
-  constructor(public status: 400 | 403 | 404 | 409 | 422, message: string, public errors: FieldError[] = [], public extra: Record<string, unknown> = {}) {
+  constructor(public status: 400 | 403 | 404 | 409 | 413 | 422, message: string, public errors: FieldError[] = [], public extra: Record<string, unknown> = {}) {
     super(message)
   }
 }

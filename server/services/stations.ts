@@ -1,18 +1,17 @@
 import type { Knex } from 'knex'
-import { calibrationState, dueInstant, worstCalibration, type CalibrationState } from '../../shared/utils/calibration'
+import { worstCalibration, type CalibrationState } from '../../shared/utils/calibration'
 import { writeAudit } from '../database/repositories/audit'
 import { insertToken, revokeTokens } from '../database/repositories/station-tokens'
 import {
-  activeTokenHints, findStation, insertStation, listInstruments, listStations, listTokens, lockStation, replaceInstruments,
-  type InstrumentRow, type StationRow, type TokenRow,
+  activeTokenHints, findStation, insertStation, listStations, listTokens, lockStation, type StationRow, type TokenRow,
 } from '../database/repositories/stations'
 import { generateStationToken } from '../utils/station-token'
+import { currentInstrumentsOfStations, type CurrentInstrument } from './calibration/views'
 
 export type NewStation = { name: string; location?: string | null; description?: string | null }
-export type InstrumentListInput = { instruments: { kind: string; model: string; serial: string; calibrationDue: string }[] }
 
-export type InstrumentView = { id: number; kind: string; model: string; serial: string; calibrationDue: Date; state: CalibrationState }
-export type StationView = StationRow & { instruments: InstrumentView[]; calibrationState: CalibrationState | null }
+/** The instruments a station holds now, each with the state of its record in force now (history: calibration/). */
+export type StationView = StationRow & { instruments: CurrentInstrument[]; calibrationState: CalibrationState | null }
 export type StationDetail = StationView & { tokens: TokenRow[] }
 
 /** A station write refused for a reason the schema cannot express; `pointer` names the field. */
@@ -20,15 +19,9 @@ export class StationRuleError extends Error {
   constructor(public status: 400 | 409, message: string, public pointer: string) { super(message) }
 }
 
-function view(s: StationRow, instruments: InstrumentRow[], now: Date): StationView {
-  const list = instruments.filter((i) => i.stationId === s.id).map((i) => ({
-    id: i.id, kind: i.kind, model: i.model, serial: i.serial, calibrationDue: i.calibrationDue, state: calibrationState(i.calibrationDue, now),
-  }))
+function view(s: StationRow, instruments: Map<number, CurrentInstrument[]>): StationView {
+  const list = instruments.get(s.id) ?? []
   return { ...s, instruments: list, calibrationState: worstCalibration(list.map((i) => i.state)) }
-}
-
-function instrumentAudit(list: { kind: string; model: string; serial: string; calibrationDue: Date }[]) {
-  return list.map((i) => ({ kind: i.kind, model: i.model, serial: i.serial, calibrationDue: i.calibrationDue.toISOString() }))
 }
 
 function blankToNull(v: string | null | undefined): string | null {
@@ -38,13 +31,13 @@ function blankToNull(v: string | null | undefined): string | null {
 
 export async function stationList(db: Knex, now = new Date()): Promise<StationView[]> {
   const stations = await listStations(db, now)
-  const instruments = await listInstruments(db, stations.map((s) => s.id))
-  return stations.map((s) => view(s, instruments, now))
+  const instruments = await currentInstrumentsOfStations(db, stations.map((s) => s.id), now)
+  return stations.map((s) => view(s, instruments))
 }
 
 async function stationView(db: Knex, id: number, now = new Date()): Promise<StationView | undefined> {
   const s = await findStation(db, id, now)
-  return s && view(s, await listInstruments(db, [id]), now)
+  return s && view(s, await currentInstrumentsOfStations(db, [id], now))
 }
 
 export async function stationDetail(db: Knex, id: number, now = new Date()): Promise<StationDetail | undefined> {
@@ -95,30 +88,5 @@ export async function revokeStationTokens(db: Knex, actorId: number | null, stat
     const revoked = await revokeTokens(trx, stationId)
     await writeAudit(trx, { userId: actorId, action: 'token_revoke', entity: 'station', entityId: stationId, before: { activeTokenHints: hints }, after: { activeTokenHints: [] } })
     return { revoked }
-  })
-}
-
-/** Replaces the station's instrument list; undefined for an unknown station. */
-export async function replaceStationInstruments(db: Knex, actorId: number | null, stationId: number, input: InstrumentListInput): Promise<StationView | undefined> {
-  const seen = new Map<string, number>()
-  const list = input.instruments.map((i, n) => {
-    const row = { kind: i.kind.trim(), model: i.model.trim(), serial: i.serial.trim(), calibrationDue: dueInstant(i.calibrationDue) }
-    for (const f of ['kind', 'model', 'serial'] as const) {
-      if (!row[f]) throw new StationRuleError(400, `Instrument ${n + 1} has a blank ${f}.`, `/instruments/${n}/${f}`)
-    }
-    const key = `${row.model.toLowerCase()}\u0000${row.serial.toLowerCase()}`
-    if (seen.has(key)) throw new StationRuleError(400, `Instrument ${n + 1} repeats model and serial of instrument ${seen.get(key)! + 1}.`, `/instruments/${n}/serial`)
-    seen.set(key, n)
-    return row
-  })
-  return db.transaction(async (trx) => {
-    if (!(await lockStation(trx, stationId))) return undefined
-    const before = await listInstruments(trx, [stationId])
-    await replaceInstruments(trx, stationId, list)
-    await writeAudit(trx, {
-      userId: actorId, action: 'instruments_update', entity: 'station', entityId: stationId,
-      before: instrumentAudit(before), after: instrumentAudit(list),
-    })
-    return stationView(trx, stationId)
   })
 }

@@ -3,6 +3,7 @@ import { findUnitsBySerial, loadUnitRuns, phaseNoiseMasksOf } from '../database/
 import { limitMaskFromMeasurements } from '../../shared/utils/phase-noise-plot'
 import type { UnitInfo, UnitRun } from '../../shared/types/unit-history'
 import { runViewFromRows } from './ingest/run-view'
+import { runInstrumentViews } from './calibration/views'
 import { unitRfChecks } from './unit-rf-checks'
 
 export type UnitHistory =
@@ -23,7 +24,10 @@ export async function unitHistory(db: Knex, serial: string, part?: string): Prom
   if (!unit) return units.length > 1 && part === undefined ? { kind: 'ambiguous', parts } : { kind: 'missing', parts }
 
   const rows = await loadUnitRuns(db, unit.id)
-  const masks = await phaseNoiseMasksOf(db, [...new Set(rows.map(({ run }) => Number(run.revision_id)).filter((id) => id > 0))])
+  const [masks, instruments] = await Promise.all([
+    phaseNoiseMasksOf(db, [...new Set(rows.map(({ run }) => Number(run.revision_id)).filter((id) => id > 0))]),
+    runInstrumentViews(db, rows.map(({ run }) => Number(run.id))),
+  ])
   const runs: UnitRun[] = rows.map(({ run, measurements, traces }) => {
     const view = runViewFromRows(run, measurements)
     // the mask of the revision the run was judged by (the sweep is judged against all of it), else the spot snapshots
@@ -34,6 +38,7 @@ export async function unitHistory(db: Knex, serial: string, part?: string): Prom
       traces: traces.map((t: any) => ({ name: t.name, points: points(t.points) })),
       phaseNoiseMask: mask,
       rf: unitRfChecks(unit, run.reference, view.measurements),
+      instruments: instruments.get(Number(run.id)) ?? [],
     }
   })
   const { id: _id, createdAt, ...rest } = unit

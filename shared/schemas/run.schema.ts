@@ -106,6 +106,16 @@ export const runSchema = {
         '$ref': '#/$defs/measurement',
       },
     },
+    instrumentAssets: {
+      type: 'array',
+      minItems: 1,
+      maxItems: 50,
+      uniqueItems: true,
+      items: {
+        '$ref': '#/$defs/assetNumber',
+      },
+      description: 'Asset numbers of the instruments this run was measured with, as registered in Tercet. When given, the run is judged against the calibration records of these instruments at startedAt instead of the instruments its station held then; an asset number Tercet does not know is refused (422).',
+    },
     traces: {
       type: 'array',
       maxItems: 8,
@@ -115,6 +125,11 @@ export const runSchema = {
     },
   },
   '$defs': {
+    assetNumber: {
+      type: 'string',
+      pattern: '^[A-Za-z0-9][A-Za-z0-9._/-]{0,31}$',
+      description: 'An instrument\'s asset number: letters, digits and . _ / -, at most 32 characters.',
+    },
     measurementName: {
       type: 'string',
       pattern: '^[a-z][a-z0-9_]{1,47}$',

@@ -1,3 +1,4 @@
+import type { RunInstrumentView } from './calibration'
 // What GET /api/units/:serial answers with: built by server/services/unit-history.ts, read by the unit page.
 import type { ReferenceFrequencyCheck } from '../utils/reference-frequency'
 
@@ -64,6 +65,8 @@ export type UnitRun = {
   /** the phase-noise spot limits the run was held to */
   phaseNoiseMask: { offsetHz: number; usl: number }[]
   rf: UnitRfChecks
+  /** the instruments the run recorded and the calibration record in force for each at its test time */
+  instruments: RunInstrumentView[]
 }
 
 export type UnitInfo = {

@@ -6,7 +6,8 @@ import { stationTokens, tripleRun, uniqueSerial } from '../support/stations'
 
 const tokens = stationTokens()
 const T3 = tokens['ATE-T3-01']!
-const T3_LAPSED = tokens['ATE-T3-02']!
+// the demo's ×8 station holds a power sensor whose calibration lapsed three days ago
+const LAPSED_STATION = tokens['ATE-X8-01']!
 
 const post = (body: unknown, token = T3) => call('POST', '/api/v1/runs', { body, token })
 
@@ -118,7 +119,7 @@ describe('POST /api/v1/runs', () => {
   })
 
   it('flags a run from a station whose instrument calibration had lapsed', async () => {
-    const lapsed = await post(tripleRun(), T3_LAPSED)
+    const lapsed = await post(tripleRun({ lot: 'T3-E2E-LAPSE' }), LAPSED_STATION)
     expect(lapsed.body.calibrationLapsed).toBe(true)
     const fine = await post(tripleRun(), T3)
     expect(fine.body.calibrationLapsed).toBe(false)

@@ -3,7 +3,7 @@ import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import {
-  createStation, replaceStationInstruments, revokeStationTokens, rotateStationToken, stationDetail, stationList, StationRuleError,
+  createStation, revokeStationTokens, rotateStationToken, stationDetail, stationList, StationRuleError,
 } from '../../server/services/stations'
 
 let db: Knex
@@ -20,7 +20,6 @@ beforeAll(async () => {
 afterAll(async () => {
   if (created.length) {
     await db('audit_log').where({ entity: 'station' }).whereIn('entity_id', created.map(String)).delete()
-    await db('instruments').whereIn('station_id', created).delete()
     await db('station_tokens').whereIn('station_id', created).delete()
     await db('stations').whereIn('id', created).delete()
   }
@@ -73,7 +72,6 @@ describe('station tokens at rest', () => {
   it('unknown stations change nothing', async () => {
     expect(await rotateStationToken(db, actorId, 99_999_999)).toBeUndefined()
     expect(await revokeStationTokens(db, actorId, 99_999_999)).toBeUndefined()
-    expect(await replaceStationInstruments(db, actorId, 99_999_999, { instruments: [] })).toBeUndefined()
     expect(await db('audit_log').where({ entity: 'station', entity_id: '99999999' }).count({ n: '*' })).toEqual([{ n: 0 }])
     expect(await db('station_tokens').where({ station_id: 99_999_999 }).count({ n: '*' })).toEqual([{ n: 0 }])
   })
@@ -87,22 +85,6 @@ describe('station tokens at rest', () => {
     expect(await db('stations').where({ name: station.name }).count({ n: '*' })).toEqual([{ n: 1 }])
     const creates = await db('audit_log').where({ entity: 'station', action: 'create' }).whereRaw("JSON_VALUE(`after`, '$.name') = ?", [station.name])
     expect(creates).toHaveLength(1)
-  })
-})
-
-describe('instrument replacement', () => {
-  it('audits the list before and after', async () => {
-    const { station } = await createStation(db, actorId, { name: name('instr') })
-    created.push(station.id)
-    await replaceStationInstruments(db, actorId, station.id, { instruments: [{ kind: 'Power sensor', model: 'PS-18', serial: 'P1', calibrationDue: '2031-01-10' }] })
-    const after = await replaceStationInstruments(db, actorId, station.id, {
-      instruments: [{ kind: 'Frequency counter', model: 'FC-3', serial: 'F1', calibrationDue: '2031-02-01T12:00:00Z' }],
-    })
-    expect(after!.instruments.map((i) => i.serial)).toEqual(['F1'])
-    const last = await db('audit_log').where({ entity: 'station', entity_id: String(station.id), action: 'instruments_update' }).orderBy('id', 'desc').first()
-    const parse = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : v)
-    expect(parse(last.before)).toEqual([{ kind: 'Power sensor', model: 'PS-18', serial: 'P1', calibrationDue: '2031-01-10T00:00:00.000Z' }])
-    expect(parse(last.after)).toEqual([{ kind: 'Frequency counter', model: 'FC-3', serial: 'F1', calibrationDue: '2031-02-01T12:00:00.000Z' }])
   })
 })
 

@@ -12,9 +12,6 @@ export type StationRow = {
   activeTokenHint: string | null
 }
 
-export type InstrumentRow = { id: number; stationId: number; kind: string; model: string; serial: string; calibrationDue: Date }
-export type InstrumentInput = { kind: string; model: string; serial: string; calibrationDue: Date }
-
 export type TokenRow = { id: number; hint: string; createdAt: Date; createdBy: string | null; revokedAt: Date | null; lastUsedAt: Date | null }
 
 /** UTC midnight of the day `now` falls in: the start of "today" for run counts. */
@@ -50,7 +47,7 @@ export async function findStation(db: Knex, id: number, now: Date): Promise<Stat
   return r ? toStation(r) : undefined
 }
 
-/** Locks the station row for the rest of the transaction, so concurrent token or instrument writes queue up. */
+/** Locks the station row for the rest of the transaction, so concurrent token writes queue up. */
 export async function lockStation(trx: Knex.Transaction, id: number): Promise<boolean> {
   return !!(await trx('stations').where({ id }).forUpdate().first('id'))
 }
@@ -58,22 +55,6 @@ export async function lockStation(trx: Knex.Transaction, id: number): Promise<bo
 export async function insertStation(db: Knex, s: { name: string; location: string | null; description: string | null }): Promise<number> {
   const [id] = await db('stations').insert({ name: s.name, location: s.location, description: s.description })
   return id!
-}
-
-export async function listInstruments(db: Knex, stationIds: number[]): Promise<InstrumentRow[]> {
-  if (!stationIds.length) return []
-  const rows = await db('instruments').whereIn('station_id', stationIds)
-    .orderBy('station_id').orderBy('calibration_due').orderBy('id')
-    .select('id', 'station_id', 'kind', 'model', 'serial', 'calibration_due')
-  return rows.map((r: any) => ({ id: r.id, stationId: r.station_id, kind: r.kind, model: r.model, serial: r.serial, calibrationDue: r.calibration_due }))
-}
-
-export async function replaceInstruments(db: Knex, stationId: number, list: InstrumentInput[]): Promise<void> {
-  await db('instruments').where({ station_id: stationId }).delete()
-  if (!list.length) return
-  await db('instruments').insert(list.map((i) => ({
-    station_id: stationId, kind: i.kind, model: i.model, serial: i.serial, calibration_due: i.calibrationDue,
-  })))
 }
 
 /** Token history without the hashes, newest first. */

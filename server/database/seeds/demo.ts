@@ -1,5 +1,9 @@
 import type { Knex } from 'knex'
-import { DEMO_CUSTOMERS, DEMO_LOTS, DEMO_PASSWORD, DEMO_PRODUCTS, DEMO_STAFF, DEMO_STATIONS } from '../../../fixtures/demo-catalogue'
+import {
+  DEMO_CUSTOMERS, DEMO_INSTRUMENTS, DEMO_LOTS, DEMO_PASSWORD, DEMO_PRODUCTS, DEMO_STAFF, DEMO_STATIONS, DEMO_STATIONS_SINCE_DAYS,
+} from '../../../fixtures/demo-catalogue'
+import { demoCertificatePdf } from '../../../fixtures/demo-certificate'
+import { addCalibration, addInstrument, moveInstrument, supersedeCalibration } from '../../services/calibration/history'
 import { hashPasswordOffline } from '../../utils/password-hash'
 import { generateStationToken } from '../../utils/station-token'
 import { writeAudit } from '../repositories/audit'
@@ -42,23 +46,49 @@ export async function seedDemoCatalogue(db: Knex, now = new Date()): Promise<See
         default_uncertainty: l.defaultUncertainty ?? null, key_characteristic: l.key ?? false,
       })))
     }
+    const stationsSince = new Date(now.getTime() - DEMO_STATIONS_SINCE_DAYS * DAY)
     for (const s of DEMO_STATIONS) {
-      const [stationId] = await trx('stations').insert({ name: s.name, location: s.location, description: `Final test for ${s.partNumber}` })
+      const [stationId] = await trx('stations').insert({ name: s.name, location: s.location, description: `Final test for ${s.partNumber}`, created_at: stationsSince })
       const t = generateStationToken()
       await trx('station_tokens').insert({ station_id: stationId, token_hash: t.hash, hint: t.hint, created_by: userIds.admin })
       stationTokens[s.name] = t.token
       await writeAudit(trx, { userId: userIds.admin, action: 'create', entity: 'station', entityId: stationId!, after: { name: s.name, activeTokenHints: [t.hint] } })
-      const lapsing = s.name === 'ATE-T3-02'
-      await trx('instruments').insert([
-        { station_id: stationId, kind: 'Signal source analyser', model: 'PNA-40 bench analyser', serial: `SA-${stationId}0417`, calibration_due: new Date(now.getTime() + 140 * DAY) },
-        { station_id: stationId, kind: 'Power sensor', model: 'PS-18 thermal sensor', serial: `PS-${stationId}2231`, calibration_due: new Date(now.getTime() + (lapsing ? -3 : 90) * DAY) },
-        { station_id: stationId, kind: 'Frequency counter', model: 'FC-3 counter', serial: `FC-${stationId}0090`, calibration_due: new Date(now.getTime() + 200 * DAY) },
-      ])
     }
+    await seedDemoInstruments(trx, userIds.engineer!, now)
     for (const l of DEMO_LOTS) {
       const product = await trx('products').where({ part_number: l.partNumber }).first('id')
       await trx('lots').insert({ product_id: product.id, code: l.code, planned_qty: l.planned, created_at: new Date(now.getTime() - 20 * DAY) })
     }
   })
   return { stationTokens }
+}
+
+/** The demo instruments with their holdings and calibration records, entered as an engineer would enter them. */
+async function seedDemoInstruments(trx: Knex.Transaction, engineerId: number, now: Date): Promise<void> {
+  const ago = (days: number) => new Date(now.getTime() - days * DAY)
+  const stationIds = new Map((await trx('stations').select('id', 'name')).map((r: any) => [r.name as string, r.id as number]))
+  for (const i of DEMO_INSTRUMENTS) {
+    const [first, ...later] = i.holdings
+    const { id } = await addInstrument(trx, engineerId, {
+      assetNumber: i.asset, kind: i.kind, model: i.model, serial: i.serial,
+      ...(first ? { stationId: stationIds.get(first.station)!, installedAt: ago(first.fromDaysAgo).toISOString() } : {}),
+    }, now)
+    let previous = first
+    for (const h of later) {
+      if (previous?.untilDaysAgo !== undefined && previous.untilDaysAgo !== h.fromDaysAgo) await moveInstrument(trx, engineerId, id, { stationId: null, at: ago(previous.untilDaysAgo).toISOString() }, now)
+      await moveInstrument(trx, engineerId, id, { stationId: stationIds.get(h.station)!, at: ago(h.fromDaysAgo).toISOString() }, now)
+      previous = h
+    }
+    if (previous?.untilDaysAgo !== undefined) await moveInstrument(trx, engineerId, id, { stationId: null, at: ago(previous.untilDaysAgo).toISOString() }, now)
+    for (const c of i.calibrations) {
+      const calibratedOn = ago(c.calibratedDaysAgo)
+      const dueAt = new Date(now.getTime() + c.dueInDays * DAY)
+      const pdf = c.withPdf ? await demoCertificatePdf({ ...c, ...i, calibratedOn, dueAt }) : null
+      const record = await addCalibration(trx, engineerId, id, {
+        certificateNumber: c.certificate, laboratory: c.laboratory, asFound: c.asFound, calibratedOn: calibratedOn.toISOString(), dueAt: dueAt.toISOString(),
+        ...(pdf ? { certificatePdf: pdf.toString('base64'), certificateFileName: `${c.certificate}.pdf` } : {}),
+      }, now)
+      if (c.superseded) await supersedeCalibration(trx, engineerId, record.id, { reason: c.superseded.reason, effectiveFrom: ago(c.superseded.fromDaysAgo).toISOString() }, now)
+    }
+  }
 }

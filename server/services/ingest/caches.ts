@@ -1,4 +1,5 @@
-// Short-lived in-process caches for what every posted run reads: products, approved limits, calibration dates.
+// Short-lived in-process caches for what every posted run reads: products and approved limits (calibration history
+// has its own cache, invalidated through the database: services/calibration/in-force.ts).
 // Writers in this process invalidate them at once; the TTL bounds staleness from other processes.
 const TTL_MS = 10_000
 
@@ -20,7 +21,6 @@ export class TtlCache<K, V> {
 
 export const productCache = new TtlCache<string, unknown>()
 export const specCache = new TtlCache<number, unknown>()
-export const calibrationCache = new TtlCache<number, unknown>()
 export const lotCache = new TtlCache<string, unknown>(60_000)
 
 /** Call after a spec revision is approved (or limits in force change) for a product. */
@@ -28,12 +28,6 @@ export function invalidateSpecCache(productId?: number): void {
   if (productId === undefined) specCache.clear()
   else specCache.delete(productId)
   productCache.clear()
-}
-
-/** Call after a station's instruments or calibration dates change. */
-export function invalidateStationCache(stationId?: number): void {
-  if (stationId === undefined) calibrationCache.clear()
-  else calibrationCache.delete(stationId)
 }
 
 /** Call after a lot changes product or is removed; lot ids never change otherwise. */

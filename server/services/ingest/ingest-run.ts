@@ -5,7 +5,8 @@ import { findRunHashByUuid, loadRunsWithMeasurements } from '../../database/repo
 import { ensureFoldLease } from '../../database/repositories/fold-leases'
 import { GroupWriter } from '../../utils/group-writer'
 import { writeRuns, type GroupResult, type RunToWrite } from './write-runs'
-import { calibrationCache, lotCache, productCache, specCache } from './caches'
+import { lotCache, productCache, specCache } from './caches'
+import { calibrationAt } from '../calibration/in-force'
 import { bodyHash } from './canonical'
 import { judgeRun, RunRejected } from './judge-run'
 import { measurementView, qualifierFields, runViewFromRows, type RunView } from './run-view'
@@ -26,14 +27,6 @@ function productFor(db: Knex, partNumber: string) {
 
 function revisionsFor(db: Knex, productId: number) {
   return specCache.get(productId, () => listEffectiveRevisions(db, productId)) as Promise<RevisionInForce[]>
-}
-
-/** Earliest calibration due date among the station's instruments (null: none recorded). */
-function earliestCalibration(db: Knex, stationId: number) {
-  return calibrationCache.get(stationId, async () => {
-    const r = await db('instruments').where({ station_id: stationId }).min<{ due: Date | null }[]>({ due: 'calibration_due' })
-    return r[0]?.due ? new Date(r[0].due) : null
-  }) as Promise<Date | null>
 }
 
 async function lotFor(db: Knex, code: string, product: ProductInfo): Promise<number> {
@@ -83,9 +76,10 @@ export async function prepare(db: Knex, station: StationRef, run: StationRun, no
   if (!revision) throw new RunRejected(`No approved specification of ${product.partNumber} was in force at ${startedAt.toISOString()}.`, [{ pointer: '/startedAt', message: 'no approved specification in force' }])
   const judged = judgeRun(run, product, revision)
   const lotId = await lotFor(db, run.lot, product)
-  const due = await earliestCalibration(db, station.id)
-  const calibrationLapsed = due !== null && due.getTime() < finishedAt.getTime()
-  return { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed }
+  // calibration hook: the instruments in force at the test time and their records (services/calibration/in-force)
+  const calibration = await calibrationAt(db, station.id, startedAt, run.instrumentAssets)
+  const calibrationLapsed = calibration.lapsed
+  return { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed, calibration }
 }
 
 /** The answer for a run just stored, built from what was judged rather than read back. */

@@ -8,6 +8,7 @@ import {
   stepCountersAdd, storedAttempts, storedRunsByUuid, tracesInsert, unitStepsUpsert, unitsUpsert,
   type LockedUnitRow, type StoredAttemptRow, type StoredUuidRow,
 } from '../../database/repositories/run-writes'
+import { batchCalibrationStatements } from '../calibration/run-links'
 import { lockedUnits, placeRuns, rowsAfter, runRowFor, screen, unitsToLock, type LockedUnit, type RunToWrite, type WriteOutcome } from './write-plan'
 
 export type { RunToWrite, WriteOutcome }
@@ -92,6 +93,9 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[]): Promise<Wri
       if (after.promoted.length) writes.push(firstAttemptFlags(after.promoted, true))
       writes.push(unitStepsUpsert(after.unitSteps), stepCountersAdd(after.counters))
       writes.push(pendingStatsInsert(accepted.map(({ a, runId }) => ({ runId, lotId: a.item.ctx.lotId }))))
+      // the instruments each run was taken with, and the guard that sends a run back for judging when the calibration
+      // history changed after it was judged (services/calibration/run-links)
+      writes.push(...batchCalibrationStatements(accepted.map(({ a, runId }) => ({ runId, calibration: a.item.ctx.calibration }))))
       if (after.rebuild.length) writes.push(statsRebuildMark(after.rebuild))
       writes.push(...orphans.map(dropUnitWithoutRuns), 'COMMIT')
       await sendStatements(send, writes)

@@ -1,0 +1,13 @@
+import schema from '../../../../shared/schemas/instrument-move.schema.json'
+import { compileSchema } from '../../../utils/run-validator'
+import { moveInstrument, type InstrumentMove } from '../../../services/calibration/history'
+import { underRules } from '../../../services/rule-error'
+
+const validate = compileSchema<InstrumentMove>(schema)
+
+export default defineEventHandler(async (event) => {
+  const actor = requireUser(event)
+  const id = idParam(event, 'id', 'instrument')
+  const body = await readValidBody(event, validate)
+  return { move: await underRules(() => moveInstrument(useDb(), actor.id, id, body)) }
+})
