@@ -103,9 +103,10 @@ function benchRun(i: number, rand: () => number, startedAt: Date, product: Produ
   return { json: Buffer.from(JSON.stringify(body)), run: v.value, judged: j.measurements, verdict: j.verdict }
 }
 
-function makeBodies(count: number, seed: number, product: ProductInfo, revision: RevisionInForce, tag: string): Prepared[] {
+/** `count` bodies tested 20 ms apart from `hoursAgo` on: each stage's come after the stage before's on every station. */
+function makeBodies(count: number, seed: number, product: ProductInfo, revision: RevisionInForce, tag: string, hoursAgo: number): Prepared[] {
   const rand = mulberry32(seed)
-  const start = Date.now() - 6 * 3_600_000
+  const start = Date.now() - hoursAgo * 3_600_000
   const out: Prepared[] = new Array(count)
   for (let i = 0; i < count; i++) out[i] = benchRun(i, rand, new Date(start + i * 20), product, revision, tag)
   return out
@@ -156,17 +157,24 @@ async function waitHealthy(base: string): Promise<void> {
 
 // ---- yardsticks ----------------------------------------------------------------------------------
 
-type RawCtx = { pool: mysql.Pool; knex: Knex; lotId: number; productId: number; stationIds: number[]; revision: RevisionInForce; product: ProductInfo; calibration: RunCalibration }
+// each writer has stations of its own, so that every station's runs come in test order (a run older than its
+// station's latest would make the statistics repair their moving ranges) and the writers never share a row
+type RawCtx = {
+  pool: mysql.Pool; knex: Knex; lotId: number; productId: number; rawStations: number[]; minimalStations: number[]
+  revision: RevisionInForce; product: ProductInfo; calibration: RunCalibration
+}
 
 let rawSerial = 0
 
 /** A bench body as the server's write path takes it, for a unit no other writer touches. */
 function toWrite(p: Prepared, ctx: RawCtx, stationId: number): RunToWrite {
   const run: StationRun = { ...p.run, id: randomUUID(), serial: `RAW-${process.pid}-${++rawSerial}` }
+  // tested now: later than anything this station posted before
+  const startedAt = new Date(Date.now() - 60_000)
   return {
     station: { id: stationId, name: 'bench' }, run, hash: 'f'.repeat(64),
     ctx: {
-      startedAt: new Date(run.startedAt), finishedAt: new Date(run.finishedAt), product: ctx.product, revision: ctx.revision,
+      startedAt, finishedAt: new Date(startedAt.getTime() + 50_000), product: ctx.product, revision: ctx.revision,
       judged: { measurements: p.judged, verdict: p.verdict, missingRequired: [], measurementIssue: false }, lotId: ctx.lotId, calibrationLapsed: false,
       calibration: ctx.calibration,
     },
@@ -219,7 +227,9 @@ async function yardstick(ctx: RawCtx, seconds: number, one: (worker: number) => 
   await Promise.all(Array.from({ length: CONNECTIONS }, async (_, w) => {
     while (Date.now() < until) {
       const t0 = performance.now()
-      runs += await one(w)
+      // awaited first: `runs += await …` would read `runs` before the wait and lose other workers' counts
+      const n = await one(w)
+      runs += n
       took.push(performance.now() - t0)
     }
   }))
@@ -244,7 +254,7 @@ async function minimalStage(ctx: RawCtx, bodies: Prepared[], seconds: number): P
     let next = 0
     return await yardstick(ctx, seconds, async (w) => {
       const u = units[w]!
-      const st = minimalStatements(bodies[next++ % bodies.length]!, ctx, u.id, ++u.attempt, ctx.stationIds[w % ctx.stationIds.length]!)
+      const st = minimalStatements(bodies[next++ % bodies.length]!, ctx, u.id, ++u.attempt, ctx.minimalStations[w % ctx.minimalStations.length]!)
       await conns[w]!.query(st.sql, st.values)
       return 1
     })
@@ -257,7 +267,7 @@ async function minimalStage(ctx: RawCtx, bodies: Prepared[], seconds: number): P
 async function rawStage(ctx: RawCtx, bodies: Prepared[], seconds: number, perCall = 1): Promise<Stage> {
   let next = 0
   return yardstick(ctx, seconds, async (w) => {
-    const items = Array.from({ length: perCall }, () => toWrite(bodies[next++ % bodies.length]!, ctx, ctx.stationIds[w % ctx.stationIds.length]!))
+    const items = Array.from({ length: perCall }, () => toWrite(bodies[next++ % bodies.length]!, ctx, ctx.rawStations[w % ctx.rawStations.length]!))
     const results = await writeRuns(ctx.knex, items)
     for (const r of results) if ('error' in r) throw r.error
     return perCall
@@ -329,14 +339,23 @@ async function main() {
       stationIds.push(id!)
     }
     // the bench stations hold no instruments: every run is judged at the current history version with no links
-    const ctx: RawCtx = { pool, knex, lotId: lotId!, productId: product.id, stationIds, revision, product, calibration: await calibrationAt(knex, stationIds[0]!, new Date()) }
+    const yardstickStations = async (prefix: string) => {
+      const ids: number[] = []
+      for (let s = 1; s <= CONNECTIONS; s++) ids.push((await knex('stations').insert({ name: `${prefix}-${String(s).padStart(2, '0')}`, location: 'bench rack' }))[0]!)
+      return ids
+    }
+    const rawStations = await yardstickStations('BENCH-RAW')
+    const ctx: RawCtx = {
+      pool, knex, lotId: lotId!, productId: product.id, rawStations, minimalStations: await yardstickStations('BENCH-MIN'), revision, product,
+      calibration: await calibrationAt(knex, rawStations[0]!, new Date()),
+    }
     const [[durability]] = await pool.query<any[]>('SELECT @@innodb_flush_log_at_trx_commit AS flush, @@sync_binlog AS sync, @@log_bin AS bin')
     const flushLogAtTrxCommit = Number(durability.flush)
     say(`database commits with innodb_flush_log_at_trx_commit=${flushLogAtTrxCommit}, sync_binlog=${durability.sync}, binary log ${Number(durability.bin) ? 'on' : 'off'}`)
 
     say(`generating ${SINGLE_BODIES} single-run bodies and ${BATCH_RUNS} batch runs (${MEASUREMENTS} measurements each)…`)
-    const single = makeBodies(SINGLE_BODIES, 1, product, revision, 'S')
-    const batchRuns = makeBodies(BATCH_RUNS, 2, product, revision, 'M')
+    const single = makeBodies(SINGLE_BODIES, 1, product, revision, 'S', 6)
+    const batchRuns = makeBodies(BATCH_RUNS, 2, product, revision, 'M', 3)
     const batchBodies: Buffer[] = []
     for (let i = 0; i + BATCH <= batchRuns.length; i += BATCH) {
       batchBodies.push(Buffer.concat([Buffer.from('{"runs":['), ...batchRuns.slice(i, i + BATCH).flatMap((p, k) => (k ? [Buffer.from(','), p.json] : [p.json])), Buffer.from(']}')]))

@@ -1,7 +1,9 @@
 // Whether every unit of a lot is ready to release: a result at every step of the product, the latest one a pass,
 // and that latest result taken with instruments in calibration at its start (the run's calibration flag).
 
-export type UnitStepRow = { serial: string; step: string | null; latestVerdict: 'pass' | 'fail' | null; calibrationLapsed: boolean }
+import type { UnitStepRow } from '../../shared/types/lot-readiness'
+
+export type { UnitStepRow }
 
 export type NotReadyUnit = { serial: string; problems: string[] }
 

@@ -1,6 +1,6 @@
 // Reads of the per-lot × station aggregates for cross-lot and cross-station views.
 import type { Knex } from 'knex'
-import type { StatRow } from '../../services/analytics/station-rows'
+import type { StatRow } from '../../../shared/types/param-stats'
 
 export type LotOfPart = { id: number; code: string; status: string; createdAt: Date; firstRunAt: Date | null; lastRunAt: Date | null }
 

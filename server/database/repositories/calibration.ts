@@ -25,6 +25,11 @@ export async function readHistoryVersion(db: Knex): Promise<number> {
  * Raises the version and keeps its row locked until commit. Run writes take a shared lock on the same row, so a
  * history change waits for runs in flight to commit (and then sees them), and runs wait for the change to commit.
  */
+/** A shared lock on the version row until commit: no history change can commit meanwhile. */
+export async function shareLockHistoryVersion(trx: Knex.Transaction): Promise<void> {
+  await trx.raw('SELECT version FROM calibration_history_version WHERE id = 1 LOCK IN SHARE MODE')
+}
+
 export async function raiseHistoryVersion(trx: Knex.Transaction): Promise<number> {
   await trx.raw('UPDATE calibration_history_version SET version = version + 1 WHERE id = 1')
   return readHistoryVersion(trx)

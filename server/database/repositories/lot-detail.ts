@@ -1,5 +1,5 @@
 import type { Knex } from 'knex'
-import type { UnitStepRow } from '../../services/lot-readiness'
+import type { UnitStepRow } from '../../../shared/types/lot-readiness'
 
 export type LotStatus = 'open' | 'on_hold' | 'released' | 'shipped'
 

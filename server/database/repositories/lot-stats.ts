@@ -1,5 +1,5 @@
 import type { Knex } from 'knex'
-import type { ParamRow } from '../../services/ingest/param-stats-merge'
+import type { ParamRow } from '../../../shared/types/param-stats'
 import { paramRowFromDb } from './param-stats'
 
 export type LotHeader = {

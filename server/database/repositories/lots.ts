@@ -15,3 +15,15 @@ export async function listLots(db: Knex): Promise<LotListItem[]> {
     plannedQty: r.planned_qty, unitsTested: Number(r.units_tested), createdAt: r.created_at,
   }))
 }
+
+/** The lot of the code, created for the part on first sight (a concurrent creator wins, and its row is read). */
+export async function findOrCreateLot(db: Knex, code: string, productId: number): Promise<{ id: number; productId: number; created: boolean }> {
+  let row = await db('lots').where({ code }).first('id', 'product_id')
+  let created = false
+  if (!row) {
+    await db.raw('INSERT IGNORE INTO lots (product_id, code) VALUES (?, ?)', [productId, code])
+    row = await db('lots').where({ code }).first('id', 'product_id')
+    created = true
+  }
+  return { id: Number(row.id), productId: Number(row.product_id), created }
+}

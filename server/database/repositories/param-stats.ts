@@ -1,7 +1,7 @@
 // The lot × revision × station parameter rows, the queue of runs not yet folded into them, and the rows a late run
 // left to be rebuilt.
 import type { Knex } from 'knex'
-import type { ParamRow, ParamRowKey, StoredValue } from '../../services/ingest/param-stats-merge'
+import type { ParamRow, ParamRowKey, StoredValue } from '../../../shared/types/param-stats'
 
 /** Up to `limit` queued runs of one lot, oldest first, none newer than `upTo` when given (the caller holds the lot's lease). */
 export async function queuedRunsOfLot(trx: Knex.Transaction, lotId: number, limit: number, upTo?: number): Promise<number[]> {
@@ -18,6 +18,16 @@ export async function newestQueuedRun(db: Knex, lotId: number): Promise<number |
 
 export async function anyRebuildMarks(db: Knex, lotId: number): Promise<boolean> {
   return (await db('lot_stats_rebuild').where({ lot_id: lotId }).first('lot_id')) !== undefined
+}
+
+/** Rows of the lot whose moving range a late value left stale. */
+export async function staleParamRows(trx: Knex.Transaction, lotId: number): Promise<ParamRowKey[]> {
+  const rows = await trx('lot_param_stats').where({ lot_id: lotId, mr_stale: true }).select('lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id')
+  return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), stationId: Number(r.station_id) }))
+}
+
+export async function anyStaleParamRows(db: Knex, lotId: number): Promise<boolean> {
+  return (await db('lot_param_stats').where({ lot_id: lotId, mr_stale: true }).first('lot_id')) !== undefined
 }
 
 export async function forgetQueuedRuns(trx: Knex.Transaction, runIds: number[]): Promise<void> {

@@ -1,12 +1,10 @@
 // Pooling of lot_param_stats rows (one per lot × station) into one sample, without reading measurements.
+import type { StatRow } from '../../../shared/types/param-stats'
 import { sigmaFromMovingRange } from '../../../shared/utils/capability'
 import { emptyMoments, mergeMoments, momentsFromShiftedSums, stdDev, type Moments } from '../../../shared/utils/moments'
 
 /** The aggregate columns of one lot_param_stats row. */
-export type StatRow = {
-  n: number; shift: number; sumD: number; sumSqD: number; min: number; max: number
-  mrSum: number; mrN: number; outOfSpec: number; failAll: number
-}
+export type { StatRow }
 
 export type PooledStats = { moments: Moments; mrSum: number; mrN: number; outOfSpec: number; failAll: number }
 

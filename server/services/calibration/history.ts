@@ -2,6 +2,7 @@
 // superseded calibration records. Each is one transaction that raises the history version, judges the runs it
 // touches again and writes its audit row.
 import type { Knex } from 'knex'
+import { forgetHistoryVersion } from './in-force'
 import type { CalibrationAdded, CalibrationSuperseded, HoldingCorrected, InstrumentAdded, InstrumentMoved } from '../../../shared/types/calibration'
 import { dueInstant } from '../../../shared/utils/calibration'
 import { spansOverlap } from '../../../shared/utils/calibration-history'
@@ -44,11 +45,14 @@ async function existingStation(trx: Knex, id: number, pointer: string) {
 }
 
 /** The transaction of every history change: the version row first, so runs in flight are committed before we look. */
-function historyChange<T>(db: Knex, work: (trx: Knex.Transaction) => Promise<T>): Promise<T> {
-  return db.transaction(async (trx) => {
+async function historyChange<T>(db: Knex, work: (trx: Knex.Transaction) => Promise<T>): Promise<T> {
+  const done = await db.transaction(async (trx) => {
     await raiseHistoryVersion(trx)
     return work(trx)
   })
+  // this process judges its next run at the new version at once; others within a second (their guard covers it)
+  forgetHistoryVersion()
+  return done
 }
 
 async function lockedInstrument(trx: Knex.Transaction, id: number) {

@@ -58,13 +58,33 @@ async function namedHistory(db: Knex, named: readonly string[], version: number)
   return { ids, spans: ids.flatMap((id) => c.spans.get(id)!) }
 }
 
+// The version is read at most once a second per process, however many runs arrive: a run judged at a version that
+// has since moved on is caught by the guard in its own transaction (run-links) and judged again, so a second-old
+// version costs at most a second of runs a second look, never a wrong flag.
+const VERSION_FRESH_MS = 1000
+let versionRead: { at: number; value: Promise<number> } | undefined
+
+function historyVersion(db: Knex): Promise<number> {
+  const now = Date.now()
+  if (versionRead && now - versionRead.at < VERSION_FRESH_MS) return versionRead.value
+  const value = readHistoryVersion(db)
+  versionRead = { at: now, value }
+  value.catch(() => { if (versionRead?.value === value) versionRead = undefined })
+  return value
+}
+
+/** Forgets the version read, so that the next run reads it again (after a history change in this process). */
+export function forgetHistoryVersion(): void {
+  versionRead = undefined
+}
+
 /**
  * The instruments in force for a run of the station at `at` (its test time) and the calibration record of each:
  * those the station held then, or, when the run names them, the named ones wherever they were. Lapsed when any
  * was at or past its due date or had no record in force.
  */
 export async function calibrationAt(db: Knex, stationId: number, at: Date, named?: readonly string[]): Promise<RunCalibration> {
-  const version = await readHistoryVersion(db)
+  const version = await historyVersion(db)
   if (named && named.length) {
     const { ids, spans } = await namedHistory(db, named, version)
     return { ...judgeInstruments([...new Set(ids)].sort((a, b) => a - b), spans, at), version, named: true }

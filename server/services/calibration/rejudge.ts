@@ -3,7 +3,7 @@
 import type { Knex } from 'knex'
 import type { RejudgeSummaryView } from '../../../shared/types/calibration'
 import { instrumentsHeldAt, judgeInstruments, type CalibrationSpan, type HoldingSpan } from '../../../shared/utils/calibration-history'
-import { holdingsOfInstrument, holdingsOfStations, spansOfInstruments } from '../../database/repositories/calibration'
+import { holdingsOfInstrument, holdingsOfStations, shareLockHistoryVersion, spansOfInstruments } from '../../database/repositories/calibration'
 import {
   claimRejudges, deleteLinks, linksOfRuns, lotCodesOfRuns, queuedRejudges, runInstrumentsInsert, runsById, runsLinkedTo, setRunsLapsed,
   unnamedRunsOfStations, type CandidateRun,
@@ -101,7 +101,7 @@ export async function drainRejudgeQueue(db: Knex, limit = 500): Promise<number> 
   if (!queued.length) return 0
   return db.transaction(async (trx) => {
     // a shared lock on the version row: no history change can commit while these runs are judged
-    await trx.raw('SELECT version FROM calibration_history_version WHERE id = 1 LOCK IN SHARE MODE')
+    await shareLockHistoryVersion(trx)
     const ids = await claimRejudges(trx, queued)
     const summary = await rejudgeRuns(trx, await runsById(trx, ids))
     if (summary.relinked || summary.nowLapsed || summary.nowInCalibration) {

@@ -7,7 +7,7 @@ import type { Knex } from 'knex'
 import { movingRangeSum } from '../../../shared/utils/capability'
 import { ensureFoldLease, lotsToFold, markFolded, takeFoldLease } from '../../database/repositories/fold-leases'
 import {
-  anyRebuildMarks, foldedSampleValues, forgetQueuedRuns, forgetRebuildMark, newestQueuedRun, paramRowsOfLot, queuedRunsOfLot,
+  anyRebuildMarks, anyStaleParamRows, foldedSampleValues, staleParamRows, forgetQueuedRuns, forgetRebuildMark, newestQueuedRun, paramRowsOfLot, queuedRunsOfLot,
   rebuildMarksOfLot, rebuildParamRows, valuesOfRuns, writeMovingRange, writeParamRows,
 } from '../../database/repositories/param-stats'
 import { problem } from '../../utils/problem'
@@ -24,17 +24,19 @@ const keyText = (k: ParamRowKey) => `${k.step}\u0000${k.name}\u0000${k.qualifier
 type Slice = { folded: number; more: boolean } | 'busy' | 'missing'
 
 /**
- * One transaction on one lot: take its lease, add up to RUNS_PER_FOLD queued runs to its rows, recompute the rows a
- * late run left stale or marked for rebuild, drop the folded runs from the queue.
+ * One transaction on one lot: take its lease, add up to RUNS_PER_FOLD queued runs to its rows, recompute the rows
+ * marked for rebuild, drop the folded runs from the queue. With `repair` (a reader's fold) the moving ranges that
+ * late values left stale are taken again too: that reads every value of the row, so the background leaves it to
+ * the next reader rather than repeating it after every late arrival.
  */
-async function foldSlice(db: Knex, lotId: number, waitSeconds: number, upTo?: number): Promise<Slice> {
+async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: boolean, upTo?: number): Promise<Slice> {
   return db.transaction(async (trx) => {
     const lease = await takeFoldLease(trx, lotId, waitSeconds)
     if (lease !== 'taken') return lease
     const runIds = await queuedRunsOfLot(trx, lotId, RUNS_PER_FOLD, upTo)
     const marks = await rebuildMarksOfLot(trx, lotId)
-    if (!runIds.length && !marks.length) return { folded: 0, more: false }
-    const stale: ParamRow[] = []
+    const stale: ParamRowKey[] = repair && !runIds.length ? await staleParamRows(trx, lotId) : []
+    if (!runIds.length && !marks.length && !stale.length) return { folded: 0, more: false }
     if (runIds.length) {
       const values = await valuesOfRuns(trx, runIds)
       const rows = new Map<string, ParamRow>()
@@ -51,7 +53,8 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, upTo?: nu
       const written = [...touched].map((k) => rows.get(k)!)
       await writeParamRows(trx, written)
       await forgetQueuedRuns(trx, runIds)
-      stale.push(...written.filter((r) => r.mrStale))
+      // a reader repairs once its last slice is in, not after every slice
+      if (repair && runIds.length < RUNS_PER_FOLD) stale.push(...[...rows.values()].filter((r) => r.mrStale))
     }
     // a value older than the row's latest arrived: the moving range is taken again in test order
     for (const key of stale) {
@@ -84,7 +87,7 @@ async function foldLot(db: Knex, lotId: number, background: boolean): Promise<nu
   const upTo = background ? undefined : (await newestQueuedRun(db, lotId)) ?? undefined
   let total = 0
   for (;;) {
-    const slice = await withRetries(() => foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, upTo))
+    const slice = await withRetries(() => foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, !background, upTo))
     if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
     if (slice === 'busy') return total || 'busy'
     total += slice.folded
@@ -107,13 +110,13 @@ export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; back
 }
 
 /**
- * Brings the lots' parameter rows up to date before a reader reads them: runs queued so far are folded in and rows
- * a late run left for a rebuild are recomputed. Answers 503 when a fold of the lot holds its lease too long.
+ * Brings the lots' parameter rows up to date before a reader reads them: runs queued so far are folded in, rows a
+ * late run left for a rebuild are recomputed and stale moving ranges are taken again. Answers 503 when a fold of the lot holds its lease too long.
  */
 export async function freshenLotStats(db: Knex, lotIds: number[]): Promise<void> {
   for (const lotId of lotIds) {
-    const [queued, marked] = await Promise.all([newestQueuedRun(db, lotId), anyRebuildMarks(db, lotId)])
-    if (queued === null && !marked) continue
+    const [queued, marked, stale] = await Promise.all([newestQueuedRun(db, lotId), anyRebuildMarks(db, lotId), anyStaleParamRows(db, lotId)])
+    if (queued === null && !marked && !stale) continue
     try {
       await foldLot(db, lotId, false)
     } catch (e: any) {

@@ -3,6 +3,7 @@ import type { StationRun } from '../../utils/run-validator'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
 import { findRunHashByUuid, loadRunsWithMeasurements } from '../../database/repositories/runs'
 import { ensureFoldLease } from '../../database/repositories/fold-leases'
+import { findOrCreateLot } from '../../database/repositories/lots'
 import { GroupWriter } from '../../utils/group-writer'
 import { writeRuns, type GroupResult, type RunToWrite } from './write-runs'
 import { lotCache, productCache, specCache } from './caches'
@@ -31,13 +32,9 @@ function revisionsFor(db: Knex, productId: number) {
 
 async function lotFor(db: Knex, code: string, product: ProductInfo): Promise<number> {
   const lot = await lotCache.get(code, async () => {
-    let row = await db('lots').where({ code }).first('id', 'product_id')
-    if (!row) {
-      await db.raw('INSERT IGNORE INTO lots (product_id, code) VALUES (?, ?)', [product.id, code])
-      row = await db('lots').where({ code }).first('id', 'product_id')
-      await ensureFoldLease(db, row.id)
-    }
-    return { id: row.id as number, productId: row.product_id as number }
+    const found = await findOrCreateLot(db, code, product.id)
+    if (found.created) await ensureFoldLease(db, found.id)
+    return found
   }) as { id: number; productId: number }
   if (lot.productId !== product.id) {
     throw new RunRejected(`Lot ${code} belongs to another part number.`, [{ pointer: '/lot', message: 'lot belongs to another part' }])

@@ -1,34 +1,9 @@
 // Pure arithmetic of one lot × station parameter row: shifted sums for the moments, min and max, the moving range
 // in time order, and failure counts. The fold applies measurements one by one, exactly as a per-run update would.
 
-export type ParamRowKey = { lotId: number; step: string; name: string; qualifier: number; revisionId: number; stationId: number }
+import type { ParamRow, ParamRowKey, StoredValue } from '../../../shared/types/param-stats'
 
-export type ParamRow = ParamRowKey & {
-  unit: string
-  /** first-attempt values counted */
-  n: number
-  /** the value the sums are taken about (the first value seen), so that large offsets lose no precision */
-  shift: number
-  sumD: number
-  sumSqD: number
-  min: number
-  max: number
-  mrSum: number
-  mrN: number
-  lastValue: number | null
-  lastStartedAt: number | null
-  /** a value arrived older than the latest one: the moving range must be recomputed from the measurements */
-  mrStale: boolean
-  outOfSpec: number
-  failAll: number
-}
-
-export type StoredValue = {
-  value: number; unit: string; firstAttempt: boolean; startedAt: number; id: number
-  lsl: number | null; usl: number | null; failed: boolean
-  /** kept out of the sample: counted among failures only */
-  implausible: boolean
-}
+export type { ParamRow, ParamRowKey, StoredValue }
 
 /** A fresh row for a parameter first seen with this value. */
 export function emptyParamRow(key: ParamRowKey, first: StoredValue): ParamRow {

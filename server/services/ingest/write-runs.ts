@@ -83,10 +83,6 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[]): Promise<Wri
       const after = rowsAfter(plan, runIds)
       const accepted = plan.steps.flatMap((s) => s.accepted.map((a) => ({ a, attempt: s.plan.attempts.get(a.index)!, runId: runIds.get(a.index)! })))
       const writes: (Statement | string)[] = [
-        ...measurementStatements(accepted.map(({ a, attempt, runId }) => ({
-          ctx: { runId, lotId: a.item.ctx.lotId, stationId: a.item.station.id, revisionId: a.item.ctx.revision.id, step: a.item.run.step, firstAttempt: attempt === 1, startedAt: a.item.ctx.startedAt },
-          ms: a.item.ctx.judged.measurements,
-        }))),
         ...traceStatements(accepted.flatMap(({ a, runId }) => (a.item.run.traces ?? []).map((t) => ({ runId, name: t.name, points: JSON.stringify(t.points) })))),
       ]
       if (after.demoted.length) writes.push(firstAttemptFlags(after.demoted, false))
@@ -97,7 +93,13 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[]): Promise<Wri
       // history changed after it was judged (services/calibration/run-links)
       writes.push(...batchCalibrationStatements(accepted.map(({ a, runId }) => ({ runId, calibration: a.item.ctx.calibration }))))
       if (after.rebuild.length) writes.push(statsRebuildMark(after.rebuild))
-      writes.push(...orphans.map(dropUnitWithoutRuns), 'COMMIT')
+      writes.push(...orphans.map(dropUnitWithoutRuns))
+      // the measurements, written as literals, come last: the driver stops reading the text for placeholders once
+      // the statements before have had their values
+      writes.push(...measurementStatements(accepted.map(({ a, attempt, runId }) => ({
+        ctx: { runId, lotId: a.item.ctx.lotId, stationId: a.item.station.id, revisionId: a.item.ctx.revision.id, step: a.item.run.step, firstAttempt: attempt === 1, startedAt: a.item.ctx.startedAt },
+        ms: a.item.ctx.judged.measurements,
+      }))), 'COMMIT')
       await sendStatements(send, writes)
 
       for (const { a, attempt, runId } of accepted) plan.outcomes[a.index] = { kind: 'stored', attempt, runId }
