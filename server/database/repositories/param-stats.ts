@@ -61,9 +61,10 @@ export function paramRowFromDb(r: any): ParamRow {
   }
 }
 
-/** The parameter rows of one lot (its fold lease is held, so nobody else writes them). */
-export async function paramRowsOfLot(trx: Knex.Transaction, lotId: number): Promise<ParamRow[]> {
-  return (await trx('lot_param_stats').where({ lot_id: lotId })).map(paramRowFromDb)
+/** The parameter rows of one lot, of the given stations only (its fold lease is held, so nobody else writes them). */
+export async function paramRowsOfLot(trx: Knex.Transaction, lotId: number, stationIds: number[]): Promise<ParamRow[]> {
+  if (!stationIds.length) return []
+  return (await trx('lot_param_stats').where({ lot_id: lotId }).whereIn('station_id', stationIds)).map(paramRowFromDb)
 }
 
 const COLUMNS = ['lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id', 'unit', 'n', 'shift', 'sum_d', 'sumsq_d', 'min_value', 'max_value',

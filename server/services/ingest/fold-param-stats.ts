@@ -35,12 +35,13 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: b
     if (lease !== 'taken') return lease
     const runIds = await queuedRunsOfLot(trx, lotId, RUNS_PER_FOLD, upTo)
     const marks = await rebuildMarksOfLot(trx, lotId)
-    const stale: ParamRowKey[] = repair && !runIds.length ? await staleParamRows(trx, lotId) : []
+    let stale: ParamRowKey[] = repair && !runIds.length ? await staleParamRows(trx, lotId) : []
     if (!runIds.length && !marks.length && !stale.length) return { folded: 0, more: false }
     if (runIds.length) {
       const values = await valuesOfRuns(trx, runIds)
       const rows = new Map<string, ParamRow>()
-      for (const r of await paramRowsOfLot(trx, lotId)) rows.set(keyText(r), r)
+      // only the rows of the stations whose runs are folded here: a lot tested on many stations has many more
+      for (const r of await paramRowsOfLot(trx, lotId, [...new Set(values.map((v) => v.key.stationId))])) rows.set(keyText(r), r)
       const touched = new Set<string>()
       values.sort((a, b) => inTimeOrder(a.value, b.value))
       for (const { key, value } of values) {
@@ -54,7 +55,7 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: b
       await writeParamRows(trx, written)
       await forgetQueuedRuns(trx, runIds)
       // a reader repairs once its last slice is in, not after every slice
-      if (repair && runIds.length < RUNS_PER_FOLD) stale.push(...[...rows.values()].filter((r) => r.mrStale))
+      if (repair && runIds.length < RUNS_PER_FOLD) stale = await staleParamRows(trx, lotId)
     }
     // a value older than the row's latest arrived: the moving range is taken again in test order
     for (const key of stale) {
