@@ -96,8 +96,9 @@ export function freshRunView(station: StationRef, run: StationRun, ctx: Prepared
 /** `touchStation: false` for runs that are history (imports, seeds): the station was not seen now. */
 export type IngestOptions = { touchStation?: boolean; receivedAt?: Date }
 
-// Concurrent posts are written together: 6 groups in flight of up to 32 runs each (measured on the 2-core box)
-const LANES = Number(process.env.TERCET_WRITE_LANES || 6)
+// Concurrent posts are written together: 4 groups in flight of up to 32 runs each. On the 2-core box 3 and 4 groups
+// stored the most runs per second (bench:ingest, two runs each); 6 and 12 spent more per run on smaller groups.
+const LANES = Number(process.env.TERCET_WRITE_LANES || 4)
 const MAX_GROUP = Number(process.env.TERCET_WRITE_GROUP || 32)
 const writers = new WeakMap<Knex, GroupWriter<RunToWrite, GroupResult>>()
 
