@@ -114,16 +114,18 @@ type LimitRow = {
 
 /**
  * The limit the mask margin of a step is held to, derived from that step's phase-noise limits (the specification
- * names no limit of its own for it): at least 0 dB, with the mask's decision rule and guard band. Undefined when the
- * step has no phase-noise upper limit.
+ * names no limit of its own for it). A sweep has thousands of points, each as uncertain as a spot reading, so it
+ * fails only where it lies beyond the mask by more than the mask's guard band (guarded rejection, in the terms of
+ * ILAC-G8:09/2019): the margin's lower limit is minus that band, judged simply. Undefined when the step has no
+ * phase-noise upper limit.
  */
 export function maskMarginLimit<L extends LimitRow>(limits: readonly L[], step: string): LimitRow | undefined {
   const spots = limits.filter((l) => l.step === step && l.name === 'phase_noise' && l.usl != null)
   if (!spots.length) return undefined
-  const d = maskDecision(spots)
+  const band = maskDecision(spots).defaultUncertainty ?? 0
   return {
-    step, name: MASK_MARGIN, qualifier: 0, lsl: 0, usl: null, target: null, unit: 'dB', required: false,
-    rule: d.rule, defaultUncertainty: d.defaultUncertainty, key: spots.some((l) => l.key),
+    step, name: MASK_MARGIN, qualifier: 0, lsl: band > 0 ? -band : 0, usl: null, target: null, unit: 'dB', required: false,
+    rule: 'simple', defaultUncertainty: null, key: spots.some((l) => l.key),
   }
 }
 

@@ -127,12 +127,21 @@ describe('a phase-noise sweep against the mask', () => {
     expect(r.status).toBe(201)
     expect(r.body.measurements.filter((m: any) => m.name === 'phase_noise').every((m: any) => m.verdict === 'pass')).toBe(true)
     const margin = r.body.measurements.find((m: any) => m.name === 'phase_noise_mask_margin')
-    expect(margin).toMatchObject({ derived: true, unit: 'dB', verdict: 'fail', zone: 'outside', atOffsetHz: 3162.3, limit: { lsl: 0, usl: null, rule: 'guarded', guardBand: 1.5 } })
+    expect(margin).toMatchObject({ derived: true, unit: 'dB', verdict: 'fail', zone: 'outside', atOffsetHz: 3162.3, limit: { lsl: -1.5, usl: null, rule: 'simple' } })
     expect(margin.value).toBeCloseTo(-139.0000 - -136.5, 3)
     expect(r.body.verdict).toBe('fail')
     // stored and shown like any measurement
     const unit = (await get(`/api/units/${r.body.serial}`)).body.runs[0]
     expect(unit.measurements.find((m: any) => m.name === 'phase_noise_mask_margin')).toMatchObject({ verdict: 'fail', atOffsetHz: 3162.3 })
+  })
+
+  it('passes a sweep over the mask by less than the guard band: only a sweep beyond it by more fails', async () => {
+    // −138 at 3.16 kHz: 1 dB over the mask, inside its 1.5 dB guard band
+    const r = await post(tripleRun({ traces: [{ name: 'phase_noise_sweep', points: sweep(-138) }] }))
+    const margin = r.body.measurements.find((m: any) => m.name === 'phase_noise_mask_margin')
+    expect(margin.value).toBeCloseTo(-1, 3)
+    expect(margin).toMatchObject({ verdict: 'pass', atOffsetHz: 3162.3 })
+    expect(r.body.verdict).toBe('pass')
   })
 
   it('passes a sweep under the mask by more than the guard band, and counts the margin in the lot statistics', async () => {
@@ -143,7 +152,7 @@ describe('a phase-noise sweep against the mask', () => {
     expect(margin).toMatchObject({ verdict: 'pass', atOffsetHz: 3162.3 })
     expect(r.body.verdict).toBe('pass')
     const summary = (await get(`/api/lots/${lot}/summary`)).body
-    expect(summary.capability.find((c: any) => c.name === 'phase_noise_mask_margin')).toMatchObject({ n: 1, unit: 'dB', lsl: 0 })
+    expect(summary.capability.find((c: any) => c.name === 'phase_noise_mask_margin')).toMatchObject({ n: 1, unit: 'dB', lsl: -1.5 })
   })
 })
 

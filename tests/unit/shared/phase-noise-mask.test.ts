@@ -107,11 +107,12 @@ describe('the mask margin\'s limit', () => {
   })
   const limits = [spec('phase_noise', 100, -114), spec('phase_noise', 1000, -134), spec('output_power', 0, 8.5, 'simple'), spec('phase_noise', 1000, -120, 'simple', 'tune')]
 
-  it('is at least 0 dB with the step\'s phase-noise rule and guard band, and found like any limit', () => {
-    expect(maskMarginLimit(limits, 'final')).toMatchObject({ name: 'phase_noise_mask_margin', qualifier: 0, lsl: 0, usl: null, unit: 'dB', rule: 'guarded', defaultUncertainty: 1.5, required: false })
-    expect(maskMarginLimit(limits, 'tune')).toMatchObject({ rule: 'simple' })
+  it('fails a sweep only beyond the mask by more than the spots\' guard band (guarded rejection), and is found like any limit', () => {
+    expect(maskMarginLimit(limits, 'final')).toMatchObject({ name: 'phase_noise_mask_margin', qualifier: 0, lsl: -1.5, usl: null, unit: 'dB', rule: 'simple', defaultUncertainty: null, required: false })
+    expect(maskMarginLimit(limits, 'tune')).toMatchObject({ lsl: -1.5, rule: 'simple' })
+    expect(maskMarginLimit([{ ...limits[0]!, defaultUncertainty: null }], 'final')).toMatchObject({ lsl: 0 })
     expect(maskMarginLimit(limits, 'burn-in')).toBeUndefined()
-    expect(limitInForce(limits, { step: 'final', name: 'phase_noise_mask_margin', qualifier: 0 })).toMatchObject({ lsl: 0 })
+    expect(limitInForce(limits, { step: 'final', name: 'phase_noise_mask_margin', qualifier: 0 })).toMatchObject({ lsl: -1.5 })
     expect(limitInForce(limits, { step: 'final', name: 'output_power', qualifier: 0 })).toBe(limits[2])
     expect(limitInForce(limits, { step: 'final', name: 'supply_current', qualifier: 0 })).toBeUndefined()
   })
