@@ -2,8 +2,9 @@
 // that find runs a history change touches, and the reads behind the station and unit pages.
 import type { Knex } from 'knex'
 import type { Statement } from '../raw-connection'
+import type { RunRef } from './run-writes'
 
-export type RunInstrumentRow = { runId: number; instrumentId: number; calibrationId: number | null; named?: boolean }
+export type RunInstrumentRow = { runId: RunRef; instrumentId: number; calibrationId: number | null; named?: boolean }
 
 /**
  * One multi-row insert of run ↔ instrument links, with the calibration record in force for each (null: none was).
@@ -22,7 +23,7 @@ export function runInstrumentsInsert(rows: readonly RunInstrumentRow[]): Stateme
  * change, which raises it, waits for these runs and then sees them) and queues the runs for judging again when the
  * version moved on between their judgement and now.
  */
-export function calibrationGuard(runIds: readonly number[], version: number): Statement {
+export function calibrationGuard(runIds: readonly RunRef[], version: number): Statement {
   if (!Number.isSafeInteger(version)) throw new TypeError('the history version must be an integer')
   return {
     sql: `SELECT version FROM calibration_history_version WHERE id = 1 LOCK IN SHARE MODE;

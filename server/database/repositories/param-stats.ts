@@ -1,6 +1,7 @@
 // The lot × revision × station parameter rows, the queue of runs not yet folded into them, and the rows a late run
 // left to be rebuilt.
 import type { Knex } from 'knex'
+import { numberLiteral, textLiteral, utcLiteral } from '../sql-literals'
 import type { ParamRow, ParamRowKey, StoredValue } from '../../../shared/types/param-stats'
 
 /** Up to `limit` queued runs of one lot, oldest first, none newer than `upTo` when given (the caller holds the lot's lease). */
@@ -39,12 +40,14 @@ export type ValueOfRow = { key: ParamRowKey; value: StoredValue }
 /** The stored measurements of the given runs, with what each parameter row needs of them. */
 export async function valuesOfRuns(trx: Knex.Transaction, runIds: number[]): Promise<ValueOfRow[]> {
   if (!runIds.length) return []
+  // the start as milliseconds (the session is in UTC): a number read, rather than a date parsed, for every value
   const rows = await trx('measurements').whereIn('run_id', runIds)
-    .select('id', 'lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id', 'unit', 'value', 'first_attempt', 'implausible', 'started_at', 'lsl', 'usl', 'verdict')
+    .select('id', 'lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id', 'unit', 'value', 'first_attempt', 'implausible', 'lsl', 'usl', 'verdict',
+      trx.raw("TIMESTAMPDIFF(MICROSECOND, '1970-01-01 00:00:00', started_at) DIV 1000 AS started_ms"))
   return rows.map((r: any) => ({
     key: { lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), stationId: Number(r.station_id) },
     value: {
-      value: Number(r.value), unit: r.unit, firstAttempt: !!r.first_attempt, startedAt: new Date(r.started_at).getTime(), id: Number(r.id),
+      value: Number(r.value), unit: r.unit, firstAttempt: !!r.first_attempt, startedAt: Number(r.started_ms), id: Number(r.id),
       lsl: r.lsl == null ? null : Number(r.lsl), usl: r.usl == null ? null : Number(r.usl), failed: r.verdict === 'fail', implausible: !!r.implausible,
     },
   }))
@@ -73,13 +76,15 @@ const ROWS_PER_STATEMENT = 1000
 
 /** Writes whole rows back: new ones are inserted, existing ones take the values computed under the lease. */
 export async function writeParamRows(trx: Knex.Transaction, rows: ParamRow[]): Promise<void> {
-  const tuple = `(${COLUMNS.map(() => '?').join(', ')})`
   const tail = COLUMNS.slice(6).map((c) => `${c} = VALUES(${c})`).join(', ')
+  // every value a literal: a fold writes some twenty values for each of hundreds of rows
+  const tuple = (r: ParamRow) => `(${r.lotId},${textLiteral(r.step)},${textLiteral(r.name)},${numberLiteral(r.qualifier)},${r.revisionId},${r.stationId},${textLiteral(r.unit)},`
+    + `${r.n},${numberLiteral(r.shift)},${numberLiteral(r.sumD)},${numberLiteral(r.sumSqD)},${numberLiteral(r.min)},${numberLiteral(r.max)},${numberLiteral(r.mrSum)},${r.mrN},`
+    + `${numberLiteral(r.lastValue)},${r.lastStartedAt === null ? 'NULL' : utcLiteral(new Date(r.lastStartedAt))},${r.mrStale ? 1 : 0},${r.outOfSpec},${r.failAll})`
   for (let i = 0; i < rows.length; i += ROWS_PER_STATEMENT) {
     const part = rows.slice(i, i + ROWS_PER_STATEMENT)
-    const values = part.flatMap((r) => [r.lotId, r.step, r.name, r.qualifier, r.revisionId, r.stationId, r.unit, r.n, r.shift, r.sumD, r.sumSqD, r.min, r.max,
-      r.mrSum, r.mrN, r.lastValue, r.lastStartedAt === null ? null : new Date(r.lastStartedAt), r.mrStale, r.outOfSpec, r.failAll])
-    await trx.raw(`INSERT INTO lot_param_stats (${COLUMNS.join(', ')}) VALUES ${part.map(() => tuple).join(', ')} ON DUPLICATE KEY UPDATE ${tail}`, values)
+    if (!part.every((r) => [r.lotId, r.revisionId, r.stationId, r.n, r.mrN, r.outOfSpec, r.failAll].every(Number.isInteger))) throw new TypeError('statistics row keys and counts must be integers')
+    await trx.raw(`INSERT INTO lot_param_stats (${COLUMNS.join(', ')}) VALUES ${part.map(tuple).join(',')} ON DUPLICATE KEY UPDATE ${tail}`)
   }
 }
 

@@ -2,9 +2,40 @@
 // trips. Values travel as placeholders, except a run's own columns in its measurement rows (checked integers and
 // driver-escaped literals, written once per run rather than bound on every row).
 import mysql from 'mysql2'
+import { numberLiteral, textLiteral, utcLiteral } from '../sql-literals'
 import type { JudgedMeasurement } from '../../../shared/types/judgement'
 
 export type Statement = { sql: string; values: unknown[] }
+
+/**
+ * A run's id in a statement: a number, or the id a run insert earlier in the same transaction gave the k-th of its
+ * rows (see `insertedRunRef`), which the statements bind as SQL rather than as a value.
+ */
+export type RunRef = number | { toSqlString(): string }
+
+const FIRST_RUN_ID = '@tercet_first_run'
+
+/** The id of the k-th row of the run insert that `rememberFirstRunId` follows. */
+export function insertedRunRef(k: number): RunRef {
+  if (!Number.isInteger(k) || k < 0) throw new RangeError('k must be a whole number')
+  return mysql.raw(`(${FIRST_RUN_ID} + ${k} * @@auto_increment_increment)`)
+}
+
+/** Keeps the first id of the run insert just sent; a multi-row insert's ids follow it one increment apart. */
+export const rememberFirstRunId = `SET ${FIRST_RUN_ID} = LAST_INSERT_ID()`
+
+/**
+ * Fails the transaction (error 1242) unless the runs just inserted hold the ids `insertedRunRef` assumes, one
+ * increment apart in insert order; answers the first id and the increment when they do.
+ */
+export function insertedRunIdsCheck(uuids: string[]): Statement {
+  const n = uuids.length
+  return {
+    sql: `SELECT IF((SELECT COUNT(*) FROM test_runs WHERE id BETWEEN ${FIRST_RUN_ID} AND ${FIRST_RUN_ID} + ${n - 1} * @@auto_increment_increment
+        AND uuid IN (${list(n)})) = ${n}, ${FIRST_RUN_ID}, (SELECT 1 UNION ALL SELECT 2)) AS first, @@auto_increment_increment AS inc`,
+    values: uuids,
+  }
+}
 
 type Verdict = 'pass' | 'fail'
 
@@ -94,41 +125,17 @@ function runValues(r: RunRow): unknown[] {
     r.reference ? JSON.stringify(r.reference) : null, r.receivedAt]
 }
 
-/** The runs, answering each one's new id with its station run id. */
-export function runsInsert(rows: RunRow[]): Statement {
+/** The runs; with `returning`, answering each one's new id with its station run id. */
+export function runsInsert(rows: RunRow[], returning = true): Statement {
   const values: unknown[] = []
   for (const r of rows) values.push(...runValues(r))
-  return { sql: `INSERT INTO test_runs (${RUN_COLUMNS}) VALUES ${rows.map(() => RUN_TUPLE).join(', ')} RETURNING id, uuid`, values }
+  return { sql: `INSERT INTO test_runs (${RUN_COLUMNS}) VALUES ${rows.map(() => RUN_TUPLE).join(', ')}${returning ? ' RETURNING id, uuid' : ''}`, values }
 }
 
-export type MeasurementContext = { runId: number; lotId: number; stationId: number; revisionId: number | null; step: string; firstAttempt: boolean; startedAt: Date }
-
-/** A DATETIME(3) literal in UTC, as the connection's time zone reads it. */
-function utcLiteral(d: Date): string {
-  return `'${d.toISOString().slice(0, 23).replace('T', ' ')}'`
-}
+export type MeasurementContext = { runId: RunRef; lotId: number; stationId: number; revisionId: number | null; step: string; firstAttempt: boolean; startedAt: Date }
 
 const MEASUREMENT_HEAD = `INSERT INTO measurements (run_id, lot_id, station_id, revision_id, step, first_attempt, started_at, name, qualifier, value, unit,
   uncertainty, lsl, usl, target, rule, guard_band, verdict, zone, derived, excess_db, implausible, at_offset_hz) VALUES `
-
-/** A number as an SQL literal; judged values are finite by the time they are stored. */
-function numberLiteral(x: number | null | undefined): string {
-  if (x === null || x === undefined) return 'NULL'
-  if (!Number.isFinite(x)) throw new RangeError(`a stored value must be finite, got ${x}`)
-  return String(x)
-}
-
-// names, units and the like repeat on every run: each distinct one is escaped once
-const escapedText = new Map<string, string>()
-function textLiteral(s: string | null | undefined): string {
-  if (s === null || s === undefined) return 'NULL'
-  let hit = escapedText.get(s)
-  if (hit === undefined) {
-    hit = mysql.escape(s)
-    if (escapedText.size < 10_000) escapedText.set(s, hit)
-  }
-  return hit
-}
 
 /**
  * The measurements of one or more runs in one INSERT, with the limits applied copied beside each value. Every value
@@ -140,8 +147,9 @@ export function measurementsInsert(items: { ctx: MeasurementContext; ms: JudgedM
   let first = true
   for (const { ctx, ms } of items) {
     const revisionId = ctx.revisionId ?? 0
-    if (![ctx.runId, ctx.lotId, ctx.stationId, revisionId].every(Number.isInteger)) throw new TypeError('run, lot, station and revision ids must be integers')
-    const head = `(${ctx.runId},${ctx.lotId},${ctx.stationId},${revisionId},${textLiteral(ctx.step)},${ctx.firstAttempt ? 1 : 0},${utcLiteral(ctx.startedAt)},`
+    if (![ctx.lotId, ctx.stationId, revisionId].every(Number.isInteger) || (typeof ctx.runId === 'number' && !Number.isInteger(ctx.runId))) throw new TypeError('run, lot, station and revision ids must be integers')
+    const runId = typeof ctx.runId === 'number' ? String(ctx.runId) : ctx.runId.toSqlString()
+    const head = `(${runId},${ctx.lotId},${ctx.stationId},${revisionId},${textLiteral(ctx.step)},${ctx.firstAttempt ? 1 : 0},${utcLiteral(ctx.startedAt)},`
     for (const m of ms) {
       const l = m.limit
       const row = head + textLiteral(m.name) + ',' + numberLiteral(m.qualifier) + ',' + numberLiteral(m.value) + ',' + textLiteral(m.unit) + ','
@@ -155,7 +163,7 @@ export function measurementsInsert(items: { ctx: MeasurementContext; ms: JudgedM
   return { sql, values: [] }
 }
 
-export function tracesInsert(rows: { runId: number; name: string; points: string }[]): Statement {
+export function tracesInsert(rows: { runId: RunRef; name: string; points: string }[]): Statement {
   return { sql: `INSERT INTO traces (run_id, name, points) VALUES ${rows.map(() => '(?, ?, ?)').join(', ')}`, values: rows.flatMap((t) => [t.runId, t.name, t.points]) }
 }
 
@@ -164,7 +172,7 @@ export function firstAttemptFlags(runIds: number[], firstAttempt: boolean): Stat
   return { sql: `UPDATE measurements SET first_attempt = ? WHERE run_id IN (${list(runIds.length)})`, values: [firstAttempt, ...runIds] }
 }
 
-export type UnitStepRow = { unitId: number; step: string; attempts: number; firstVerdict: Verdict; latestVerdict: Verdict; latestRunId: number }
+export type UnitStepRow = { unitId: number; step: string; attempts: number; firstVerdict: Verdict; latestVerdict: Verdict; latestRunId: RunRef }
 
 /** The units' step rows as they stand after the write. */
 export function unitStepsUpsert(rows: UnitStepRow[]): Statement {
@@ -192,7 +200,7 @@ export function stepCountersAdd(rows: StepCounterRow[]): Statement {
 }
 
 /** Runs whose measurements the parameter statistics have yet to take in (see fold-param-stats). */
-export function pendingStatsInsert(rows: { runId: number; lotId: number }[]): Statement {
+export function pendingStatsInsert(rows: { runId: RunRef; lotId: number }[]): Statement {
   return { sql: `INSERT INTO lot_stats_pending (run_id, lot_id) VALUES ${rows.map(() => '(?, ?)').join(', ')}`, values: rows.flatMap((r) => [r.runId, r.lotId]) }
 }
 

@@ -3,6 +3,7 @@
 import type { Statement } from '../../database/raw-connection'
 import { calibrationGuard, runInstrumentsInsert } from '../../database/repositories/calibration-runs'
 import type { RunCalibration } from './in-force'
+import type { RunRef } from '../../database/repositories/run-writes'
 
 export { runInstrumentsInsert } from '../../database/repositories/calibration-runs'
 
@@ -12,9 +13,9 @@ const LINKS_PER_STATEMENT = 1000
 // the same order a history change takes them in, so the two never wait on each other crosswise.
 
 /** For runs already inserted in the current transaction: one guard per history version, then link inserts in chunks. */
-export function batchCalibrationStatements(items: readonly { runId: number; calibration: RunCalibration }[]): Statement[] {
+export function batchCalibrationStatements(items: readonly { runId: RunRef; calibration: RunCalibration }[]): Statement[] {
   const out: Statement[] = []
-  const byVersion = new Map<number, number[]>()
+  const byVersion = new Map<number, RunRef[]>()
   for (const { runId, calibration } of items) byVersion.set(calibration.version, [...(byVersion.get(calibration.version) ?? []), runId])
   for (const [version, ids] of byVersion) {
     for (let i = 0; i < ids.length; i += LINKS_PER_STATEMENT) out.push(calibrationGuard(ids.slice(i, i + LINKS_PER_STATEMENT), version))

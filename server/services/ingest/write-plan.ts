@@ -1,7 +1,7 @@
 // Decides, for a group of judged runs and what the database holds for their units, each run's outcome (stored,
 // replay, conflict, refused), its attempt by test time, and every row the group changes. Pure: write-runs reads
 // the rows, calls these, and sends the statements.
-import type { LockedUnitRow, RunRow, StoredAttemptRow, StoredUuidRow, StepCounterRow, UnitStepRow } from '../../database/repositories/run-writes'
+import type { LockedUnitRow, RunRef, RunRow, StoredAttemptRow, StoredUuidRow, StepCounterRow, UnitStepRow } from '../../database/repositories/run-writes'
 import type { StationRun } from '../../utils/run-validator'
 import type { Prepared, StationRef } from './ingest-run'
 import { appendsOnly, planAppend, planMerge, type NewAttempt, type StepPlan, type StepSummary, type StoredAttempt } from './test-order'
@@ -159,7 +159,7 @@ export function runRowFor(it: RunToWrite, unitId: number, attempt: number): RunR
 }
 
 /** The rows that follow from the plan once the new runs have ids. */
-export function rowsAfter(plan: GroupPlan, runIds: Map<number, number>) {
+export function rowsAfter(plan: GroupPlan, runIds: Map<number, RunRef>) {
   const unitSteps: UnitStepRow[] = []
   const counters: StepCounterRow[] = []
   const demoted: number[] = []

@@ -4,9 +4,9 @@
 import type { Knex } from 'knex'
 import { sendStatements, withDriverConnection, type SendStatements, type Statement } from '../../database/raw-connection'
 import {
-  dropUnitWithoutRuns, firstAttemptFlags, lockUnitsWithSteps, measurementsInsert, pendingStatsInsert, renumberAttempts, runsInsert, statsRebuildMark,
+  dropUnitWithoutRuns, firstAttemptFlags, insertedRunIdsCheck, insertedRunRef, lockUnitsWithSteps, rememberFirstRunId, measurementsInsert, pendingStatsInsert, renumberAttempts, runsInsert, statsRebuildMark,
   stepCountersAdd, storedAttempts, storedRunsByUuid, tracesInsert, unitStepsUpsert, unitsUpsert,
-  type LockedUnitRow, type StoredAttemptRow, type StoredUuidRow,
+  type LockedUnitRow, type RunRef, type StoredAttemptRow, type StoredUuidRow,
 } from '../../database/repositories/run-writes'
 import { batchCalibrationStatements } from '../calibration/run-links'
 import { lockedUnits, placeRuns, rowsAfter, runRowFor, screen, unitsToLock, type LockedUnit, type RunToWrite, type WriteOutcome } from './write-plan'
@@ -31,7 +31,7 @@ function measurementStatements(items: Parameters<typeof measurementsInsert>[0]):
   return out
 }
 
-function traceStatements(rows: { runId: number; name: string; points: string }[]): Statement[] {
+function traceStatements(rows: { runId: RunRef; name: string; points: string }[]): Statement[] {
   const out: Statement[] = []
   let part: typeof rows = []
   let bytes = 0
@@ -59,8 +59,15 @@ async function lockAndScreen(send: SendStatements, items: RunToWrite[]) {
   return screen(items, units, results[k] as StoredUuidRow[])
 }
 
+/**
+ * How the runs' ids reach the statements that hang off them: `inline` writes them as the insert's first id plus
+ * k increments, checked in the same round trip, so the whole write is one round trip; `returning` reads them back
+ * first (one more round trip), for when the check finds the ids were not one increment apart.
+ */
+export type IdMode = 'inline' | 'returning'
+
 /** One transaction for the whole group; throws (after rolling back) when the database refuses any statement. */
-export async function writeGroupOnce(db: Knex, items: RunToWrite[]): Promise<WriteOutcome[]> {
+export async function writeGroupOnce(db: Knex, items: RunToWrite[], mode: IdMode = 'inline'): Promise<WriteOutcome[]> {
   return withDriverConnection(db, async (send, discard) => {
     try {
       const screened = await lockAndScreen(send, items)
@@ -73,36 +80,53 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[]): Promise<Wri
         return plan.outcomes as WriteOutcome[]
       }
 
-      const rows = plan.steps.flatMap((s) => s.accepted.map((a) => runRowFor(a.item, a.unit.id, s.plan.attempts.get(a.index)!)))
+      const accepted = plan.steps.flatMap((s) => s.accepted.map((a) => ({ a, attempt: s.plan.attempts.get(a.index)! })))
+      const rows = accepted.map(({ a, attempt }) => runRowFor(a.item, a.unit.id, attempt))
       const renumber = plan.steps.flatMap((s) => s.plan.renumber)
-      const inserted = (await sendStatements(send, [...(renumber.length ? [renumberAttempts(renumber)] : []), runsInsert(rows)])).at(-1) as { id: number; uuid: string }[]
-      const idByUuid = new Map(inserted.map((r) => [r.uuid, Number(r.id)]))
-      const runIds = new Map<number, number>()
-      for (const s of plan.steps) for (const a of s.accepted) runIds.set(a.index, idByUuid.get(a.item.run.id)!)
+      const head: (Statement | string)[] = renumber.length ? [renumberAttempts(renumber)] : []
 
-      const after = rowsAfter(plan, runIds)
-      const accepted = plan.steps.flatMap((s) => s.accepted.map((a) => ({ a, attempt: s.plan.attempts.get(a.index)!, runId: runIds.get(a.index)! })))
+      const refs = new Map<number, RunRef>()
+      let firstRunId: (results: unknown[]) => { first: number; inc: number }
+      if (mode === 'returning') {
+        const inserted = (await sendStatements(send, [...head, runsInsert(rows)])).at(-1) as { id: number; uuid: string }[]
+        const idByUuid = new Map(inserted.map((r) => [r.uuid, Number(r.id)]))
+        for (const { a } of accepted) refs.set(a.index, idByUuid.get(a.item.run.id)!)
+        head.length = 0
+        firstRunId = () => ({ first: 0, inc: 0 })
+      } else {
+        accepted.forEach(({ a }, k) => refs.set(a.index, insertedRunRef(k)))
+        head.push(runsInsert(rows, false), rememberFirstRunId, insertedRunIdsCheck(rows.map((r) => r.uuid)))
+        const checkAt = head.length - 1
+        firstRunId = (results) => { const [row] = results[checkAt] as { first: number; inc: number }[]; return { first: Number(row!.first), inc: Number(row!.inc) } }
+      }
+
+      const after = rowsAfter(plan, refs)
       const writes: (Statement | string)[] = [
-        ...traceStatements(accepted.flatMap(({ a, runId }) => (a.item.run.traces ?? []).map((t) => ({ runId, name: t.name, points: JSON.stringify(t.points) })))),
+        ...head,
+        ...traceStatements(accepted.flatMap(({ a }) => (a.item.run.traces ?? []).map((t) => ({ runId: refs.get(a.index)!, name: t.name, points: JSON.stringify(t.points) })))),
       ]
       if (after.demoted.length) writes.push(firstAttemptFlags(after.demoted, false))
       if (after.promoted.length) writes.push(firstAttemptFlags(after.promoted, true))
       writes.push(unitStepsUpsert(after.unitSteps), stepCountersAdd(after.counters))
-      writes.push(pendingStatsInsert(accepted.map(({ a, runId }) => ({ runId, lotId: a.item.ctx.lotId }))))
+      writes.push(pendingStatsInsert(accepted.map(({ a }) => ({ runId: refs.get(a.index)!, lotId: a.item.ctx.lotId }))))
       // the instruments each run was taken with, and the guard that sends a run back for judging when the calibration
       // history changed after it was judged (services/calibration/run-links)
-      writes.push(...batchCalibrationStatements(accepted.map(({ a, runId }) => ({ runId, calibration: a.item.ctx.calibration }))))
+      writes.push(...batchCalibrationStatements(accepted.map(({ a }) => ({ runId: refs.get(a.index)!, calibration: a.item.ctx.calibration }))))
       if (after.rebuild.length) writes.push(statsRebuildMark(after.rebuild))
       writes.push(...orphans.map(dropUnitWithoutRuns))
       // the measurements, written as literals, come last: the driver stops reading the text for placeholders once
       // the statements before have had their values
-      writes.push(...measurementStatements(accepted.map(({ a, attempt, runId }) => ({
-        ctx: { runId, lotId: a.item.ctx.lotId, stationId: a.item.station.id, revisionId: a.item.ctx.revision.id, step: a.item.run.step, firstAttempt: attempt === 1, startedAt: a.item.ctx.startedAt },
+      writes.push(...measurementStatements(accepted.map(({ a, attempt }) => ({
+        ctx: { runId: refs.get(a.index)!, lotId: a.item.ctx.lotId, stationId: a.item.station.id, revisionId: a.item.ctx.revision.id, step: a.item.run.step, firstAttempt: attempt === 1, startedAt: a.item.ctx.startedAt },
         ms: a.item.ctx.judged.measurements,
       }))), 'COMMIT')
-      await sendStatements(send, writes)
+      const results = await sendStatements(send, writes)
 
-      for (const { a, attempt, runId } of accepted) plan.outcomes[a.index] = { kind: 'stored', attempt, runId }
+      const { first, inc } = firstRunId(results)
+      accepted.forEach(({ a, attempt }, k) => {
+        const ref = refs.get(a.index)!
+        plan.outcomes[a.index] = { kind: 'stored', attempt, runId: typeof ref === 'number' ? ref : first + k * inc }
+      })
       // a repeat of a run stored earlier in this group answers with that run
       for (const o of plan.outcomes) if (o?.kind === 'replay' && o.sameAs !== undefined) o.runId = (plan.outcomes[o.sameAs] as { runId: number }).runId
       return plan.outcomes as WriteOutcome[]
@@ -137,6 +161,19 @@ async function withRetries<T>(work: () => Promise<T>): Promise<T> {
 
 export type GroupResult = { outcome: WriteOutcome } | { error: unknown }
 
+/** The check of inlined run ids failed: another insert's ids came between this group's (interleaved auto-increment). */
+const IDS_NOT_CONSECUTIVE = 'ER_SUBQUERY_NO_1_ROW'
+
+/** The group in one write round trip, or, when its ids turned out not to be one increment apart, with its ids read back. */
+async function writeGroup(db: Knex, items: RunToWrite[]): Promise<WriteOutcome[]> {
+  try {
+    return await writeGroupOnce(db, items, 'inline')
+  } catch (e) {
+    if ((e as { code?: string })?.code !== IDS_NOT_CONSECUTIVE) throw e
+    return writeGroupOnce(db, items, 'returning')
+  }
+}
+
 /**
  * Writes the group, retrying what a concurrent writer made fail. If the group still fails, each run is written on
  * its own, so one run the database refuses never takes the others down: every run gets its own result.
@@ -144,14 +181,14 @@ export type GroupResult = { outcome: WriteOutcome } | { error: unknown }
 export async function writeRuns(db: Knex, items: RunToWrite[]): Promise<GroupResult[]> {
   if (!items.length) return []
   try {
-    return (await withRetries(() => writeGroupOnce(db, items))).map((outcome) => ({ outcome }))
+    return (await withRetries(() => writeGroup(db, items))).map((outcome) => ({ outcome }))
   } catch (e) {
     if (items.length === 1) return [{ error: e }]
   }
   const out: GroupResult[] = []
   for (const item of items) {
     try {
-      const [outcome] = await withRetries(() => writeGroupOnce(db, [item]))
+      const [outcome] = await withRetries(() => writeGroup(db, [item]))
       out.push({ outcome: outcome! })
     } catch (error) {
       out.push({ error })
