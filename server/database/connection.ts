@@ -1,4 +1,5 @@
 import knex, { type Knex } from 'knex'
+import mysql from 'mysql2'
 
 export type DbConnection = { host: string; port: number; user: string; password: string; database: string }
 
@@ -16,6 +17,10 @@ export function createKnex(conn: DbConnection, pool = { min: 0, max: 20 }): Knex
       // the single-run writer sends a transaction's statements in one round trip; values travel as placeholder
       // bindings, except a run's own columns in its measurement insert, which are checked integers or escaped by the driver
       multipleStatements: true,
+      // the driver would read a statement's whole text for placeholders even with no values to put in; the write path
+      // sends long texts of literals (values already in place), so a statement without values goes as it is
+      // (dates in UTC, as the connection's time zone says)
+      queryFormat: (sql: string, values: any) => (values == null || (Array.isArray(values) && values.length === 0) ? sql : mysql.format(sql, values, false, 'Z')),
     },
     pool: {
       ...pool,
