@@ -143,8 +143,8 @@ const MEASUREMENT_HEAD = `INSERT INTO measurements (run_id, lot_id, station_id, 
  * them, and building the text once costs less than binding placeholders and formatting them afterwards.
  */
 export function measurementsInsert(items: { ctx: MeasurementContext; ms: JudgedMeasurement[] }[]): Statement {
-  let sql = MEASUREMENT_HEAD
-  let first = true
+  // rows gathered and joined once: a batch's statement runs to hundreds of kilobytes
+  const rows: string[] = []
   for (const { ctx, ms } of items) {
     const revisionId = ctx.revisionId ?? 0
     if (![ctx.lotId, ctx.stationId, revisionId].every(Number.isInteger) || (typeof ctx.runId === 'number' && !Number.isInteger(ctx.runId))) throw new TypeError('run, lot, station and revision ids must be integers')
@@ -152,15 +152,13 @@ export function measurementsInsert(items: { ctx: MeasurementContext; ms: JudgedM
     const head = `(${runId},${ctx.lotId},${ctx.stationId},${revisionId},${textLiteral(ctx.step)},${ctx.firstAttempt ? 1 : 0},${utcLiteral(ctx.startedAt)},`
     for (const m of ms) {
       const l = m.limit
-      const row = head + textLiteral(m.name) + ',' + numberLiteral(m.qualifier) + ',' + numberLiteral(m.value) + ',' + textLiteral(m.unit) + ','
+      rows.push(head + textLiteral(m.name) + ',' + numberLiteral(m.qualifier) + ',' + numberLiteral(m.value) + ',' + textLiteral(m.unit) + ','
         + numberLiteral(m.uncertainty) + ',' + (l ? `${numberLiteral(l.lsl)},${numberLiteral(l.usl)},${numberLiteral(l.target)},${textLiteral(l.rule)},${numberLiteral(l.guardBand)}` : 'NULL,NULL,NULL,NULL,NULL')
         + ',' + textLiteral(m.verdict) + ',' + textLiteral(m.zone) + ',' + (m.derived ? 1 : 0) + ',' + numberLiteral(m.excessDb) + ',' + (m.implausible ? 1 : 0)
-        + ',' + numberLiteral(m.atOffsetHz) + ')'
-      sql += first ? row : ',' + row
-      first = false
+        + ',' + numberLiteral(m.atOffsetHz) + ')')
     }
   }
-  return { sql, values: [] }
+  return { sql: MEASUREMENT_HEAD + rows.join(','), values: [] }
 }
 
 export function tracesInsert(rows: { runId: RunRef; name: string; points: string }[]): Statement {
