@@ -98,8 +98,8 @@ async function seedDemoShipments(db: Knex, now: Date): Promise<void> {
       const released = new Date(now.getTime() - (p.shipped ? 2 : 1) * 86_400_000)
       await trx('lots').where({ id: lot.id }).update({ status: p.shipped ? 'shipped' : 'released', released_at: released, released_by: quality.id, shipped_at: p.shipped ? now : null })
       const [shipmentId] = await trx('shipments').insert({
-        code: p.code, customer_id: customer.id, status: p.shipped ? 'shipped' : 'released', customer_po: p.po,
-        released_at: released, released_by: quality.id, shipped_at: p.shipped ? now : null,
+        code: p.code, customer_id: customer.id, status: p.shipped ? 'dispatched' : 'released', customer_po: p.po,
+        released_at: released, released_by: quality.id, dispatched_at: p.shipped ? now : null,
       })
       const passing = await trx('units as u').join('unit_steps as us', 'us.unit_id', 'u.id')
         .where({ 'u.lot_id': lot.id, 'us.step': 'final', 'us.latest_verdict': 'pass' }).orderBy('u.serial').limit(p.units).select('u.id')
