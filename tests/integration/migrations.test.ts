@@ -31,7 +31,7 @@ describe('migrations', () => {
     const up = await tables()
     expect(up).toEqual(expect.arrayContaining(['users', 'products', 'spec_revisions', 'spec_limits', 'stations', 'station_tokens', 'instruments',
       'lots', 'units', 'test_runs', 'measurements', 'traces', 'shipments', 'shipment_units', 'certificates', 'alert_rules', 'alert_events', 'audit_log',
-      'customers', 'customer_contacts', 'unit_returns', 'retest_policies', 'unit_dispositions', 'certificate_documents', 'certificate_sequences', 'lot_param_stats', 'lot_step_stats', 'lot_stats_pending', 'unit_steps',
+      'customers', 'customer_contacts', 'unit_returns', 'retest_policies', 'unit_dispositions', 'certificate_documents', 'certificate_sequences', 'request_limits', 'lot_param_stats', 'lot_step_stats', 'lot_stats_pending', 'unit_steps',
       'instrument_holdings', 'calibration_records', 'calibration_certificates', 'run_instruments', 'calibration_history_version', 'calibration_rejudge']))
     await db.migrate.rollback({ migrationSource }, true)
     expect(await tables()).toEqual([])

@@ -103,6 +103,8 @@ export async function up(knex: Knex): Promise<void> {
     t.string('render_lease_owner', 64)
     t.integer('render_attempts').unsigned().notNullable().defaultTo(0)
     t.string('render_error', 500)
+    // a later passing run of the unit, stored after issue: the certificate waits for quality to reissue it
+    t.bigInteger('retest_run_id').unsigned()
     t.index(['unit_id', 'issued_at'])
     t.index(['shipment_id'])
     t.index(['customer_id', 'issued_at'])
@@ -117,6 +119,15 @@ export async function up(knex: Knex): Promise<void> {
     t.integer('year').unsigned().primary()
     t.integer('last_number').unsigned().notNullable()
   })
+  // fixed-window request counters shared by every app instance (public verification, and any other limit)
+  await knex.schema.createTable('request_limits', (t) => {
+    t.string('bucket', 40).notNullable()
+    t.string('client_key', 80).notNullable()
+    t.datetime('window_start', { precision: 3 }).notNullable()
+    t.integer('hits').unsigned().notNullable()
+    t.primary(['bucket', 'client_key'])
+    t.index(['window_start'])
+  })
   // a valid certificate's unit: a later run of it must supersede or revoke (read by the write path)
   await knex.schema.alterTable('units', (t) => {
     t.boolean('certified').notNullable().defaultTo(false)
@@ -125,6 +136,7 @@ export async function up(knex: Knex): Promise<void> {
 
 export async function down(knex: Knex): Promise<void> {
   await knex.schema.alterTable('units', (t) => { t.dropColumn('certified') })
+  await knex.schema.dropTable('request_limits')
   await knex.schema.dropTable('certificate_sequences')
   await knex.schema.dropTable('certificate_documents')
   await knex.schema.dropTable('certificates')
