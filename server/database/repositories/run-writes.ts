@@ -51,7 +51,7 @@ export function unitsUpsert(productId: number, units: { serial: string; lotId: n
 }
 
 export type LockedUnitRow = {
-  id: number; serial: string; lot_id: number; step: string | null; attempts: number | null
+  id: number; serial: string; lot_id: number; certified: number; step: string | null; attempts: number | null
   first_verdict: Verdict | null; latest_verdict: Verdict | null; latest_run_id: number | null
   latest_started_at: Date | null; latest_finished_at: Date | null; latest_uuid: string | null; latest_station_id: number | null
 }
@@ -59,7 +59,7 @@ export type LockedUnitRow = {
 /** The units with their step rows at the given steps and each step's latest run, under lock. */
 export function lockUnitsWithSteps(productId: number, serials: string[], steps: string[]): Statement {
   return {
-    sql: `SELECT u.id, u.serial, u.lot_id, s.step, s.attempts, s.first_verdict, s.latest_verdict, s.latest_run_id,
+    sql: `SELECT u.id, u.serial, u.lot_id, u.certified, s.step, s.attempts, s.first_verdict, s.latest_verdict, s.latest_run_id,
         lr.started_at AS latest_started_at, lr.finished_at AS latest_finished_at, lr.uuid AS latest_uuid, lr.station_id AS latest_station_id
       FROM units u LEFT JOIN unit_steps s ON s.unit_id = u.id AND s.step IN (${list(steps.length)})
         LEFT JOIN test_runs lr ON lr.id = s.latest_run_id

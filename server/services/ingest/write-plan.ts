@@ -2,6 +2,7 @@
 // replay, conflict, refused), its attempt by test time, and every row the group changes. Pure: write-runs reads
 // the rows, calls these, and sends the statements.
 import type { LockedUnitRow, RunRef, RunRow, StoredAttemptRow, StoredUuidRow, StepCounterRow, UnitStepRow } from '../../database/repositories/run-writes'
+import type { Retest } from '../../database/repositories/certificate-retests'
 import type { StationRun } from '../../utils/run-validator'
 import type { Prepared, StationRef } from './ingest-run'
 import { appendsOnly, planAppend, planMerge, type NewAttempt, type StepPlan, type StepSummary, type StoredAttempt } from './test-order'
@@ -25,14 +26,15 @@ export type WriteOutcome =
 const unitKey = (productId: number, serial: string) => `${productId}\u0000${serial}`
 const stepKey = (unitId: number, step: string) => `${unitId}\u0000${step}`
 
-export type LockedUnit = { id: number; lotId: number; steps: Map<string, StepSummary> }
+/** `certified`: the unit has a valid certificate, so a run that becomes its latest at a step is a retest after issue */
+export type LockedUnit = { id: number; lotId: number; certified: boolean; steps: Map<string, StepSummary> }
 
 /** Units by product and serial, with the step summaries the lock statements returned. */
 export function lockedUnits(productId: number, rows: LockedUnitRow[], into = new Map<string, LockedUnit>()): Map<string, LockedUnit> {
   for (const r of rows) {
     const key = unitKey(productId, r.serial)
     let u = into.get(key)
-    if (!u) { u = { id: Number(r.id), lotId: Number(r.lot_id), steps: new Map() }; into.set(key, u) }
+    if (!u) { u = { id: Number(r.id), lotId: Number(r.lot_id), certified: !!Number(r.certified), steps: new Map() }; into.set(key, u) }
     if (r.step !== null && r.latest_run_id !== null) {
       u.steps.set(r.step, {
         attempts: Number(r.attempts), firstVerdict: r.first_verdict!,
@@ -117,7 +119,7 @@ export function screen(items: RunToWrite[], units: Map<string, LockedUnit>, stor
 
 export type GroupPlan = {
   outcomes: (WriteOutcome | undefined)[]
-  steps: { unitId: number; lotId: number; step: string; accepted: Accepted[]; plan: StepPlan<number> }[]
+  steps: { unitId: number; lotId: number; certified: boolean; step: string; accepted: Accepted[]; plan: StepPlan<number> }[]
 }
 
 /** Places every accepted run by test time; `history` holds the stored runs of the unit steps screen asked for. */
@@ -140,7 +142,7 @@ export function placeRuns(s: Screened, history: StoredAttemptRow[]): GroupPlan {
     }))
     const full = storedBy.get(key)
     const plan = full ? planMerge(full, incoming) : planAppend(unit.steps.get(item.run.step) ?? null, incoming)
-    steps.push({ unitId: unit.id, lotId: unit.lotId, step: item.run.step, accepted, plan })
+    steps.push({ unitId: unit.id, lotId: unit.lotId, certified: unit.certified, step: item.run.step, accepted, plan })
   }
   return { outcomes: s.outcomes, steps }
 }
@@ -165,9 +167,15 @@ export function rowsAfter(plan: GroupPlan, runIds: Map<number, RunRef>) {
   const demoted: number[] = []
   const promoted: number[] = []
   const rebuild: { lotId: number; step: string; revisionId: number; stationId: number }[] = []
+  const retests: Retest[] = []
   for (const s of plan.steps) {
     const p = s.plan
     const latestRunId = 'runId' in p.latest ? p.latest.runId : runIds.get(p.latest.ref)!
+    if (s.certified && 'ref' in p.latest) {
+      const ref = p.latest.ref
+      const a = s.accepted.find((x) => x.index === ref)!
+      retests.push({ unitId: s.unitId, stationId: a.item.station.id, step: s.step, runId: latestRunId, uuid: a.item.run.id, verdict: p.latestVerdict })
+    }
     unitSteps.push({ unitId: s.unitId, step: s.step, attempts: p.attemptsAfter, firstVerdict: p.firstVerdict, latestVerdict: p.latestVerdict, latestRunId })
     for (const c of p.counters) counters.push({ lotId: s.lotId, step: s.step, ...c })
     for (const [moved, list] of [[p.demotedFirst, demoted], [p.promotedFirst, promoted]] as const) {
@@ -176,7 +184,7 @@ export function rowsAfter(plan: GroupPlan, runIds: Map<number, RunRef>) {
       rebuild.push({ lotId: s.lotId, step: s.step, revisionId: moved.revisionId, stationId: moved.stationId })
     }
   }
-  return { unitSteps, counters: mergeCounters(counters), demoted, promoted, rebuild }
+  return { unitSteps, counters: mergeCounters(counters), demoted, promoted, rebuild, retests }
 }
 
 function mergeCounters(rows: StepCounterRow[]): StepCounterRow[] {

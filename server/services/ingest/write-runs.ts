@@ -8,6 +8,7 @@ import {
   stepCountersAdd, storedAttempts, storedRunsByUuid, tracesInsert, unitStepsUpsert, unitsUpsert,
   type LockedUnitRow, type RunRef, type StoredAttemptRow, type StoredUuidRow,
 } from '../../database/repositories/run-writes'
+import { retestStatements } from '../../database/repositories/certificate-retests'
 import { batchCalibrationStatements } from '../calibration/run-links'
 import { lockedUnits, placeRuns, rowsAfter, runRowFor, screen, unitsToLock, type LockedUnit, type RunToWrite, type WriteOutcome } from './write-plan'
 
@@ -113,6 +114,8 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[], mode: IdMode
       // history changed after it was judged (services/calibration/run-links)
       writes.push(...batchCalibrationStatements(accepted.map(({ a }) => ({ runId: refs.get(a.index)!, calibration: a.item.ctx.calibration }))))
       if (after.rebuild.length) writes.push(statsRebuildMark(after.rebuild))
+      // a certified unit's new latest result at a step: a failure revokes its certificate at once
+      writes.push(...retestStatements(after.retests))
       writes.push(...orphans.map(dropUnitWithoutRuns))
       // the measurements, written as literals, come last: the driver stops reading the text for placeholders once
       // the statements before have had their values
