@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import type { Role } from '../../shared/utils/roles'
 import { findUserById, insertUser, updateUser, type UserRecord } from '../database/repositories/users'
 import { writeAudit } from '../database/repositories/audit'
+import { findCustomer } from '../database/repositories/customers'
 
 export type NewUser = { email: string; name: string; role: Role; customerId?: number | null; password: string }
 export type UserChange = Partial<{ name: string; role: Role; customerId: number | null; disabled: boolean; password: string }>
@@ -16,6 +17,11 @@ function checkCustomerLink(role: Role, customerId: number | null | undefined): v
   if (role !== 'customer' && customerId) throw new UserRuleError('Only customer users belong to a customer.', '/customerId')
 }
 
+/** The customer a customer user is linked to must exist (a deactivated one still may, for reading its history). */
+async function checkCustomerExists(db: Knex, customerId: number | null | undefined): Promise<void> {
+  if (customerId && !await findCustomer(db, customerId)) throw new UserRuleError('No such customer.', '/customerId')
+}
+
 function publicView(u: UserRecord | undefined) {
   return u && { id: u.id, email: u.email, name: u.name, role: u.role, customerId: u.customerId, disabled: u.disabled }
 }
@@ -24,6 +30,7 @@ export async function createUser(db: Knex, actorId: number, input: NewUser, hash
   checkCustomerLink(input.role, input.customerId)
   const passwordHash = await hash(input.password)
   return db.transaction(async (trx) => {
+    await checkCustomerExists(trx, input.customerId)
     const id = await insertUser(trx, { email: input.email, name: input.name, role: input.role, customerId: input.customerId ?? null, passwordHash })
     const user = (await findUserById(trx, id))!
     await writeAudit(trx, { userId: actorId, action: 'create', entity: 'user', entityId: id, after: publicView(user) })
@@ -39,6 +46,7 @@ export async function changeUser(db: Knex, actorId: number, id: number, change: 
     const role = change.role ?? before.role
     const customerId = change.customerId !== undefined ? change.customerId : (role === 'customer' ? before.customerId : null)
     checkCustomerLink(role, customerId)
+    if (change.customerId !== undefined) await checkCustomerExists(trx, customerId)
     if (id === actorId && (change.disabled === true || (change.role && change.role !== 'admin'))) {
       throw new UserRuleError('You cannot disable your own account or remove your own admin role.', change.disabled ? '/disabled' : '/role')
     }

@@ -5,6 +5,8 @@ export type Rule = { method: string; path: string; allow: 'public' | Caller[] }
 
 const STAFF: Caller[] = ['admin', 'quality', 'engineer', 'operator']
 const ENGINEERING: Caller[] = ['admin', 'quality', 'engineer']
+/** who prepares shipments; releasing one stays with quality */
+const SHIPPING: Caller[] = ['admin', 'quality']
 
 /**
  * Every API route and who may call it. A route not listed here answers 404 to everyone:
@@ -22,6 +24,18 @@ export const API_POLICY: Rule[] = [
   { method: 'POST', path: '/api/users', allow: ['admin'] },
   { method: 'PATCH', path: '/api/users/:id', allow: ['admin'] },
   { method: 'GET', path: '/api/customers', allow: ['admin', 'quality'] },
+  { method: 'POST', path: '/api/customers', allow: ['admin', 'quality'] },
+  { method: 'GET', path: '/api/customers/:id', allow: ['admin', 'quality'] },
+  { method: 'PATCH', path: '/api/customers/:id', allow: ['admin', 'quality'] },
+  { method: 'POST', path: '/api/customers/:id/contacts', allow: ['admin', 'quality'] },
+  { method: 'PATCH', path: '/api/customers/:id/contacts/:contactId', allow: ['admin', 'quality'] },
+  { method: 'DELETE', path: '/api/customers/:id/contacts/:contactId', allow: ['admin', 'quality'] },
+
+  // a customer user reads its own released and dispatched shipments; the handlers scope by account
+  { method: 'GET', path: '/api/shipments', allow: [...STAFF, 'customer'] },
+  { method: 'GET', path: '/api/shipments/:id', allow: [...STAFF, 'customer'] },
+  { method: 'POST', path: '/api/shipments', allow: SHIPPING },
+  { method: 'PATCH', path: '/api/shipments/:id', allow: SHIPPING },
 
   { method: 'GET', path: '/api/lots', allow: STAFF },
   { method: 'GET', path: '/api/units/:serial', allow: STAFF },

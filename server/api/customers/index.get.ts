@@ -1,3 +1,3 @@
-import { listCustomers } from '../database/repositories/customers'
+import { listCustomers } from '../../database/repositories/customers'
 
 export default defineEventHandler(async () => ({ customers: await listCustomers(useDb()) }))
