@@ -19,6 +19,11 @@ export const API_POLICY: Rule[] = [
   { method: 'DELETE', path: '/api/_auth/session', allow: 'public' },
   { method: 'GET', path: '/api/me', allow: [...STAFF, 'customer'] },
   { method: 'GET', path: '/api/portal/shipments', allow: ['customer'] },
+  // the customer portal's reads: a customer within its own shipments (others' ids answer 404), staff across all
+  { method: 'GET', path: '/api/portal/units', allow: [...STAFF, 'customer'] },
+  { method: 'GET', path: '/api/portal/units/:partNumber/:serial', allow: [...STAFF, 'customer'] },
+  { method: 'GET', path: '/api/shipments/:id/certificates.zip', allow: [...STAFF, 'customer'] },
+  { method: 'GET', path: '/api/shipments/:id/measurements.csv', allow: [...STAFF, 'customer'] },
 
   { method: 'GET', path: '/api/users', allow: ['admin'] },
   { method: 'POST', path: '/api/users', allow: ['admin'] },

@@ -1,0 +1,24 @@
+import { idParam } from '../../../utils/route-params'
+import { visibleShipment } from '../../../database/repositories/portal'
+import { planShipmentZip, shipmentCertificatesZip } from '../../../services/portal/certificates-zip'
+
+/**
+ * The shipment's certificates in force as one ZIP, streamed (no Content-Length); X-Tercet-Files and
+ * X-Tercet-Expected-Bytes let a page show progress.
+ */
+export default defineEventHandler(async (event) => {
+  const id = idParam(event, 'id', 'shipment')
+  const db = useDb()
+  const shipment = await visibleShipment(db, id, customerScope(requireUser(event)))
+  if (!shipment) throw problem(404, 'No such shipment.')
+  const plan = await planShipmentZip(db, shipment.id)
+  setResponseHeader(event, 'Content-Type', 'application/zip')
+  setResponseHeader(event, 'Content-Disposition', `attachment; filename="${shipment.code.replace(/[^A-Za-z0-9._-]/g, '_')}-certificates.zip"`)
+  setResponseHeader(event, 'X-Tercet-Files', String(plan.files))
+  setResponseHeader(event, 'X-Tercet-Expected-Bytes', String(plan.expectedBytes))
+  setResponseHeader(event, 'Cache-Control', 'no-store')
+  const stream = shipmentCertificatesZip(db, shipment.id, null)
+  // a download given up stops the reading
+  event.node.res.once('close', () => { if (!event.node.res.writableFinished) stream.destroy() })
+  return sendStream(event, stream)
+})
