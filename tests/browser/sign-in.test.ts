@@ -13,7 +13,7 @@ const LANDINGS = [
   { email: 'quality@tercet.test', path: '/lots', heading: 'Lots' },
   { email: 'engineer@tercet.test', path: '/lots', heading: 'Lots' },
   { email: 'operator@tercet.test', path: '/floor', heading: 'Floor' },
-  { email: 'buyer@quillfeather.test', path: '/portal', heading: 'Your units' },
+  { email: 'buyer@quillfeather.test', path: '/portal', heading: 'Your shipments' },
 ]
 
 describe('signing in and out in the browser', () => {

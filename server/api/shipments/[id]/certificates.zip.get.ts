@@ -1,5 +1,5 @@
 import { idParam } from '../../../utils/route-params'
-import { visibleShipment } from '../../../database/repositories/portal'
+import { readableShipment } from '../../../services/shipments/views'
 import { planShipmentZip, shipmentCertificatesZip } from '../../../services/portal/certificates-zip'
 
 /**
@@ -9,7 +9,7 @@ import { planShipmentZip, shipmentCertificatesZip } from '../../../services/port
 export default defineEventHandler(async (event) => {
   const id = idParam(event, 'id', 'shipment')
   const db = useDb()
-  const shipment = await visibleShipment(db, id, customerScope(requireUser(event)))
+  const shipment = await readableShipment(db, { customerId: customerScope(requireUser(event)) }, id)
   if (!shipment) throw problem(404, 'No such shipment.')
   const plan = await planShipmentZip(db, shipment.id)
   setResponseHeader(event, 'Content-Type', 'application/zip')
