@@ -3,6 +3,7 @@ import { DEMO_LOTS, DEMO_PRODUCTS, DEMO_STATIONS, type DemoProduct } from '../..
 import { generateRun, mulberry32, type GeneratedRun } from '../../../fixtures/run-generator'
 import { ingestBatch } from '../../services/ingest/ingest-batch'
 import { writeAudit } from '../repositories/audit'
+import { issueCertificates } from '../../services/certificates/issue'
 
 const HOUR = 3_600_000
 
@@ -84,28 +85,45 @@ export async function seedDemoHistory(db: Knex, now = new Date()): Promise<numbe
   return count
 }
 
-/** One shipped and one released shipment, so each demo customer has units to look at. */
+/**
+ * Shipments of the demo, each with its certificates issued through the issuing service: the doubler lot went to
+ * Saltmarsh and has been dispatched; the tripler lot is split between both customers, released and awaiting dispatch.
+ */
 async function seedDemoShipments(db: Knex, now: Date): Promise<void> {
   const quality = await db('users').where({ role: 'quality' }).first('id')
+  const day = 86_400_000
   const plan = [
-    { lot: 'D2-2611-A', customer: 'SALT', code: 'SH-2611-001', po: 'SGS-PO-88410', units: 40, shipped: true },
-    { lot: 'T3-2611-A', customer: 'QUILL', code: 'SH-2611-002', po: 'QRO-7731', units: 24, shipped: false },
+    { lot: 'D2-2611-A', customer: 'SALT', code: 'SH-2611-001', po: 'SGS-PO-88410', skip: 0, units: 40, dispatched: true, releasedDaysAgo: 2 },
+    { lot: 'T3-2611-A', customer: 'QUILL', code: 'SH-2611-002', po: 'QRO-7731', skip: 0, units: 24, dispatched: false, releasedDaysAgo: 1 },
+    { lot: 'T3-2611-A', customer: 'SALT', code: 'SH-2611-003', po: 'SGS-PO-88522', skip: 24, units: 24, dispatched: false, releasedDaysAgo: 1 },
   ]
+  const lotReleased = new Map<string, Date>()
+  for (const p of plan) {
+    const released = new Date(now.getTime() - p.releasedDaysAgo * day)
+    if (!lotReleased.has(p.lot) || released < lotReleased.get(p.lot)!) lotReleased.set(p.lot, released)
+  }
   await db.transaction(async (trx) => {
+    for (const [code, released] of lotReleased) {
+      const shipped = plan.some((p) => p.lot === code && p.dispatched)
+      await trx('lots').where({ code }).update({ status: shipped ? 'shipped' : 'released', released_at: released, released_by: quality.id, shipped_at: shipped ? now : null })
+      await writeAudit(trx, { userId: quality.id, action: 'release', entity: 'lot', entityId: code, before: { status: 'open' }, after: { status: 'released' } })
+      if (shipped) await writeAudit(trx, { userId: quality.id, action: 'ship', entity: 'lot', entityId: code, before: { status: 'released' }, after: { status: 'shipped' } })
+    }
     for (const p of plan) {
-      const lot = await trx('lots').where({ code: p.lot }).first('id')
+      const lot = await trx('lots').where({ code: p.lot }).first('id', 'product_id')
       const customer = await trx('customers').where({ code: p.customer }).first('id')
-      const released = new Date(now.getTime() - (p.shipped ? 2 : 1) * 86_400_000)
-      await trx('lots').where({ id: lot.id }).update({ status: p.shipped ? 'shipped' : 'released', released_at: released, released_by: quality.id, shipped_at: p.shipped ? now : null })
+      const released = new Date(now.getTime() - p.releasedDaysAgo * day)
       const [shipmentId] = await trx('shipments').insert({
-        code: p.code, customer_id: customer.id, status: p.shipped ? 'dispatched' : 'released', customer_po: p.po,
-        released_at: released, released_by: quality.id, dispatched_at: p.shipped ? now : null,
+        code: p.code, customer_id: customer.id, product_id: lot.product_id, status: p.dispatched ? 'dispatched' : 'released', customer_po: p.po,
+        created_at: new Date(released.getTime() - day), created_by: quality.id, released_at: released, released_by: quality.id,
+        dispatched_at: p.dispatched ? now : null, dispatched_by: p.dispatched ? quality.id : null,
+        carrier: p.dispatched ? 'Brackwater Couriers' : null, tracking_ref: p.dispatched ? 'BWC-77310-2611' : null,
       })
       const passing = await trx('units as u').join('unit_steps as us', 'us.unit_id', 'u.id')
-        .where({ 'u.lot_id': lot.id, 'us.step': 'final', 'us.latest_verdict': 'pass' }).orderBy('u.serial').limit(p.units).select('u.id')
-      await trx('shipment_units').insert(passing.map((u: any) => ({ shipment_id: shipmentId, unit_id: u.id })))
-      await writeAudit(trx, { userId: quality.id, action: 'release', entity: 'lot', entityId: p.lot, before: { status: 'open' }, after: { status: 'released' } })
-      if (p.shipped) await writeAudit(trx, { userId: quality.id, action: 'ship', entity: 'lot', entityId: p.lot, before: { status: 'released' }, after: { status: 'shipped' } })
+        .where({ 'u.lot_id': lot.id, 'us.step': 'final', 'us.latest_verdict': 'pass' }).orderBy('u.serial').offset(p.skip).limit(p.units).select('u.id')
+      await trx('shipment_units').insert(passing.map((u: any) => ({ shipment_id: shipmentId, unit_id: u.id, added_at: new Date(released.getTime() - day) })))
+      await issueCertificates(trx, { shipmentId: shipmentId!, issuedBy: quality.id, now: released, units: passing.map((u: any) => ({ unitId: Number(u.id) })) })
+      await writeAudit(trx, { userId: quality.id, action: 'release', entity: 'shipment', entityId: p.code, before: { status: 'draft' }, after: { status: 'released', units: passing.length } })
     }
   })
 }
