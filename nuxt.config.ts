@@ -1,6 +1,7 @@
 import { fileURLToPath } from 'node:url'
 
 const fontDir = fileURLToPath(new URL('./node_modules/@fontsource/roboto-mono/files', import.meta.url))
+const interDir = fileURLToPath(new URL('./node_modules/@fontsource/inter/files', import.meta.url))
 
 export default defineNuxtConfig({
   compatibilityDate: '2025-07-15',
@@ -23,7 +24,12 @@ export default defineNuxtConfig({
   },
   nitro: {
     ...(process.env.TERCET_OUTPUT_DIR ? { output: { dir: process.env.TERCET_OUTPUT_DIR } } : {}),
-    serverAssets: [{ baseName: 'fonts', dir: fontDir, pattern: 'roboto-mono-latin-{400,700}-normal.woff' }],
+    serverAssets: [
+      { baseName: 'fonts', dir: fontDir, pattern: 'roboto-mono-latin-{400,700}-normal.woff' },
+      // embedded in certificates (server/services/certificates/fonts.ts)
+      { baseName: 'certfonts-mono', dir: fontDir, pattern: 'roboto-mono-latin-{400,700}-normal.woff' },
+      { baseName: 'certfonts-sans', dir: interDir, pattern: 'inter-latin-{400,600}-normal.woff' },
+    ],
   },
   typescript: { strict: true },
   // separate build folders let two checkouts' builds and test servers run side by side

@@ -30,6 +30,8 @@ export type CertificateCharacteristic = {
   guardBand: number | null
   verdict: 'pass' | 'fail'
   step: string
+  /** computed by Tercet from other readings (shown to fewer digits) */
+  derived: boolean
 }
 
 export type CertificateStepAttempts = { step: string; attempts: number; maxAttempts: number | null; disposition: string | null }

@@ -19,8 +19,16 @@ export const LANDING: Record<Role, string> = {
   customer: '/portal',
 }
 
+/** Pages anyone opens without signing in (a certificate's public check). */
+export const PUBLIC_PAGES = ['/verify']
+
+export function isPublicPage(path: string): boolean {
+  return PUBLIC_PAGES.some((p) => path === p || path.startsWith(p + '/'))
+}
+
 /** Pages by path prefix and the roles that may open them; anything not listed is staff-only. */
 export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
+  { prefix: '/verify', roles: [...ROLES] },
   { prefix: '/admin', roles: ['admin'] },
   // the customer portal; staff open it too, to see what a customer sees
   { prefix: '/portal', roles: ['customer', 'admin', 'quality', 'engineer', 'operator'] },

@@ -19,6 +19,8 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'GET /api/portal/units/:partNumber/:serial', sample: '/api/portal/units/VFW-T3-375/NO-SUCH-SERIAL', allow: ALL },
   { route: 'GET /api/shipments/:id/certificates.zip', sample: '/api/shipments/999999/certificates.zip', allow: ALL },
   { route: 'GET /api/shipments/:id/measurements.csv', sample: '/api/shipments/999999/measurements.csv', allow: ALL },
+  { route: 'GET /api/certificates/:number.pdf', sample: '/api/certificates/NO-SUCH-CERT.pdf', allow: ALL },
+  { route: 'GET /api/verify/:code', sample: '/api/verify/NO-SUCH-CODE', allow: 'public' },
   { route: 'GET /api/users', allow: ['admin'] },
   { route: 'POST /api/users', allow: ['admin'] },
   { route: 'PATCH /api/users/:id', sample: '/api/users/999999', allow: ['admin'] },

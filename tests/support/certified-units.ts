@@ -15,7 +15,10 @@ export type CertifiedSet = {
   issued: IssuedCertificate[]
 }
 
-export async function testedShipment(db: Knex, o: { tag: string; count: number; customer?: 'QUILL' | 'SALT'; issue?: boolean; start?: Date }): Promise<CertifiedSet> {
+/** `hold` keeps the certificates from any renderer (a lease of owner HOLD for an hour), taken in the issuing transaction. */
+export const HOLD = 'test-hold'
+
+export async function testedShipment(db: Knex, o: { tag: string; count: number; customer?: 'QUILL' | 'SALT'; issue?: boolean; hold?: boolean; start?: Date }): Promise<CertifiedSet> {
   const station = await db('stations').where({ name: 'ATE-T3-01' }).first('id', 'name')
   const start = (o.start ?? new Date(Date.now() - 6 * 3_600_000)).getTime()
   const rand = mulberry32(o.tag.length * 7919 + o.count)
@@ -39,8 +42,13 @@ export async function testedShipment(db: Knex, o: { tag: string; count: number; 
   const unitRows = await db('units as u').join('lots as l', 'l.id', 'u.lot_id').where('l.code', `${o.tag}-L`).orderBy('u.serial').select('u.id', 'u.serial')
   await db('shipment_units').insert(unitRows.map((u: any) => ({ shipment_id: shipmentId, unit_id: u.id })))
   const units = unitRows.map((u: any) => ({ unitId: u.id, serial: u.serial, finalRunUuid: finals.get(u.serial)! }))
-  const issued = o.issue === false ? [] : await db.transaction((trx) => issueCertificates(trx, {
-    shipmentId: shipmentId!, issuedBy: quality.id, now: new Date(), units: units.map((u) => ({ unitId: u.unitId })),
-  }))
+  const issued = o.issue === false ? [] : await db.transaction(async (trx) => {
+    const out = await issueCertificates(trx, { shipmentId: shipmentId!, issuedBy: quality.id, now: new Date(), units: units.map((u) => ({ unitId: u.unitId })) })
+    if (o.hold) {
+      await trx('certificates').whereIn('id', out.map((c) => c.certificateId))
+        .update({ render_lease_owner: HOLD, render_lease_until: new Date(Date.now() + 3_600_000) })
+    }
+    return out
+  })
   return { shipmentId: shipmentId!, customerId: customer.id, qualityId: quality.id, units, issued }
 }

@@ -77,7 +77,7 @@ export async function runSources(db: Knex, runIds: readonly number[]): Promise<R
 export type MeasurementSource = {
   runId: number; step: string; name: string; qualifier: number; value: number; unit: string
   lsl: number | null; usl: number | null; rule: 'simple' | 'guarded' | null; guardBand: number | null
-  verdict: 'pass' | 'fail' | 'info'; key: boolean
+  verdict: 'pass' | 'fail' | 'info'; key: boolean; derived: boolean
 }
 
 // The measurements a certificate states: the key characteristics of the revision each run was judged by, and the
@@ -93,10 +93,10 @@ export async function measurementSources(db: Knex, runIds: readonly number[]): P
       .whereIn('m.run_id', part)
       .where((q) => q.where('sl.key_characteristic', 1).orWhereIn('m.name', STATED_NAMES))
       .orderBy('m.id')
-      .select('m.run_id', 'm.step', 'm.name', 'm.qualifier', 'm.value', 'm.unit', 'm.lsl', 'm.usl', 'm.rule', 'm.guard_band', 'm.verdict', 'sl.key_characteristic')
+      .select('m.run_id', 'm.step', 'm.name', 'm.qualifier', 'm.value', 'm.unit', 'm.lsl', 'm.usl', 'm.rule', 'm.guard_band', 'm.verdict', 'm.derived', 'sl.key_characteristic')
     return rows.map((r: any) => ({
       runId: Number(r.run_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), value: Number(r.value), unit: r.unit,
-      lsl: r.lsl ?? null, usl: r.usl ?? null, rule: r.rule ?? null, guardBand: r.guard_band ?? null, verdict: r.verdict, key: !!r.key_characteristic,
+      lsl: r.lsl ?? null, usl: r.usl ?? null, rule: r.rule ?? null, guardBand: r.guard_band ?? null, verdict: r.verdict, key: !!r.key_characteristic, derived: !!r.derived,
     }))
   })
 }

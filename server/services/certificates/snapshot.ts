@@ -30,7 +30,7 @@ function characteristic(m: MeasurementSource): CertificateCharacteristic {
     rule: m.rule ?? 'simple',
     // a simple rule applies no guard band, whatever width the judgement worked out
     guardBand: m.rule === 'guarded' ? m.guardBand : null,
-    verdict: m.verdict === 'fail' ? 'fail' : 'pass', step: m.step,
+    verdict: m.verdict === 'fail' ? 'fail' : 'pass', step: m.step, derived: m.derived,
   }
 }
 

@@ -1,0 +1,86 @@
+// Rendering leases and stored documents of certificates, and the reads behind the download and the public check.
+// A lease is the row's render_lease_owner / render_lease_until, taken in a short transaction; the document is stored
+// only by the owner of a live lease, so two renders never both store.
+import type { Knex } from 'knex'
+
+export type CertificateRef = {
+  id: number; number: string; customerId: number; status: 'valid' | 'superseded' | 'revoked'
+  sha256: string | null; renderedAt: Date | null
+}
+
+const ref = (r: any): CertificateRef => ({
+  id: r.id, number: r.number, customerId: r.customer_id, status: r.status, sha256: r.sha256 ?? null, renderedAt: r.rendered_at ?? null,
+})
+
+export async function certificateByNumber(db: Knex, number: string): Promise<CertificateRef | undefined> {
+  const r = await db('certificates').where({ number }).first('id', 'number', 'customer_id', 'status', 'sha256', 'rendered_at')
+  return r ? ref(r) : undefined
+}
+
+/** Up to `limit` unrendered certificates whose lease (or error backoff) has run out, leased to `owner`. */
+export async function leaseUnrendered(db: Knex, owner: string, now: Date, until: Date, limit: number): Promise<number[]> {
+  return db.transaction(async (trx) => {
+    const rows = await trx.raw(
+      `SELECT id FROM certificates WHERE rendered_at IS NULL AND (render_lease_until IS NULL OR render_lease_until < ?)
+       ORDER BY id LIMIT ? FOR UPDATE SKIP LOCKED`, [now, limit])
+    const ids = (rows[0] as any[]).map((r) => r.id as number)
+    if (ids.length) await trx('certificates').whereIn('id', ids).update({ render_lease_owner: owner, render_lease_until: until })
+    return ids
+  })
+}
+
+export type LeaseState = 'rendered' | 'leased' | 'busy' | 'missing'
+
+/**
+ * Leases one certificate for rendering on demand, regardless of an error backoff (someone is waiting for it);
+ * 'busy' while another owner's lease is live.
+ */
+export async function leaseOne(db: Knex, id: number, owner: string, now: Date, until: Date): Promise<LeaseState> {
+  return db.transaction(async (trx) => {
+    const r = await trx('certificates').where({ id }).forUpdate().first('rendered_at', 'render_lease_owner', 'render_lease_until')
+    if (!r) return 'missing'
+    if (r.rendered_at) return 'rendered'
+    if (r.render_lease_owner && r.render_lease_until && new Date(r.render_lease_until).getTime() >= now.getTime()) return 'busy'
+    await trx('certificates').where({ id }).update({ render_lease_owner: owner, render_lease_until: until })
+    return 'leased'
+  })
+}
+
+export async function snapshotsOf(db: Knex, ids: readonly number[]): Promise<{ id: number; templateVersion: number; snapshot: string }[]> {
+  if (!ids.length) return []
+  const rows = await db('certificates').whereIn('id', ids).select('id', 'template_version', 'snapshot')
+  return rows.map((r: any) => ({ id: r.id, templateVersion: r.template_version, snapshot: r.snapshot }))
+}
+
+/** Stores the document if `owner` still holds the lease; false when it does not (the lease ran out and another took it). */
+export async function storeDocument(db: Knex, id: number, owner: string, pdf: Buffer, sha256: string, now: Date): Promise<boolean> {
+  return db.transaction(async (trx) => {
+    const [result] = await trx.raw(
+      `UPDATE certificates SET sha256 = ?, byte_length = ?, rendered_at = ?, render_lease_owner = NULL, render_lease_until = NULL, render_error = NULL
+       WHERE id = ? AND render_lease_owner = ? AND rendered_at IS NULL`, [sha256, pdf.length, now, id, owner])
+    if (Number((result as any).affectedRows) !== 1) return false
+    await trx('certificate_documents').insert({ certificate_id: id, pdf })
+    return true
+  })
+}
+
+/** Records a failed render and lets the lease run until the backoff ends, so no one retries it before then. */
+export async function recordRenderError(db: Knex, id: number, owner: string, message: string, backoff: (attempts: number) => Date): Promise<void> {
+  const r = await db('certificates').where({ id }).first('render_attempts')
+  const attempts = Number(r?.render_attempts ?? 0) + 1
+  await db('certificates').where({ id, render_lease_owner: owner }).whereNull('rendered_at')
+    .update({ render_error: message.slice(0, 500), render_attempts: attempts, render_lease_owner: null, render_lease_until: backoff(attempts) })
+}
+
+export async function documentBytes(db: Knex, id: number): Promise<Buffer | undefined> {
+  const r = await db('certificate_documents').where({ certificate_id: id }).first('pdf')
+  return r?.pdf
+}
+
+export type VerificationRow = { serial: string; partNumber: string; number: string; issuedAt: Date; status: 'valid' | 'superseded' | 'revoked'; sha256: string | null; renderedAt: Date | null }
+
+export async function verificationByCode(db: Knex, code: string): Promise<VerificationRow | undefined> {
+  const r = await db('certificates as c').join('units as u', 'u.id', 'c.unit_id').join('products as p', 'p.id', 'u.product_id')
+    .where('c.verify_code', code).first('u.serial', 'p.part_number', 'c.number', 'c.issued_at', 'c.status', 'c.sha256', 'c.rendered_at')
+  return r ? { serial: r.serial, partNumber: r.part_number, number: r.number, issuedAt: r.issued_at, status: r.status, sha256: r.sha256 ?? null, renderedAt: r.rendered_at ?? null } : undefined
+}
