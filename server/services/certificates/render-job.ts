@@ -74,3 +74,8 @@ export async function ensureRendered(db: Knex, id: number, fonts: CertificateFon
     await new Promise((r) => setTimeout(r, wait))
   }
 }
+
+/** Renders, one after another, those of the certificates that have no stored document yet (a ZIP's next page). */
+export async function ensureAllRendered(db: Knex, ids: readonly number[], fonts: CertificateFonts): Promise<void> {
+  for (const id of ids) await ensureRendered(db, id, fonts)
+}

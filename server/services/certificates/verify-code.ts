@@ -6,7 +6,8 @@ export const CODE_ALPHABET = '23456789ABCDEFGHJKLMNPQRSTUVWXYZ'
 /** 128 bits need 26 symbols of 5 bits (130 bits; the top two are always zero). */
 export const CODE_SYMBOLS = 26
 
-function encode(bytes: Uint8Array): string {
+/** The 26 symbols of 16 bytes, most significant first. */
+export function encodeCodeBytes(bytes: Uint8Array): string {
   let value = 0n
   for (const b of bytes) value = (value << 8n) | BigInt(b)
   let out = ''
@@ -22,7 +23,7 @@ function group(symbols: string): string {
 }
 
 export function newVerifyCode(): string {
-  return group(encode(randomBytes(16)))
+  return group(encodeCodeBytes(randomBytes(16)))
 }
 
 /** The stored form of a code as someone typed it (any case, with or without dashes and spaces); null when it cannot be one. */

@@ -1,6 +1,7 @@
 import { idParam } from '../../../utils/route-params'
 import { readableShipment } from '../../../services/shipments/views'
 import { planShipmentZip, shipmentCertificatesZip } from '../../../services/portal/certificates-zip'
+import { ensureAllRendered } from '../../../services/certificates/render-job'
 
 /**
  * The shipment's certificates in force as one ZIP, streamed (no Content-Length); X-Tercet-Files and
@@ -17,7 +18,8 @@ export default defineEventHandler(async (event) => {
   setResponseHeader(event, 'X-Tercet-Files', String(plan.files))
   setResponseHeader(event, 'X-Tercet-Expected-Bytes', String(plan.expectedBytes))
   setResponseHeader(event, 'Cache-Control', 'no-store')
-  const stream = shipmentCertificatesZip(db, shipment.id, null)
+  // certificates not rendered yet are rendered as their page comes up, so the archive holds every one announced
+  const stream = shipmentCertificatesZip(db, shipment.id, async (d, rows) => ensureAllRendered(d, rows.map((r) => r.id), await certificateFonts()))
   // a download given up stops the reading
   event.node.res.once('close', () => { if (!event.node.res.writableFinished) stream.destroy() })
   return sendStream(event, stream)
