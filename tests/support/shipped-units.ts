@@ -15,7 +15,7 @@ export function standInPdf(label: string): Buffer {
   return Buffer.from(`%PDF-1.4\n% ${label}\n${randomBytes(64).toString('hex')}\n%%EOF\n`)
 }
 
-export async function shippedUnits(db: Knex, o: { tag: string; count: number; customer: 'QUILL' | 'SALT'; certify?: boolean; serials?: string[]; product?: string }): Promise<ShippedSet> {
+export async function shippedUnits(db: Knex, o: { tag: string; count: number; customer: 'QUILL' | 'SALT'; certify?: boolean | 'unrendered'; serials?: string[]; product?: string }): Promise<ShippedSet> {
   const product = DEMO_PRODUCTS.find((p) => p.partNumber === (o.product ?? 'VFW-T3-375'))!
   const station = await db('stations').where({ name: product.multiplier === 3 ? 'ATE-T3-01' : 'ATE-D2-01' }).first('id', 'name')
   const rand = mulberry32(o.tag.length * 7919 + o.count)
@@ -38,11 +38,13 @@ export async function shippedUnits(db: Knex, o: { tag: string; count: number; cu
       const number = `T-${o.tag}-${i + 1}`.slice(0, 40)
       const verifyCode = randomBytes(16).toString('hex').toUpperCase()
       const pdf = standInPdf(number)
+      const rendered = o.certify !== 'unrendered'
       const [id] = await db('certificates').insert({
         number, verify_code: verifyCode, unit_id: u.id, shipment_id: shipmentId, customer_id: customer.id, status: 'valid',
-        template_version: 1, snapshot: '{}', issued_at: new Date(), issued_by: quality.id, rendered_at: new Date(), byte_length: pdf.length,
+        template_version: 1, snapshot: '{}', issued_at: new Date(), issued_by: quality.id,
+        rendered_at: rendered ? new Date() : null, byte_length: rendered ? pdf.length : null,
       })
-      await db('certificate_documents').insert({ certificate_id: id, pdf })
+      if (rendered) await db('certificate_documents').insert({ certificate_id: id, pdf })
       certificates.push({ number, verifyCode, serial: u.serial })
     }
   }
