@@ -34,6 +34,7 @@ const byId = () => [
   ['certificates ZIP', `/api/shipments/${a.shipmentId}/certificates.zip`, `/api/shipments/${b.shipmentId}/certificates.zip`, '/api/shipments/999999999/certificates.zip'],
   ['measurements CSV', `/api/shipments/${a.shipmentId}/measurements.csv`, `/api/shipments/${b.shipmentId}/measurements.csv`, '/api/shipments/999999999/measurements.csv'],
   ['unit', `/api/portal/units/VFW-T3-375/${a.serials[0]}`, `/api/portal/units/VFW-T3-375/${b.serials[0]}`, `/api/portal/units/VFW-T3-375/${tag}-NONE`],
+  ['certificate PDF', `/api/certificates/${a.certificates[0]!.number}.pdf`, `/api/certificates/${b.certificates[0]!.number}.pdf`, `/api/certificates/${tag}-NONE.pdf`],
 ] as const
 
 describe('customer A against customer B\'s data', () => {
