@@ -5,25 +5,25 @@ import { findProductById } from '../database/repositories/products'
 import { invalidateLotCache } from './ingest/caches'
 import { lotReadiness } from './lot-readiness'
 import { RuleError } from './rule-error'
+import type { Signature } from '../utils/signature'
 
-export type LotAction = 'hold' | 'resume' | 'release' | 'ship'
+export type LotAction = 'hold' | 'resume' | 'release'
 
 /**
- * Where each action may start. A hold also stops a released lot from shipping; lifting a hold always
- * returns the lot to open, so it must be released again.
+ * Where each action may start. A hold also stops a released lot's units from shipping; lifting a hold always
+ * returns the lot to open, so it must be released again. A released lot becomes shipped when its units'
+ * shipments leave (services/shipments/dispatch.ts), never by hand.
  */
 const FROM: Record<LotAction, LotStatus[]> = {
   hold: ['open', 'released'],
   resume: ['on_hold'],
   release: ['open'],
-  ship: ['released'],
 }
 
 const REFUSAL: Record<LotAction, Partial<Record<LotStatus, string>>> = {
   hold: { on_hold: 'The lot is already on hold.', shipped: 'A shipped lot cannot be put on hold.' },
   resume: { open: 'The lot is not on hold.', released: 'The lot is not on hold.', shipped: 'The lot is not on hold.' },
   release: { on_hold: 'The lot is on hold: lift the hold before releasing it.', released: 'The lot is already released.', shipped: 'The lot has already shipped.' },
-  ship: { open: 'Only a released lot can ship.', on_hold: 'The lot is on hold: it cannot ship.', shipped: 'The lot has already shipped.' },
 }
 
 function view(l: LotRow) {
@@ -55,7 +55,7 @@ async function releaseDeviation(trx: Knex.Transaction, lot: LotRow, deviation: s
  * audit row back with it, so a recorded change always happened. `reason` is the hold's reason, or for a
  * release the deviation it is made under.
  */
-export async function changeLotStatus(db: Knex, actorId: number, code: string, action: LotAction, reason?: string, now = new Date()): Promise<LotStatus> {
+export async function changeLotStatus(db: Knex, actorId: number, code: string, action: LotAction, reason?: string, now = new Date(), signed?: Signature): Promise<LotStatus> {
   const status = await db.transaction(async (trx) => {
     const lot = await lockLotByCode(trx, code)
     if (!lot) throw new RuleError(404, `No lot ${code}.`)
@@ -64,12 +64,11 @@ export async function changeLotStatus(db: Knex, actorId: number, code: string, a
     let change: Parameters<typeof updateLotStatus>[2]
     if (action === 'hold') change = { status: 'on_hold', holdReason: reason ?? null, releasedAt: null, releasedBy: null }
     else if (action === 'resume') change = { status: 'open', holdReason: null }
-    else if (action === 'release') change = { status: 'released', releasedAt: now, releasedBy: actorId }
-    else change = { status: 'shipped', shippedAt: now }
+    else change = { status: 'released', releasedAt: now, releasedBy: actorId }
     await writeAudit(trx, {
       userId: actorId, action, entity: 'lot', entityId: code,
       before: view(lot),
-      after: { ...view(lot), ...change, ...(action === 'resume' ? { liftedReason: lot.holdReason } : {}), ...(deviation ? { deviation } : {}) },
+      after: { ...view(lot), ...change, ...(action === 'resume' ? { liftedReason: lot.holdReason } : {}), ...(deviation ? { deviation } : {}), ...(signed ? { signed } : {}) },
     })
     await updateLotStatus(trx, lot.id, change)
     return change.status

@@ -5,6 +5,7 @@ import { findProductById } from '../database/repositories/products'
 import { listLotUnits, lotStationNames, UNIT_SORTS, UNIT_VERDICTS, type UnitQuery, type UnitSort, type UnitVerdict } from '../database/repositories/lot-units'
 import { lotReadiness } from './lot-readiness'
 import { RuleError } from './rule-error'
+import { lotShipping } from './shipments/lot-shipping'
 
 export const MAX_PAGE_SIZE = 200
 export const MAX_CSV_ROWS = 50_000
@@ -18,10 +19,13 @@ export async function lotDetail(db: Knex, code: string) {
   const runsSinceRelease = lot.releasedAt ? await runsReceivedSince(db, lot.id, lot.releasedAt) : null
   // before a release, how many units the release check would hold back
   const readiness = lot.status === 'open' || lot.status === 'on_hold' ? lotReadiness(await unitStepsOfLot(db, lot.id), product.steps) : null
+  // a lot ships with its units' shipments: of its passing units, how many have left in a dispatched shipment
+  const shipping = await lotShipping(db, lot.id, product.steps)
   const { id: _id, productId: _p, ...rest } = lot
   return {
     ...rest,
     runsSinceRelease,
+    shipping,
     readiness: readiness ? { units: readiness.units, notReady: readiness.notReady.length } : null,
     product: { partNumber: product.partNumber, name: product.name, steps: product.steps },
     counts: { planned: lot.plannedQty, ...counts },

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
 import type { UserRecord } from '../database/repositories/users'
 import { writeAudit } from '../database/repositories/audit'
+import type { Signature } from '../utils/signature'
 import { findProductById, findProductByPartNumber } from '../database/repositories/products'
 import {
   findDraftOf, findSourceRevision, insertRevision, latestEffectiveAt, listLimitsOf, lockRevision, markApproved,
@@ -67,7 +68,7 @@ export async function checkDraftAccepts(db: Knex, revisionId: number): Promise<{
  * Approval by a quality engineer who did not write the draft. The approved revision takes effect at
  * `effectiveAt` (now by default); the one it replaces is marked superseded but stays in force until then.
  */
-export async function approveRevision(db: Knex, actor: UserRecord, revisionId: number, opts: { effectiveAt?: Date; note?: string } = {}, now = new Date()) {
+export async function approveRevision(db: Knex, actor: UserRecord, revisionId: number, opts: { effectiveAt?: Date; note?: string; signed?: Signature } = {}, now = new Date()) {
   if (actor.role !== 'quality') throw new RuleError(403, 'Only a quality engineer can approve a specification revision.')
   const result = await db.transaction(async (trx) => {
     const rev = await lockRevision(trx, revisionId)
@@ -93,7 +94,7 @@ export async function approveRevision(db: Knex, actor: UserRecord, revisionId: n
     await writeAudit(trx, {
       userId: actor.id, action: 'approve', entity: 'spec_revision', entityId: revisionId,
       before: { status: 'draft', partNumber: product.partNumber, revision: rev.revision, effectiveAt: null, supersedes: [] },
-      after: { status: 'approved', partNumber: product.partNumber, revision: rev.revision, effectiveAt, supersedes: superseded.map((s) => s.revision) },
+      after: { status: 'approved', partNumber: product.partNumber, revision: rev.revision, effectiveAt, supersedes: superseded.map((s) => s.revision), ...(opts.signed ? { signed: opts.signed } : {}) },
     })
     for (const s of superseded) {
       await writeAudit(trx, { userId: actor.id, action: 'supersede', entity: 'spec_revision', entityId: s.id, before: { status: 'approved' }, after: { status: 'superseded', by: rev.revision } })

@@ -43,6 +43,17 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/shipments/:id', allow: [...STAFF, 'customer'] },
   { method: 'POST', path: '/api/shipments', allow: SHIPPING },
   { method: 'PATCH', path: '/api/shipments/:id', allow: SHIPPING },
+  { method: 'POST', path: '/api/shipments/:id/serials/preview', allow: SHIPPING },
+  { method: 'POST', path: '/api/shipments/:id/serials', allow: SHIPPING },
+  { method: 'DELETE', path: '/api/shipments/:id/serials', allow: SHIPPING },
+  { method: 'POST', path: '/api/shipments/:id/release', allow: ['quality'] },
+  { method: 'POST', path: '/api/shipments/:id/dispatch', allow: SHIPPING },
+  { method: 'POST', path: '/api/shipments/:id/returns', allow: SHIPPING },
+  { method: 'POST', path: '/api/certificates/:number/revoke', allow: ['quality'] },
+  { method: 'POST', path: '/api/certificates/:number/reissue', allow: ['quality'] },
+  { method: 'GET', path: '/api/products/:partNumber/retest-policy', allow: ENGINEERING },
+  { method: 'PUT', path: '/api/products/:partNumber/retest-policy', allow: ENGINEERING },
+  { method: 'POST', path: '/api/units/:partNumber/:serial/dispositions', allow: ['quality'] },
 
   { method: 'GET', path: '/api/lots', allow: STAFF },
   { method: 'GET', path: '/api/units/:serial', allow: STAFF },
@@ -95,7 +106,6 @@ export const API_POLICY: Rule[] = [
   { method: 'POST', path: '/api/lots/:code/hold', allow: ['engineer', 'quality'] },
   { method: 'POST', path: '/api/lots/:code/resume', allow: ['engineer', 'quality'] },
   { method: 'POST', path: '/api/lots/:code/release', allow: ['quality'] },
-  { method: 'POST', path: '/api/lots/:code/ship', allow: ['quality'] },
 
   { method: 'GET', path: '/api/audit', allow: ['admin', 'quality'] },
 

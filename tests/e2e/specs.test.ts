@@ -331,10 +331,11 @@ describe('lots', () => {
     expect(failed.text.trim().split('\r\n').slice(1).map((l) => l.split(',')[0])).toEqual([serials.fail])
   })
 
-  it('walks hold → resume → release → ship and refuses every other transition with 409', async () => {
+  it('walks hold → resume → release and refuses every other transition with 409; there is no manual ship', async () => {
     const act = (who: keyof typeof cookies, action: string, body?: unknown) => call('POST', `/api/lots/${LOT}/${action}`, { cookie: cookies[who], body })
     expect((await act('quality', 'resume')).status).toBe(409)
-    expect((await act('quality', 'ship')).status).toBe(409)
+    // a lot ships with its units' shipments, never by hand
+    expect((await act('quality', 'ship')).status).toBe(404)
     expect((await act('engineer', 'hold', {})).status).toBe(400)
     const held = await act('engineer', 'hold', { reason: 'Harmonic rejection drifting on bay 2' })
     expect(held.status).toBe(200)
@@ -344,7 +345,6 @@ describe('lots', () => {
     const refused = await act('quality', 'release')
     expect(refused.status).toBe(409)
     expect(refused.body.detail).toMatch(/lift the hold/)
-    expect((await act('quality', 'ship')).status).toBe(409)
     expect((await act('engineer', 'release')).status).toBe(403)
     expect((await act('quality', 'resume')).body.status).toBe('open')
     // no unit of this lot went through tune, burn-in and final with passes: a plain release is refused, unit by unit
@@ -363,14 +363,13 @@ describe('lots', () => {
     // a run that arrives after the release is counted for quality to review
     expect((await post(tripleRun({ lot: LOT, serial: serials.pass0 }))).status).toBe(201)
     expect((await call('GET', `/api/lots/${LOT}`, { cookie: cookies.operator })).body.lot.runsSinceRelease).toBe(1)
-    expect((await act('quality', 'ship')).body.status).toBe('shipped')
-    expect((await act('engineer', 'hold', { reason: 'too late' })).status).toBe(409)
     expect((await act('quality', 'resume')).status).toBe(409)
     const audit = await call('GET', `/api/audit?entity=lot&entityId=${LOT}`, { cookie: cookies.quality })
-    expect(audit.body.entries.map((e: any) => e.action)).toEqual(['ship', 'release', 'resume', 'hold'])
-    expect(audit.body.entries[2].after.liftedReason).toBe('Harmonic rejection drifting on bay 2')
-    expect(audit.body.entries[1].after.deviation).toMatchObject({ reason: 'Engineering samples for the customer\'s lab, by agreement', notReady: 8, units: 8 })
-    expect([...audit.body.entries[1].after.deviation.serials].sort()).toEqual(Object.values(serials).sort())
+    expect(audit.body.entries.map((e: any) => e.action)).toEqual(['release', 'resume', 'hold'])
+    expect(audit.body.entries[1].after.liftedReason).toBe('Harmonic rejection drifting on bay 2')
+    expect(audit.body.entries[0].after.signed).toMatchObject({ method: 'recent-sign-in' })
+    expect(audit.body.entries[0].after.deviation).toMatchObject({ reason: 'Engineering samples for the customer\'s lab, by agreement', notReady: 8, units: 8 })
+    expect([...audit.body.entries[0].after.deviation.serials].sort()).toEqual(Object.values(serials).sort())
   })
 
   it('releases a lot whose every unit passed every step without a deviation', async () => {

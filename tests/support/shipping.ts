@@ -15,15 +15,14 @@ export async function makePart(part: string, steps: string[] = ['final']): Promi
   expect(draft.status, JSON.stringify(draft.body)).toBe(201)
   const limits = steps.map((step) => ({ step, name: 'output_power', ...POWER, target: 10, unit: 'dBm', required: true, rule: 'simple', defaultUncertainty: null, key: true }))
   expect((await call('PUT', `/api/revisions/${draft.body.id}/limits`, { cookie: engineer, body: { limits } })).status).toBe(200)
-  const effectiveAt = new Date(Date.now() - 30 * 86_400_000).toISOString()
-  const ok = await call('POST', `/api/revisions/${draft.body.id}/approve`, { cookie: quality, body: { effectiveAt } })
+  const ok = await call('POST', `/api/revisions/${draft.body.id}/approve`, { cookie: quality, body: {} })
   expect(ok.status, JSON.stringify(ok.body)).toBe(200)
 }
 
-let clock = Date.now() - 20 * 86_400_000
-/** Runs get increasing start times unless given one. */
+let clock = 0
+/** Runs get increasing start times from now on (after the revision took effect) unless given one. */
 export async function postRun(part: string, lot: string, serial: string, o: { power?: number; step?: string; startedAt?: number; token?: string } = {}) {
-  const at = o.startedAt ?? (clock += 2000)
+  const at = o.startedAt ?? (clock = Math.max(clock + 50, Date.now()))
   const body = {
     id: randomUUID(), serial, partNumber: part, lot, step: o.step ?? 'final',
     startedAt: new Date(at).toISOString(), finishedAt: new Date(at + 500).toISOString(),

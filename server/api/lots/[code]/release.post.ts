@@ -3,12 +3,13 @@ import { compileSchema } from '../../../utils/run-validator'
 import { changeLotStatus } from '../../../services/lot-status'
 import { underRules } from '../../../services/rule-error'
 
-const validate = compileSchema<{ deviation?: string }>(schema)
+const validate = compileSchema<{ deviation?: string; password?: string }>(schema)
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const code = getRouterParam(event, 'code', { decode: true }) ?? ''
   const body = await readValidBody(event, validate)
-  const status = await underRules(() => changeLotStatus(useDb(), actor.id, code, 'release', body.deviation?.trim() || undefined))
+  const signed = await requireSignature(event, actor, body.password)
+  const status = await underRules(() => changeLotStatus(useDb(), actor.id, code, 'release', body.deviation?.trim() || undefined, undefined, signed))
   return { code, status }
 })

@@ -4,13 +4,14 @@ import { idParam } from '../../../utils/route-params'
 import { approveRevision } from '../../../services/spec-revisions'
 import { underRules } from '../../../services/rule-error'
 
-const validate = compileSchema<{ effectiveAt?: string; note?: string }>(schema)
+const validate = compileSchema<{ effectiveAt?: string; note?: string; password?: string }>(schema)
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'revision')
   const body = await readValidBody(event, validate)
+  const signed = await requireSignature(event, actor, body.password)
   const effectiveAt = body.effectiveAt ? new Date(body.effectiveAt) : undefined
-  const approved = await underRules(() => approveRevision(useDb(), actor, id, { effectiveAt, note: body.note }))
+  const approved = await underRules(() => approveRevision(useDb(), actor, id, { effectiveAt, note: body.note, signed }))
   return { id, revision: approved.revision, status: 'approved', effectiveAt: approved.effectiveAt, superseded: approved.superseded }
 })

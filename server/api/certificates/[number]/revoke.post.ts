@@ -1,0 +1,14 @@
+import schema from '../../../../shared/schemas/certificate-revoke.schema.json'
+import { compileSchema } from '../../../utils/run-validator'
+import { revokeCertificate } from '../../../services/shipments/certificate-actions'
+import { underRules } from '../../../services/rule-error'
+
+const validate = compileSchema<{ password?: string; reason: string }>(schema)
+
+export default defineEventHandler(async (event) => {
+  const actor = requireUser(event)
+  const number = getRouterParam(event, 'number', { decode: true }) ?? ''
+  const body = await readValidBody(event, validate)
+  const signed = await requireSignature(event, actor, body.password)
+  return underRules(() => revokeCertificate(useDb(), actor.id, number, body.reason, signed))
+})
