@@ -2,8 +2,12 @@ import type { Knex } from 'knex'
 import { DEMO_LOTS, DEMO_PRODUCTS, DEMO_STATIONS, type DemoProduct } from '../../../fixtures/demo-catalogue'
 import { generateRun, mulberry32, type GeneratedRun } from '../../../fixtures/run-generator'
 import { ingestBatch } from '../../services/ingest/ingest-batch'
-import { writeAudit } from '../repositories/audit'
-import { issueCertificates } from '../../services/certificates/issue'
+import { changeLotStatus } from '../../services/lot-status'
+import { createShipment } from '../../services/shipments/drafts'
+import { addSerials } from '../../services/shipments/serials'
+import { releaseShipment } from '../../services/shipments/release'
+import { dispatchShipment } from '../../services/shipments/dispatch'
+import type { Signature } from '../../utils/signature'
 
 const HOUR = 3_600_000
 
@@ -85,45 +89,37 @@ export async function seedDemoHistory(db: Knex, now = new Date()): Promise<numbe
   return count
 }
 
+const DAY = 86_400_000
+
 /**
- * Shipments of the demo, each with its certificates issued through the issuing service: the doubler lot went to
- * Saltmarsh and has been dispatched; the tripler lot is split between both customers, released and awaiting dispatch.
+ * The demo's shipments, made as quality makes them: the lots released, drafts filled from them, released with a
+ * signature (which checks every unit and issues its certificates) and, for the doubler, dispatched, which ships
+ * its lot. The tripler lot is split between both customers; the doubler lot went whole to Saltmarsh.
  */
 async function seedDemoShipments(db: Knex, now: Date): Promise<void> {
   const quality = await db('users').where({ role: 'quality' }).first('id')
-  const day = 86_400_000
-  const plan = [
-    { lot: 'D2-2611-A', customer: 'SALT', code: 'SH-2611-001', po: 'SGS-PO-88410', skip: 0, units: 40, dispatched: true, releasedDaysAgo: 2 },
-    { lot: 'T3-2611-A', customer: 'QUILL', code: 'SH-2611-002', po: 'QRO-7731', skip: 0, units: 24, dispatched: false, releasedDaysAgo: 1 },
-    { lot: 'T3-2611-A', customer: 'SALT', code: 'SH-2611-003', po: 'SGS-PO-88522', skip: 24, units: 24, dispatched: false, releasedDaysAgo: 1 },
-  ]
-  const lotReleased = new Map<string, Date>()
-  for (const p of plan) {
-    const released = new Date(now.getTime() - p.releasedDaysAgo * day)
-    if (!lotReleased.has(p.lot) || released < lotReleased.get(p.lot)!) lotReleased.set(p.lot, released)
+  const at = (daysAgo: number) => new Date(now.getTime() - daysAgo * DAY)
+  const signed = (d: Date): Signature => ({ method: 'password', at: d.toISOString() })
+  for (const [code, daysAgo] of [['D2-2611-A', 3], ['T3-2611-A', 2]] as const) {
+    await changeLotStatus(db, quality.id, code, 'release', undefined, at(daysAgo), signed(at(daysAgo)))
   }
-  await db.transaction(async (trx) => {
-    for (const [code, released] of lotReleased) {
-      const shipped = plan.some((p) => p.lot === code && p.dispatched)
-      await trx('lots').where({ code }).update({ status: shipped ? 'shipped' : 'released', released_at: released, released_by: quality.id, shipped_at: shipped ? now : null })
-      await writeAudit(trx, { userId: quality.id, action: 'release', entity: 'lot', entityId: code, before: { status: 'open' }, after: { status: 'released' } })
-      if (shipped) await writeAudit(trx, { userId: quality.id, action: 'ship', entity: 'lot', entityId: code, before: { status: 'released' }, after: { status: 'shipped' } })
-    }
-    for (const p of plan) {
-      const lot = await trx('lots').where({ code: p.lot }).first('id', 'product_id')
-      const customer = await trx('customers').where({ code: p.customer }).first('id')
-      const released = new Date(now.getTime() - p.releasedDaysAgo * day)
-      const [shipmentId] = await trx('shipments').insert({
-        code: p.code, customer_id: customer.id, product_id: lot.product_id, status: p.dispatched ? 'dispatched' : 'released', customer_po: p.po,
-        created_at: new Date(released.getTime() - day), created_by: quality.id, released_at: released, released_by: quality.id,
-        dispatched_at: p.dispatched ? now : null, dispatched_by: p.dispatched ? quality.id : null,
-        carrier: p.dispatched ? 'Brackwater Couriers' : null, tracking_ref: p.dispatched ? 'BWC-77310-2611' : null,
-      })
-      const passing = await trx('units as u').join('unit_steps as us', 'us.unit_id', 'u.id')
-        .where({ 'u.lot_id': lot.id, 'us.step': 'final', 'us.latest_verdict': 'pass' }).orderBy('u.serial').offset(p.skip).limit(p.units).select('u.id')
-      await trx('shipment_units').insert(passing.map((u: any) => ({ shipment_id: shipmentId, unit_id: u.id, added_at: new Date(released.getTime() - day) })))
-      await issueCertificates(trx, { shipmentId: shipmentId!, issuedBy: quality.id, now: released, units: passing.map((u: any) => ({ unitId: Number(u.id) })) })
-      await writeAudit(trx, { userId: quality.id, action: 'release', entity: 'shipment', entityId: p.code, before: { status: 'draft' }, after: { status: 'released', units: passing.length } })
-    }
-  })
+  const plan = [
+    { lot: 'D2-2611-A', part: 'VFW-D2-250', customer: 'SALT', po: 'SGS-PO-88410', units: [0, Infinity], releasedDaysAgo: 2, dispatch: { carrier: 'Brackwater Couriers', trackingRef: 'BWC-77310-2611' } },
+    { lot: 'T3-2611-A', part: 'VFW-T3-375', customer: 'QUILL', po: 'QRO-7731', units: [0, 24], releasedDaysAgo: 1 },
+    { lot: 'T3-2611-A', part: 'VFW-T3-375', customer: 'SALT', po: 'SGS-PO-88522', units: [24, 48], releasedDaysAgo: 1 },
+  ]
+  for (const p of plan) {
+    const customer = await db('customers').where({ code: p.customer }).first('id')
+    const created = at(p.releasedDaysAgo + 0.5)
+    const released = at(p.releasedDaysAgo)
+    const { id } = await createShipment(db, quality.id, { customerId: customer.id, partNumber: p.part, customerPo: p.po }, created)
+    // the seed writes history: the draft dates from before its release, not from the moment the seed ran
+    await db('shipments').where({ id }).update({ created_at: created })
+    const passing = await db('units as u').join('lots as l', 'l.id', 'u.lot_id').join('unit_steps as us', 'us.unit_id', 'u.id')
+      .where({ 'l.code': p.lot, 'us.step': 'final', 'us.latest_verdict': 'pass' }).orderBy('u.serial').select('u.serial')
+    const serials = passing.map((u: any) => u.serial as string).slice(p.units[0], p.units[1])
+    await addSerials(db, quality.id, id, { lot: p.lot, serials }, created)
+    await releaseShipment(db, quality.id, id, { signed: signed(released) }, released)
+    if (p.dispatch) await dispatchShipment(db, quality.id, id, p.dispatch, at(p.releasedDaysAgo - 1))
+  }
 }
