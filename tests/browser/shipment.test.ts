@@ -45,6 +45,12 @@ describe('a shipment in the browser', () => {
     await expect.poll(() => page.locator('[data-test="shipment-status"]').textContent(), { timeout: 20_000 }).toMatch(/released/i)
     await expect.poll(() => page.locator('[data-test="shipment-units"]').textContent(), { timeout: 20_000 }).toContain('valid')
     await shot(page, 'shipment-released')
+
+    // the lot page says how many of its passing units have left
+    const dispatched = await call('POST', `/api/shipments/${id}/dispatch`, { cookie: quality, body: { carrier: 'Northwind Couriers', trackingRef: `NW-${tag}` } })
+    expect(dispatched.status).toBe(200)
+    await page.goto(`${baseUrl()}/lots/${LOT}`)
+    await expect.poll(() => page.locator('[data-test="lot-shipping"]').textContent(), { timeout: 20_000 }).toContain('2 of 3 passing units dispatched')
     expect(errors).toEqual([])
     await page.context().close()
   })
