@@ -49,13 +49,13 @@ describe('rendering certificates', () => {
     const c = set.issued[2]!
     const now = new Date()
     // the hold is a live lease of another owner
-    expect(await leaseOne(db, c.certificateId, 'first-owner', now, new Date(now.getTime() + 30_000))).toBe('busy')
+    expect((await leaseOne(db, c.certificateId, 'first-owner', now, new Date(now.getTime() + 30_000))).state).toBe('busy')
     // two hours on, the hold has run out: a first owner takes it, and when its lease has run out too, a second
     const later = new Date(now.getTime() + 7_200_000)
-    expect(await leaseOne(db, c.certificateId, 'first-owner', later, new Date(later.getTime() + 30_000))).toBe('leased')
+    expect((await leaseOne(db, c.certificateId, 'first-owner', later, new Date(later.getTime() + 30_000))).state).toBe('leased')
     const muchLater = new Date(later.getTime() + 60_000)
-    expect(await leaseOne(db, c.certificateId, 'second-owner', muchLater, new Date(muchLater.getTime() + 30_000))).toBe('leased')
-    expect(await leaseOne(db, c.certificateId, 'third-owner', muchLater, new Date(muchLater.getTime() + 1000))).toBe('busy')
+    expect((await leaseOne(db, c.certificateId, 'second-owner', muchLater, new Date(muchLater.getTime() + 30_000))).state).toBe('leased')
+    expect((await leaseOne(db, c.certificateId, 'third-owner', muchLater, new Date(muchLater.getTime() + 1000))).state).toBe('busy')
     const pdf = await renderCertificate(JSON.parse((await row(c.certificateId)).snapshot), 1, fonts)
     const sha = createHash('sha256').update(pdf).digest('hex')
     expect(await storeDocument(db, c.certificateId, 'first-owner', pdf, sha, new Date())).toBe(false)

@@ -12,6 +12,13 @@ const ref = (r: any): CertificateRef => ({
   id: r.id, number: r.number, customerId: r.customer_id, status: r.status, sha256: r.sha256 ?? null, renderedAt: r.rendered_at ?? null,
 })
 
+/** The certificate and, once rendered, its stored document, in one read. */
+export async function certificateWithDocument(db: Knex, number: string): Promise<(CertificateRef & { pdf: Buffer | null }) | undefined> {
+  const r = await db('certificates as c').leftJoin('certificate_documents as d', 'd.certificate_id', 'c.id').where('c.number', number)
+    .first('c.id', 'c.number', 'c.customer_id', 'c.status', 'c.sha256', 'c.rendered_at', 'd.pdf')
+  return r ? { ...ref(r), pdf: r.pdf ?? null } : undefined
+}
+
 export async function certificateByNumber(db: Knex, number: string): Promise<CertificateRef | undefined> {
   const r = await db('certificates').where({ number }).first('id', 'number', 'customer_id', 'status', 'sha256', 'rendered_at')
   return r ? ref(r) : undefined
@@ -30,20 +37,24 @@ export async function leaseUnrendered(db: Knex, owner: string, now: Date, until:
 }
 
 export type LeaseState = 'rendered' | 'leased' | 'busy' | 'missing'
+export type Lease = { state: LeaseState; templateVersion?: number; snapshot?: string }
 
 /**
- * Leases one certificate for rendering on demand, regardless of an error backoff (someone is waiting for it);
- * 'busy' while another owner's lease is live.
+ * Leases one certificate for rendering on demand, regardless of an error backoff (someone is waiting for it), and
+ * reads its snapshot in the same round trip; 'busy' while another owner's lease is live.
  */
-export async function leaseOne(db: Knex, id: number, owner: string, now: Date, until: Date): Promise<LeaseState> {
-  return db.transaction(async (trx) => {
-    const r = await trx('certificates').where({ id }).forUpdate().first('rendered_at', 'render_lease_owner', 'render_lease_until')
-    if (!r) return 'missing'
-    if (r.rendered_at) return 'rendered'
-    if (r.render_lease_owner && r.render_lease_until && new Date(r.render_lease_until).getTime() >= now.getTime()) return 'busy'
-    await trx('certificates').where({ id }).update({ render_lease_owner: owner, render_lease_until: until })
-    return 'leased'
-  })
+export async function leaseOne(db: Knex, id: number, owner: string, now: Date, until: Date): Promise<Lease> {
+  const [results] = await db.raw(
+    `UPDATE certificates SET render_lease_owner = ?, render_lease_until = ?
+       WHERE id = ? AND rendered_at IS NULL AND (render_lease_owner IS NULL OR render_lease_until IS NULL OR render_lease_until < ?);
+     SELECT ROW_COUNT() AS leased;
+     SELECT rendered_at, template_version, IF(render_lease_owner = ?, snapshot, NULL) AS snapshot FROM certificates WHERE id = ?`,
+    [owner, until, id, now, owner, id])
+  const leased = Number((results as any[])[1][0].leased) === 1
+  const r = (results as any[])[2][0]
+  if (!r) return { state: 'missing' }
+  if (leased) return { state: 'leased', templateVersion: r.template_version, snapshot: r.snapshot }
+  return { state: r.rendered_at ? 'rendered' : 'busy' }
 }
 
 export async function snapshotsOf(db: Knex, ids: readonly number[]): Promise<{ id: number; templateVersion: number; snapshot: string }[]> {
@@ -52,15 +63,21 @@ export async function snapshotsOf(db: Knex, ids: readonly number[]): Promise<{ i
   return rows.map((r: any) => ({ id: r.id, templateVersion: r.template_version, snapshot: r.snapshot }))
 }
 
-/** Stores the document if `owner` still holds the lease; false when it does not (the lease ran out and another took it). */
+/**
+ * Stores the document if `owner` still holds the lease, in one transaction with the row's hash and length; false
+ * when it does not (the lease ran out and another took it).
+ */
 export async function storeDocument(db: Knex, id: number, owner: string, pdf: Buffer, sha256: string, now: Date): Promise<boolean> {
   return db.transaction(async (trx) => {
-    const [result] = await trx.raw(
+    const [results] = await trx.raw(
       `UPDATE certificates SET sha256 = ?, byte_length = ?, rendered_at = ?, render_lease_owner = NULL, render_lease_until = NULL, render_error = NULL
-       WHERE id = ? AND render_lease_owner = ? AND rendered_at IS NULL`, [sha256, pdf.length, now, id, owner])
-    if (Number((result as any).affectedRows) !== 1) return false
-    await trx('certificate_documents').insert({ certificate_id: id, pdf })
-    return true
+         WHERE id = ? AND render_lease_owner = ? AND rendered_at IS NULL;
+       INSERT INTO certificate_documents (certificate_id, pdf) SELECT ?, ? FROM DUAL WHERE ROW_COUNT() = 1`,
+      [sha256, pdf.length, now, id, owner, id, pdf])
+    const updated = Number((results as any[])[0].affectedRows) === 1
+    const inserted = Number((results as any[])[1].affectedRows) === 1
+    if (updated !== inserted) throw new Error('certificate document and its row disagree')
+    return updated
   })
 }
 

@@ -1,7 +1,7 @@
 // The stored certificate document for a download, and what the public verification states.
 import type { Knex } from 'knex'
 import type { CertificateVerification } from '../../../shared/types/certificate'
-import { certificateByNumber, documentBytes, verificationByCode } from '../../database/repositories/certificate-documents'
+import { certificateWithDocument, verificationByCode } from '../../database/repositories/certificate-documents'
 import { problem } from '../../utils/problem'
 import { RuleError } from '../rule-error'
 import type { CertificateFonts } from './fonts'
@@ -15,19 +15,20 @@ export type CertificateFile = { number: string; sha256: string; pdf: Buffer }
  * certificates; another customer's number reads exactly like a number that does not exist.
  */
 export async function certificateDocument(db: Knex, fonts: () => Promise<CertificateFonts>, number: string, customerId: number | null): Promise<CertificateFile> {
-  const cert = number.length <= 40 ? await certificateByNumber(db, number) : undefined
+  const cert = number.length <= 40 ? await certificateWithDocument(db, number) : undefined
   if (!cert || (customerId !== null && cert.customerId !== customerId)) throw new RuleError(404, 'No certificate with this number.')
-  if (!cert.renderedAt) {
-    try {
-      await ensureRendered(db, cert.id, await fonts())
-    } catch (e) {
-      if (e instanceof RenderUnavailable) throw problem(503, e.message, { headers: { 'Retry-After': '2' } })
-      throw e
-    }
+  if (cert.pdf && cert.sha256) return { number: cert.number, sha256: cert.sha256, pdf: cert.pdf }
+  try {
+    const mine = await ensureRendered(db, cert.id, await fonts())
+    if (mine) return { number: cert.number, ...mine }
+  } catch (e) {
+    if (e instanceof RenderUnavailable) throw problem(503, e.message, { headers: { 'Retry-After': '2' } })
+    throw e
   }
-  const [stored, pdf] = await Promise.all([certificateByNumber(db, number), documentBytes(db, cert.id)])
-  if (!stored?.sha256 || !pdf) throw problem(503, 'The certificate document is being prepared; retry shortly.', { headers: { 'Retry-After': '2' } })
-  return { number: stored.number, sha256: stored.sha256, pdf }
+  // stored by another render meanwhile
+  const stored = await certificateWithDocument(db, number)
+  if (!stored?.pdf || !stored.sha256) throw problem(503, 'The certificate document is being prepared; retry shortly.', { headers: { 'Retry-After': '2' } })
+  return { number: stored.number, sha256: stored.sha256, pdf: stored.pdf }
 }
 
 const UNKNOWN = 'No certificate has this verification code.'

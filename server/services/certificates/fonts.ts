@@ -70,6 +70,37 @@ export function woffToSfnt(woff: Buffer): Buffer {
   return Buffer.concat(parts)
 }
 
+// contextual alternates and ligatures cost most of a document's shaping time and add nothing to a record of numbers;
+// kerning stays
+const FEATURES = { calt: false, liga: false, clig: false, rlig: false, ccmp: false, locl: false, mark: false, mkmk: false, rclt: false }
+const CACHED_RUNS = 20_000
+
+type Position = Record<string, number>
+type Run = { glyphs: unknown[]; positions: Position[] }
+
+/**
+ * Shaping by text, kept across documents: the same words (labels, units, dates) recur in every certificate. pdfkit
+ * scales the positions it is given in place, so each call gets its own copies of them.
+ */
+function cachedLayout(layout: (text: unknown, features: unknown) => Run): (text: unknown, features?: unknown) => unknown {
+  const runs = new Map<string, { glyphs: unknown[]; positions: Position[] }>()
+  return (text) => {
+    const key = String(text)
+    let run = runs.get(key)
+    if (!run) {
+      const shaped = layout(key, FEATURES)
+      run = { glyphs: shaped.glyphs, positions: shaped.positions.map((p) => ({ xAdvance: p.xAdvance!, yAdvance: p.yAdvance!, xOffset: p.xOffset!, yOffset: p.yOffset! })) }
+      if (runs.size >= CACHED_RUNS) runs.clear()
+      runs.set(key, run)
+    }
+    const positions = run.positions.map((p) => ({ ...p }))
+    return {
+      glyphs: run.glyphs, positions,
+      get advanceWidth() { let w = 0; for (const p of positions) w += p.xAdvance!; return w },
+    }
+  }
+}
+
 export type ParsedFonts = Record<keyof CertificateFonts, ReturnType<typeof fontkit.create>>
 const parsed = new WeakMap<CertificateFonts, ParsedFonts>()
 
@@ -82,10 +113,7 @@ export function parsedFonts(fonts: CertificateFonts): ParsedFonts {
   if (!p) {
     const open = (b: Buffer) => {
       const font = fontkit.create(woffToSfnt(b))
-      // contextual alternates and ligatures cost most of a document's time in shaping and add nothing to a record of
-      // numbers; kerning stays
-      const layout = font.layout.bind(font)
-      font.layout = (text: unknown, _features: unknown, ...rest: unknown[]) => layout(text, { calt: false, liga: false, clig: false, rlig: false, ccmp: false, locl: false, mark: false, mkmk: false, rclt: false }, ...rest)
+      font.layout = cachedLayout(font.layout.bind(font))
       return font
     }
     p = { sans: open(fonts.sans), sansBold: open(fonts.sansBold), mono: open(fonts.mono), monoBold: open(fonts.monoBold) }

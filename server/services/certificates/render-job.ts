@@ -25,9 +25,12 @@ export function renderBackoffMs(attempts: number): number {
   return Math.min(3_600_000, 10_000 * 2 ** Math.max(0, attempts - 1))
 }
 
-async function renderAndStore(db: Knex, id: number, owner: string, fonts: CertificateFonts): Promise<boolean> {
-  const [row] = await snapshotsOf(db, [id])
-  if (!row) return false
+export type StoredDocument = { pdf: Buffer; sha256: string }
+
+/** Renders a leased certificate and stores it; the document when this owner stored it, else null. */
+async function renderAndStore(db: Knex, id: number, owner: string, fonts: CertificateFonts, leased?: { templateVersion: number; snapshot: string }): Promise<StoredDocument | null> {
+  const row = leased ?? (await snapshotsOf(db, [id]))[0]
+  if (!row) return null
   let pdf: Buffer
   try {
     pdf = await renderCertificate(JSON.parse(row.snapshot) as CertificateSnapshot, row.templateVersion, fonts)
@@ -35,7 +38,8 @@ async function renderAndStore(db: Knex, id: number, owner: string, fonts: Certif
     await recordRenderError(db, id, owner, String((e as Error)?.message ?? e), (n) => new Date(Date.now() + renderBackoffMs(n)))
     throw e
   }
-  return storeDocument(db, id, owner, pdf, createHash('sha256').update(pdf).digest('hex'), new Date())
+  const sha256 = createHash('sha256').update(pdf).digest('hex')
+  return (await storeDocument(db, id, owner, pdf, sha256, new Date())) ? { pdf, sha256 } : null
 }
 
 /** Renders up to `limit` certificates that wait for their document; returns how many it stored. */
@@ -56,19 +60,20 @@ export class RenderUnavailable extends Error {}
 
 /**
  * Makes sure the certificate's document is stored: renders it now unless it is stored already, or waits for the
- * render another process holds the lease of.
+ * render another process holds the lease of. Returns the document when this call stored it, null when another did.
  */
-export async function ensureRendered(db: Knex, id: number, fonts: CertificateFonts): Promise<void> {
+export async function ensureRendered(db: Knex, id: number, fonts: CertificateFonts): Promise<StoredDocument | null> {
   const deadline = Date.now() + WAIT_MS
   for (let wait = 20; ; wait = Math.min(wait * 2, 250)) {
     const owner = newOwner()
     const now = new Date()
-    const state = await leaseOne(db, id, owner, now, new Date(now.getTime() + LEASE_MS))
-    if (state === 'rendered') return
-    if (state === 'missing') throw new Error(`certificate ${id} does not exist`)
-    if (state === 'leased') {
-      await renderAndStore(db, id, owner, fonts)
-      continue // stored by us, or by another whose lease we outlived: the next look says so
+    const lease = await leaseOne(db, id, owner, now, new Date(now.getTime() + LEASE_MS))
+    if (lease.state === 'rendered') return null
+    if (lease.state === 'missing') throw new Error(`certificate ${id} does not exist`)
+    if (lease.state === 'leased') {
+      const stored = await renderAndStore(db, id, owner, fonts, { templateVersion: lease.templateVersion!, snapshot: lease.snapshot! })
+      if (stored) return stored
+      continue // stored by another whose lease we outlived: the next look says so
     }
     if (Date.now() > deadline) throw new RenderUnavailable('The certificate document is being prepared; retry shortly.')
     await new Promise((r) => setTimeout(r, wait))

@@ -335,7 +335,10 @@ function qr(doc: Doc, text: string, x: number, y: number, size: number) {
 export function renderCertificate(s: CertificateSnapshot, templateVersion: number, fonts: CertificateFonts = fontsFromPackages()): Promise<Buffer> {
   if (templateVersion !== TEMPLATE_VERSION) return Promise.reject(new Error(`template version ${templateVersion} is not known to this renderer`))
   const at = new Date(s.issuedAt)
+  const f = parsedFonts(fonts)
   const doc = new PDFDocument({
+    // the default font is the embedded sans, so pdfkit never loads a standard font
+    font: f.sans as any,
     size: 'A4', margin: 0, autoFirstPage: false, compress: true, bufferPages: true,
     info: {
       Title: `Certificate of conformance ${s.number}`, Author: s.maker.name, Subject: `${s.product.partNumber} serial ${s.unit.serial}`,
@@ -344,7 +347,6 @@ export function renderCertificate(s: CertificateSnapshot, templateVersion: numbe
   })
   // the file identifier pdfkit would derive is pinned to the certificate, so nothing about the moment of rendering enters the file
   ;(doc as any)._id = createHash('sha256').update(`${s.number}\n${TEMPLATE_VERSION}`).digest().subarray(0, 16)
-  const f = parsedFonts(fonts)
   for (const name of ['sans', 'sansBold', 'mono', 'monoBold'] as const) doc.registerFont(name, f[name] as any)
 
   const chunks: Buffer[] = []
