@@ -6,14 +6,19 @@ export const CODE_ALPHABET = '23456789ABCDEFGHJKLMNPQRSTUVWXYZ'
 /** 128 bits need 26 symbols of 5 bits (130 bits; the top two are always zero). */
 export const CODE_SYMBOLS = 26
 
-/** The 26 symbols of 16 bytes, most significant first. */
+/** The 26 symbols of 16 bytes, most significant first (the 130 bits read with two zero bits in front). */
 export function encodeCodeBytes(bytes: Uint8Array): string {
-  let value = 0n
-  for (const b of bytes) value = (value << 8n) | BigInt(b)
   let out = ''
-  for (let i = 0; i < CODE_SYMBOLS; i++) {
-    out = CODE_ALPHABET[Number(value & 31n)] + out
-    value >>= 5n
+  let acc = 0
+  let bits = 2
+  for (const b of bytes) {
+    acc = (acc << 8) | b
+    bits += 8
+    while (bits >= 5) {
+      bits -= 5
+      out += CODE_ALPHABET[(acc >> bits) & 31]
+    }
+    acc &= (1 << bits) - 1
   }
   return out
 }
