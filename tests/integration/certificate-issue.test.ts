@@ -43,6 +43,9 @@ describe('issuing certificates', () => {
     expect(s.unit.serial).toBe(unit.serial)
     expect(s.test.runId).toBe(unit.finalRunUuid)
     expect(s.test.station).toBe('ATE-T3-01')
+    // text beyond ASCII survives the trip into the row
+    expect(s.product.name).toBe(TRIPLER.name)
+    expect(TRIPLER.name).toContain('→')
     expect(s.customer.code).toBe('QUILL')
     expect(s.shipment.customerPo).toBe(`PO-${tag}`)
     expect(s.verifyUrl).toMatch(new RegExp(`/verify/${c.verifyCode}$`))

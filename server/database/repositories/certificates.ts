@@ -57,18 +57,21 @@ export async function insertCertificates(trx: Knex.Transaction, rows: readonly N
   const flush = async () => {
     if (!batch.length) return
     const values: any[] = []
-    for (const r of batch) values.push(r.number, r.verifyCode, r.unitId, r.shipmentId, r.customerId, 'valid', r.templateVersion, r.snapshot, r.issuedAt, r.issuedBy, r.supersedesId)
+    // the snapshot travels as bytes (a hex literal, written natively) rather than as an escaped string, whose
+    // character-by-character escaping cost more than the rest of an issue
+    for (const r of batch) values.push(r.number, r.verifyCode, r.unitId, r.shipmentId, r.customerId, 'valid', r.templateVersion, Buffer.from(r.snapshot, 'utf8'), r.issuedAt, r.issuedBy, r.supersedesId)
     const [returned] = await trx.raw(
       `INSERT INTO certificates (number, verify_code, unit_id, shipment_id, customer_id, status, template_version, snapshot, issued_at, issued_by, supersedes_id)
-       VALUES ${batch.map(() => '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').join(', ')} RETURNING id, number`, values)
+       VALUES ${batch.map(() => '(?, ?, ?, ?, ?, ?, ?, CONVERT(? USING utf8mb4), ?, ?, ?)').join(', ')} RETURNING id, number`, values)
     for (const r of returned as any[]) ids.set(r.number, r.id)
     batch = []
     bytes = 0
   }
   for (const r of rows) {
-    if (bytes + r.snapshot.length > INSERT_BYTES) await flush()
+    const size = 2 * Buffer.byteLength(r.snapshot) + 200
+    if (bytes + size > INSERT_BYTES) await flush()
     batch.push(r)
-    bytes += r.snapshot.length + 200
+    bytes += size
   }
   await flush()
   return ids
