@@ -25,6 +25,7 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/shipments/:id/measurements.csv', allow: [...STAFF, 'customer'] },
   // a customer reads only its own customer's certificates (404 for any other number)
   { method: 'GET', path: '/api/certificates/:number.pdf', allow: [...STAFF, 'customer'] },
+  { method: 'GET', path: '/api/certificate-notices', allow: ['admin', 'quality'] },
   { method: 'GET', path: '/api/verify/:code', allow: 'public' },
 
   { method: 'GET', path: '/api/users', allow: ['admin'] },

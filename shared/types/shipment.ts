@@ -24,7 +24,8 @@ export type ShipmentListItem = {
 
 export type ShipmentList = { shipments: ShipmentListItem[]; total: number; page: number; pageSize: number }
 
-export type ShipmentUnitCertificate = { number: string; status: CertificateStatus; issuedAt: string; rendered: boolean }
+/** `retested`: a retest after issue touched it (revoked it, or passed and waits for reissue) */
+export type ShipmentUnitCertificate = { number: string; status: CertificateStatus; issuedAt: string; rendered: boolean; retested: boolean }
 
 export type ShipmentUnit = {
   partNumber: string

@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { baseUrl, call, signIn } from '../support/http'
-import { launchBrowser, shot, signInPage } from '../support/browser'
+import { hydrated, launchBrowser, shot, signInPage } from '../support/browser'
 import { stationTokens, uniqueSerial } from '../support/stations'
 
 let browser: Browser
@@ -40,6 +40,7 @@ describe('a limit change drafted by an engineer and approved by quality', () => 
 
     const engineer = await signInPage(browser, baseUrl(), 'engineer@tercet.test')
     await engineer.goto(`${baseUrl()}/specs/${PART}`)
+    await hydrated(engineer)
     await engineer.getByRole('button', { name: 'New revision' }).click()
     await engineer.waitForURL(/\/specs\/revisions\/\d+/)
     const draftUrl = engineer.url()
@@ -52,6 +53,7 @@ describe('a limit change drafted by an engineer and approved by quality', () => 
 
     const quality = await signInPage(browser, baseUrl(), 'quality@tercet.test')
     await quality.goto(draftUrl)
+    await hydrated(quality)
     await quality.getByRole('button', { name: /Approve revision/ }).click()
     await expect.poll(() => quality.locator('[data-test="revision-status"]').textContent(), { timeout: 15_000 }).toMatch(/approved/i)
     await shot(quality, 'spec-approved-quality')

@@ -20,6 +20,7 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'GET /api/shipments/:id/certificates.zip', sample: '/api/shipments/999999/certificates.zip', allow: ALL },
   { route: 'GET /api/shipments/:id/measurements.csv', sample: '/api/shipments/999999/measurements.csv', allow: ALL },
   { route: 'GET /api/certificates/:number.pdf', sample: '/api/certificates/NO-SUCH-CERT.pdf', allow: ALL },
+  { route: 'GET /api/certificate-notices', allow: ['admin', 'quality'] },
   { route: 'GET /api/verify/:code', sample: '/api/verify/NO-SUCH-CODE', allow: 'public' },
   { route: 'GET /api/users', allow: ['admin'] },
   { route: 'POST /api/users', allow: ['admin'] },

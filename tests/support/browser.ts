@@ -29,3 +29,8 @@ export async function signInPage(browser: Browser, baseUrl: string, email: strin
 export function shot(page: Page, name: string) {
   return page.screenshot({ path: resolve(ARTIFACTS, `${name}.png`), fullPage: true })
 }
+
+/** Waits until the page's Vue app is mounted: a click before that lands on server-rendered HTML that nothing listens to. */
+export async function hydrated(page: Page): Promise<void> {
+  await page.waitForFunction(() => !!(document.querySelector('#__nuxt') as { __vue_app__?: unknown } | null)?.__vue_app__, undefined, { timeout: 30_000 })
+}

@@ -62,14 +62,14 @@ export async function stepStatesOf(db: Knex, unitIds: readonly number[]): Promis
   return out
 }
 
-export type UnitCertificate = { id: number; unitId: number; number: string; status: 'valid' | 'superseded' | 'revoked'; issuedAt: string; rendered: boolean }
+export type UnitCertificate = { id: number; unitId: number; number: string; status: 'valid' | 'superseded' | 'revoked'; issuedAt: string; rendered: boolean; retested: boolean }
 
 /** The newest certificate of each unit in the given shipment. */
 export async function certificatesInShipment(db: Knex, shipmentId: number, unitIds: readonly number[]): Promise<Map<number, UnitCertificate>> {
   const rows = await inSlices(unitIds, (ids) => db('certificates').where({ shipment_id: shipmentId }).whereIn('unit_id', ids)
-    .orderBy('issued_at').orderBy('id').select('id', 'unit_id', 'number', 'status', 'issued_at', 'rendered_at'))
+    .orderBy('issued_at').orderBy('id').select('id', 'unit_id', 'number', 'status', 'issued_at', 'rendered_at', 'retest_run_id'))
   const out = new Map<number, UnitCertificate>()
-  for (const r of rows as any[]) out.set(r.unit_id, { id: r.id, unitId: r.unit_id, number: r.number, status: r.status, issuedAt: iso(r.issued_at)!, rendered: !!r.rendered_at })
+  for (const r of rows as any[]) out.set(r.unit_id, { id: r.id, unitId: r.unit_id, number: r.number, status: r.status, issuedAt: iso(r.issued_at)!, rendered: !!r.rendered_at, retested: r.retest_run_id !== null })
   return out
 }
 

@@ -70,7 +70,7 @@ export async function shipmentDetail(db: Knex, reader: Reader, id: number, raw: 
       partNumber: m.partNumber, productName: m.productName, serial: m.serial, lot: m.lot,
       latestVerdict: overallVerdict(m.steps, st), finalTestedAt: last?.finishedAt ?? null,
       calibrationLapsed: st.some((x) => x.calibrationLapsed), addedAt: m.addedAt, returnedAt: m.returnedAt,
-      certificate: c ? { number: c.number, status: c.status, issuedAt: c.issuedAt, rendered: c.rendered } : null,
+      certificate: c ? { number: c.number, status: c.status, issuedAt: c.issuedAt, rendered: c.rendered, retested: c.retested } : null,
     }
   })
   const { productId: _p, customerActive: _a, ...header } = s

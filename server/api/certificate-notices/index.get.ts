@@ -1,0 +1,3 @@
+import { noticesForQuality } from '../../services/certificates/notices'
+
+export default defineEventHandler(async () => noticesForQuality(useDb()))
