@@ -245,9 +245,9 @@ function phaseNoisePlot(doc: Doc, s: CertificateSnapshot, y: number): number {
   }
   for (let e = e0; e <= e1; e++) {
     doc.moveTo(px(10 ** e), box.y).lineTo(px(10 ** e), box.y + box.h).stroke()
-    doc.text(logFrequencyLabel(e), px(10 ** e) - 25, box.y + box.h + 3, { width: 50, align: 'center', lineBreak: false })
+    doc.text(logFrequencyLabel(e), px(10 ** e) - 25, box.y + box.h + 6, { width: 50, align: 'center', lineBreak: false })
   }
-  doc.font('sans').fontSize(6.5).fillColor(C.faint).text('offset from carrier (log scale)', box.x, box.y + box.h + 12, { width: box.w, align: 'center', lineBreak: false })
+  doc.font('sans').fontSize(6.5).fillColor(C.faint).text('offset from carrier (log scale)', box.x, box.y + box.h + 15, { width: box.w, align: 'center', lineBreak: false })
   doc.save().rotate(-90, { origin: [PAGE.m + 2, box.y + box.h / 2] })
     .text('dBc/Hz', PAGE.m + 2 - 30, box.y + box.h / 2 - 3, { width: 60, align: 'center', lineBreak: false }).restore()
 
@@ -271,7 +271,7 @@ function phaseNoisePlot(doc: Doc, s: CertificateSnapshot, y: number): number {
 
   // legend
   let lx = box.x
-  const ly = box.y + box.h + 24
+  const ly = box.y + box.h + 27
   const entry = (draw: (x: number) => void, text: string) => {
     draw(lx)
     doc.font('sans').fontSize(7).fillColor(C.ink).text(text, lx + 18, ly - 3, { lineBreak: false })
@@ -289,7 +289,7 @@ function phaseNoisePlot(doc: Doc, s: CertificateSnapshot, y: number): number {
 }
 
 // the standard's name opens the paragraph, so a line never breaks inside it
-const CAUTION = 'ILAC-G8:09/2019 decision rules. Conformance is stated for the conditions given above, at the time of test, '
+const CAUTION = 'ILAC-G8:09/2019 sets out the decision rules used here. Conformance is stated for the conditions given above, at the time of test, '
   + 'under the decision rule given for each characteristic: a simple acceptance compares the measured value with the limit; '
   + 'a guarded rule accepts only values inside the limit by the stated guard band. The customer\'s incoming acceptance '
   + 'criteria and applicable local requirements govern the use of this unit. RF outputs must be terminated, and the unit '
