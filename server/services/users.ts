@@ -3,6 +3,7 @@ import type { Role } from '../../shared/utils/roles'
 import { findUserById, insertUser, updateUser, type UserRecord } from '../database/repositories/users'
 import { writeAudit } from '../database/repositories/audit'
 import { findCustomer } from '../database/repositories/customers'
+import { passwordProblem } from '../../shared/utils/password-rule'
 
 export type NewUser = { email: string; name: string; role: Role; customerId?: number | null; password: string }
 export type UserChange = Partial<{ name: string; role: Role; customerId: number | null; disabled: boolean; password: string }>
@@ -22,12 +23,19 @@ async function checkCustomerExists(db: Knex, customerId: number | null | undefin
   if (customerId && !await findCustomer(db, customerId)) throw new UserRuleError('No such customer.', '/customerId')
 }
 
+/** Every password set here follows the one rule (shared/utils/password-rule.ts). */
+export function checkPasswordRule(password: string, owner: { email: string; name: string }): void {
+  const why = passwordProblem(password, owner)
+  if (why) throw new UserRuleError(why, '/password')
+}
+
 function publicView(u: UserRecord | undefined) {
   return u && { id: u.id, email: u.email, name: u.name, role: u.role, customerId: u.customerId, disabled: u.disabled }
 }
 
 export async function createUser(db: Knex, actorId: number, input: NewUser, hash: Hasher): Promise<UserRecord> {
   checkCustomerLink(input.role, input.customerId)
+  checkPasswordRule(input.password, input)
   const passwordHash = await hash(input.password)
   return db.transaction(async (trx) => {
     await checkCustomerExists(trx, input.customerId)
@@ -39,6 +47,10 @@ export async function createUser(db: Knex, actorId: number, input: NewUser, hash
 }
 
 export async function changeUser(db: Knex, actorId: number, id: number, change: UserChange, hash: Hasher): Promise<UserRecord | undefined> {
+  if (change.password !== undefined) {
+    const current = await findUserById(db, id)
+    if (current) checkPasswordRule(change.password, { email: current.email, name: change.name ?? current.name })
+  }
   const passwordHash = change.password ? await hash(change.password) : undefined
   return db.transaction(async (trx) => {
     const before = await findUserById(trx, id)
