@@ -16,6 +16,7 @@ import * as m014 from './migrations/20261202_014_calibration_history'
 import * as m015 from './migrations/20261202_015_measurement_offset'
 import * as m016 from './migrations/20261202_016_shipments_certificates'
 import * as m018 from './migrations/20261202_018_shipment_part'
+import * as m020 from './migrations/20261202_020_mail_outbox'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -38,6 +39,7 @@ const migrations: Record<string, Migration> = {
   '20261202_015_measurement_offset': m015,
   '20261202_016_shipments_certificates': m016,
   '20261202_018_shipment_part': m018,
+  '20261202_020_mail_outbox': m020,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {
