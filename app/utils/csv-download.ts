@@ -1,14 +1,7 @@
 import { toCsvDocument, type CsvValue } from '#shared/utils/csv'
+import { saveBlob } from './save-blob'
 
 /** Saves rows as a CSV file in the browser (values as the API sent them, not as rounded on screen). */
 export function downloadCsv(filename: string, header: string[], rows: CsvValue[][]): void {
-  const blob = new Blob([toCsvDocument(header, rows)], { type: 'text/csv;charset=utf-8' })
-  const url = URL.createObjectURL(blob)
-  const a = document.createElement('a')
-  a.href = url
-  a.download = filename
-  document.body.appendChild(a)
-  a.click()
-  a.remove()
-  setTimeout(() => URL.revokeObjectURL(url), 1000)
+  saveBlob(new Blob([toCsvDocument(header, rows)], { type: 'text/csv;charset=utf-8' }), filename)
 }

@@ -1,5 +1,6 @@
 // Downloads a streamed file (no Content-Length) while counting what has arrived, then saves it through a blob link.
 // The server announces the number of files and about how many bytes to expect, which gives the progress.
+import { saveBlob } from '~/utils/save-blob'
 
 export type DownloadState = { phase: 'idle' | 'loading' | 'done' | 'error'; received: number; expected: number; files: number; message: string | null }
 
@@ -25,7 +26,7 @@ export function useStreamedDownload() {
         parts.push(value)
         state.received += value.byteLength
       }
-      save(new Blob(parts as BlobPart[], { type: r.headers.get('content-type') ?? 'application/octet-stream' }), filename)
+      saveBlob(new Blob(parts as BlobPart[], { type: r.headers.get('content-type') ?? 'application/octet-stream' }), filename)
       state.phase = 'done'
     } catch (e) {
       state.phase = 'error'
@@ -35,13 +36,3 @@ export function useStreamedDownload() {
   return { state, fraction, start }
 }
 
-function save(blob: Blob, filename: string) {
-  const url = URL.createObjectURL(blob)
-  const a = document.createElement('a')
-  a.href = url
-  a.download = filename
-  document.body.appendChild(a)
-  a.click()
-  a.remove()
-  setTimeout(() => URL.revokeObjectURL(url), 1000)
-}
