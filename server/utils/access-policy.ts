@@ -62,6 +62,8 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/stations', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/stations', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/stations/:id', allow: ['admin', 'engineer'] },
+  { method: 'PUT', path: '/api/stations/:id/owner', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/stations/owner-candidates', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'DELETE', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/stations/:id/calibration', allow: ['admin', 'engineer'] },

@@ -4,7 +4,7 @@ export type StationToken = { id: number; hint: string; createdAt: string; create
 export type StationInstrument = { id: number; assetNumber: string; kind: string; model: string; serial: string; calibrationDue: string | null; state: CalibrationState }
 export type StationDetail = {
   id: number; name: string; location: string | null; description: string | null; lastSeenAt: string | null; createdAt: string
-  runsToday: number; lastVerdict: 'pass' | 'fail' | null; activeTokenHint: string | null
+  runsToday: number; lastVerdict: 'pass' | 'fail' | null; activeTokenHint: string | null; owner: { id: number; name: string } | null
   instruments: StationInstrument[]; calibrationState: CalibrationState | null; tokens: StationToken[]
 }
 

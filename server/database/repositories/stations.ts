@@ -10,6 +10,7 @@ export type StationRow = {
   runsToday: number
   lastVerdict: 'pass' | 'fail' | null
   activeTokenHint: string | null
+  owner: { id: number; name: string } | null
 }
 
 export type TokenRow = { id: number; hint: string; createdAt: Date; createdBy: string | null; revokedAt: Date | null; lastUsedAt: Date | null }
@@ -21,7 +22,8 @@ export function utcMidnight(now: Date): Date {
 
 function base(db: Knex, now: Date) {
   return db('stations as s').select(
-    's.id', 's.name', 's.location', 's.description', 's.last_seen_at', 's.created_at',
+    's.id', 's.name', 's.location', 's.description', 's.last_seen_at', 's.created_at', 's.owner_user_id',
+    db('users as o').select('o.name').whereRaw('o.id = s.owner_user_id').as('owner_name'),
     db('test_runs as r').count('*').whereRaw('r.station_id = s.id').where('r.finished_at', '>=', utcMidnight(now)).as('runs_today'),
     db('test_runs as r').select('r.server_verdict').whereRaw('r.station_id = s.id')
       .orderBy('r.finished_at', 'desc').orderBy('r.id', 'desc').limit(1).as('last_verdict'),
@@ -35,6 +37,7 @@ function toStation(r: any): StationRow {
     id: r.id, name: r.name, location: r.location ?? null, description: r.description ?? null,
     lastSeenAt: r.last_seen_at ?? null, createdAt: r.created_at, runsToday: Number(r.runs_today ?? 0),
     lastVerdict: r.last_verdict ?? null, activeTokenHint: r.active_hint ?? null,
+    owner: r.owner_user_id ? { id: Number(r.owner_user_id), name: r.owner_name } : null,
   }
 }
 
@@ -70,4 +73,13 @@ export async function listTokens(db: Knex, stationId: number): Promise<TokenRow[
 export async function activeTokenHints(db: Knex, stationId: number): Promise<string[]> {
   const rows = await db('station_tokens').where({ station_id: stationId }).whereNull('revoked_at').orderBy('id').select('hint')
   return rows.map((r: any) => r.hint)
+}
+
+export async function updateStationOwner(trx: Knex.Transaction, id: number, ownerUserId: number | null): Promise<void> {
+  await trx('stations').where({ id }).update({ owner_user_id: ownerUserId })
+}
+
+/** Signed-in staff who may own a station, by name. */
+export async function stationOwnerCandidates(db: Knex): Promise<{ id: number; name: string; role: string }[]> {
+  return db('users').whereIn('role', ['admin', 'quality', 'engineer', 'operator']).where({ disabled: false }).orderBy('name').select('id', 'name', 'role')
 }

@@ -1,0 +1,3 @@
+import { ownerCandidates } from '../../services/station-owner'
+
+export default defineEventHandler(async () => ownerCandidates(useDb()))
