@@ -18,6 +18,7 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/_auth/session', allow: 'public' },
   { method: 'DELETE', path: '/api/_auth/session', allow: 'public' },
   { method: 'GET', path: '/api/me', allow: [...STAFF, 'customer'] },
+  { method: 'POST', path: '/api/me/password', allow: [...STAFF, 'customer'] },
   // the customer portal's reads: a customer within its own shipments (others' ids answer 404), staff across all
   { method: 'GET', path: '/api/portal/units', allow: [...STAFF, 'customer'] },
   { method: 'GET', path: '/api/portal/units/:partNumber/:serial', allow: [...STAFF, 'customer'] },

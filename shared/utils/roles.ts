@@ -29,6 +29,8 @@ export function isPublicPage(path: string): boolean {
 /** Pages by path prefix and the roles that may open them; anything not listed is staff-only. */
 export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
   { prefix: '/verify', roles: [...ROLES] },
+  // one's own account (password) for every role
+  { prefix: '/account', roles: [...ROLES] },
   { prefix: '/admin', roles: ['admin'] },
   // the customer portal; staff open it too, to see what a customer sees
   { prefix: '/portal', roles: ['customer', 'admin', 'quality', 'engineer', 'operator'] },
