@@ -17,6 +17,7 @@ import * as m015 from './migrations/20261202_015_measurement_offset'
 import * as m016 from './migrations/20261202_016_shipments_certificates'
 import * as m018 from './migrations/20261202_018_shipment_part'
 import * as m020 from './migrations/20261202_020_mail_outbox'
+import * as m021 from './migrations/20261202_021_password_resets'
 import * as m022 from './migrations/20261202_022_station_owner'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
@@ -41,6 +42,7 @@ const migrations: Record<string, Migration> = {
   '20261202_016_shipments_certificates': m016,
   '20261202_018_shipment_part': m018,
   '20261202_020_mail_outbox': m020,
+  '20261202_021_password_resets': m021,
   '20261202_022_station_owner': m022,
 }
 

@@ -19,6 +19,9 @@ export const API_POLICY: Rule[] = [
   { method: 'DELETE', path: '/api/_auth/session', allow: 'public' },
   { method: 'GET', path: '/api/me', allow: [...STAFF, 'customer'] },
   { method: 'POST', path: '/api/me/password', allow: [...STAFF, 'customer'] },
+  // a forgotten password: the same answer for any address, limited per client and per address
+  { method: 'POST', path: '/api/auth/password-reset', allow: 'public' },
+  { method: 'POST', path: '/api/auth/password-reset/confirm', allow: 'public' },
   // the customer portal's reads: a customer within its own shipments (others' ids answer 404), staff across all
   { method: 'GET', path: '/api/portal/units', allow: [...STAFF, 'customer'] },
   { method: 'GET', path: '/api/portal/units/:partNumber/:serial', allow: [...STAFF, 'customer'] },

@@ -19,8 +19,8 @@ export const LANDING: Record<Role, string> = {
   customer: '/portal',
 }
 
-/** Pages anyone opens without signing in (a certificate's public check). */
-export const PUBLIC_PAGES = ['/verify']
+/** Pages anyone opens without signing in (a certificate's public check, a forgotten password). */
+export const PUBLIC_PAGES = ['/verify', '/forgot-password', '/reset-password']
 
 export function isPublicPage(path: string): boolean {
   return PUBLIC_PAGES.some((p) => path === p || path.startsWith(p + '/'))
@@ -29,6 +29,8 @@ export function isPublicPage(path: string): boolean {
 /** Pages by path prefix and the roles that may open them; anything not listed is staff-only. */
 export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
   { prefix: '/verify', roles: [...ROLES] },
+  { prefix: '/forgot-password', roles: [...ROLES] },
+  { prefix: '/reset-password', roles: [...ROLES] },
   // one's own account (password) for every role
   { prefix: '/account', roles: [...ROLES] },
   { prefix: '/admin', roles: ['admin'] },

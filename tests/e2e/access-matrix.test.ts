@@ -16,6 +16,8 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'POST /api/auth/login', allow: 'public' },
   { route: 'GET /api/me', allow: ALL },
   { route: 'POST /api/me/password', allow: ALL },
+  { route: 'POST /api/auth/password-reset', allow: 'public' },
+  { route: 'POST /api/auth/password-reset/confirm', allow: 'public' },
   { route: 'GET /api/portal/units', allow: ALL },
   { route: 'GET /api/portal/units/:partNumber/:serial', sample: '/api/portal/units/VFW-T3-375/NO-SUCH-SERIAL', allow: ALL },
   { route: 'GET /api/shipments/:id/certificates.zip', sample: '/api/shipments/999999/certificates.zip', allow: ALL },
