@@ -9,6 +9,7 @@ import { log, fail, spawnChild } from './lib/run.mjs'
 ensureNodeModules()
 const { prepareDatabase } = await import('./lib/database.mjs')
 const { buildIfChanged } = await import('./lib/build.mjs')
+const { startMailFakeIfNeeded } = await import('./lib/mail.mjs')
 
 const env = loadEnv()
 const port = Number(env.PORT || 3000)
@@ -22,11 +23,13 @@ if (!free) fail(`port ${port} on ${host} is already in use; set PORT to a free p
 
 const db = await prepareDatabase(env, env.TERCET_DB_NAME || 'tercet')
 buildIfChanged()
+// without TERCET_SMTP_HOST, mail goes to the local catcher (stopped with this process; see the Outbox page)
+const mail = await startMailFakeIfNeeded(env, env.TERCET_DB_NAME || 'tercet')
 
 const signIns = JSON.parse(readFileSync(resolve(root, 'fixtures/demo-sign-ins.json'), 'utf8'))
 const server = spawnChild(process.execPath, [resolve(root, '.output/server/index.mjs')], {
   cwd: root,
-  env: { ...serverEnv(env, db), PORT: String(port), HOST: host, NODE_ENV: 'production' },
+  env: { ...serverEnv(env, db), ...mail.env, PORT: String(port), HOST: host, NODE_ENV: 'production' },
 })
 setTimeout(() => {
   log(`Tercet is serving at http://${host}:${port}`)
@@ -37,4 +40,4 @@ setTimeout(() => {
 const stop = () => server.kill('SIGTERM')
 process.on('SIGINT', stop)
 process.on('SIGTERM', stop)
-server.on('exit', (code) => process.exit(code ?? 0))
+server.on('exit', (code) => { mail.stop(); process.exit(code ?? 0) })

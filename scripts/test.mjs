@@ -10,6 +10,7 @@ ensureNodeModules()
 ensureDebianPackage('chromium', 'chromium')
 const { prepareDatabase } = await import('./lib/database.mjs')
 const { buildIfChanged } = await import('./lib/build.mjs')
+const { startMailFakeIfNeeded } = await import('./lib/mail.mjs')
 
 const env = loadEnv()
 const testDb = env.TERCET_TEST_DB || 'tercet_test'
@@ -24,16 +25,19 @@ if (process.argv.length <= 2 && !process.env.TERCET_BUILD_DIR) {
   if (tc.status !== 0) { process.stderr.write('\n[tercet] type errors: see above\n'); process.exit(tc.status ?? 1) }
 }
 
+// the local mail catcher (unless TERCET_SMTP_HOST names a relay), emptied for this run; it stops with this process
+const mail = await startMailFakeIfNeeded(env, testDb, { fresh: true })
 log('running the test suite…')
 const report = resolve(root, `.data/${testDb}-vitest-report.json`)
 rmSync(report, { force: true })
 const r = spawnSync(resolve(root, 'node_modules/.bin/vitest'), ['run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...process.argv.slice(2)], {
   cwd: root,
   stdio: 'inherit',
-  env: { ...serverEnv(env, db), TERCET_TEST_TOKENS: tokenFile, NODE_ENV: 'test' },
+  env: { ...serverEnv(env, db), ...mail.env, TERCET_MAIL_BACKOFF_MS: env.TERCET_MAIL_BACKOFF_MS || '1000', TERCET_TEST_TOKENS: tokenFile, NODE_ENV: 'test' },
 })
 if (existsSync(report)) {
   const j = JSON.parse(readFileSync(report, 'utf8'))
   process.stdout.write(`\ntests: ${j.numPassedTests} passed, ${j.numFailedTests} failed\n`)
 }
+mail.stop()
 process.exit(r.status ?? 1)

@@ -14,6 +14,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/imports', label: 'Imports', roles: ['admin', 'engineer'] },
   { to: '/audit', label: 'Audit', roles: ['admin', 'quality'] },
   { to: '/admin/users', label: 'Users', roles: ['admin'] },
+  { to: '/admin/outbox', label: 'Outbox', roles: ['admin'] },
   { to: '/portal', label: 'Shipments', roles: ['customer'] },
 ]
 

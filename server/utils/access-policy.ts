@@ -33,6 +33,8 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/verify/:code', allow: 'public' },
 
   { method: 'GET', path: '/api/users', allow: ['admin'] },
+  { method: 'GET', path: '/api/admin/outbox', allow: ['admin'] },
+  { method: 'GET', path: '/api/admin/outbox/received', allow: ['admin'] },
   { method: 'POST', path: '/api/users', allow: ['admin'] },
   { method: 'PATCH', path: '/api/users/:id', allow: ['admin'] },
   { method: 'GET', path: '/api/customers', allow: ['admin', 'quality'] },

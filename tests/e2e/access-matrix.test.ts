@@ -26,6 +26,8 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'GET /api/certificate-notices', allow: ['admin', 'quality'] },
   { route: 'GET /api/verify/:code', sample: '/api/verify/NO-SUCH-CODE', allow: 'public' },
   { route: 'GET /api/users', allow: ['admin'] },
+  { route: 'GET /api/admin/outbox', allow: ['admin'] },
+  { route: 'GET /api/admin/outbox/received', allow: ['admin'] },
   { route: 'POST /api/users', allow: ['admin'] },
   { route: 'PATCH /api/users/:id', sample: '/api/users/999999', allow: ['admin'] },
   { route: 'GET /api/customers', allow: ['admin', 'quality'] },

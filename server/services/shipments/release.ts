@@ -7,6 +7,7 @@ import { dispositionsOf, policiesOfProducts } from '../../database/repositories/
 import { lockShipment, markReleased } from '../../database/repositories/shipments'
 import { liveShipmentUnits, stepStatesOf, validCertificatesOf } from '../../database/repositories/shipment-units'
 import { issueCertificates } from '../certificates/issue'
+import { queueShipmentReleased } from '../mail/shipment-notice'
 import { RuleError } from '../rule-error'
 import { unitProblems } from './unit-checks'
 
@@ -55,6 +56,8 @@ export async function releaseShipment(db: Knex, actorId: number, shipmentId: num
     // a unit shipping again after a return supersedes the certificate it still holds
     const previous = await validCertificatesOf(trx, ids)
     const issued = await issueCertificates(trx, { shipmentId, issuedBy: actorId, now, units: ids.map((unitId) => ({ unitId, supersedesId: previous.get(unitId) ?? null })) })
+    // the notice exists exactly when the release commits
+    await queueShipmentReleased(trx, { id: s.id, code: s.code, customerId: s.customerId, customerName: customer.name, units: units.length })
     return { code: s.code, status: 'released' as const, certificates: issued.length, covered: covered.length }
   })
 }

@@ -1,0 +1,3 @@
+import { outboxView } from '../../../services/mail/views'
+
+export default defineEventHandler(() => outboxView(useDb()))

@@ -1,0 +1,3 @@
+import { receivedView } from '../../../services/mail/views'
+
+export default defineEventHandler(() => receivedView())

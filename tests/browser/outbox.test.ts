@@ -1,0 +1,42 @@
+import type { Browser } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { baseUrl } from '../support/http'
+import { hydrated, launchBrowser, shot, signInPage } from '../support/browser'
+
+let browser: Browser
+
+beforeAll(async () => { browser = await launchBrowser() })
+afterAll(async () => { await browser?.close() })
+
+describe('the admin Outbox page', () => {
+  it('shows the queue and the demo release notices the local catcher received, HTML in a sandboxed frame with its links listed', async () => {
+    const page = await signInPage(browser, baseUrl(), 'admin@tercet.test')
+    await page.getByRole('link', { name: 'Outbox' }).click()
+    await page.waitForURL(/\/admin\/outbox$/)
+    await hydrated(page)
+    await expect.poll(() => page.getByTestId('relay').textContent()).toContain('local mail catcher')
+    // the demo seed released shipments to customers whose buyers receive certificate notices
+    await expect.poll(async () => {
+      await page.getByTestId('refresh').click()
+      return page.getByTestId('received-mail').count()
+    }, { timeout: 30_000 }).toBeGreaterThan(0)
+    await expect.poll(() => page.getByTestId('outbox-queue').textContent()).toContain('sent')
+    const first = page.getByTestId('received-mail').first()
+    const frame = first.locator('iframe')
+    expect(await frame.getAttribute('sandbox')).toBe('')
+    expect(await frame.getAttribute('srcdoc')).toContain('<!doctype html>')
+    expect(await first.textContent()).toMatch(/\/portal\/shipments\/\d+/)
+    await first.getByRole('button', { name: 'Plain part' }).click()
+    expect(await first.locator('pre').textContent()).toContain('Open the shipment:')
+    await shot(page, 'admin-outbox')
+  })
+
+  it('is not offered to quality, who is sent to the lots instead', async () => {
+    const page = await signInPage(browser, baseUrl(), 'quality@tercet.test')
+    expect(await page.getByRole('link', { name: 'Outbox' }).count()).toBe(0)
+    await page.goto(`${baseUrl()}/admin/outbox`)
+    // sent to the role's landing page instead
+    await page.waitForURL((u) => u.pathname === '/lots')
+    expect(await page.getByTestId('outbox-queue').count()).toBe(0)
+  })
+})
