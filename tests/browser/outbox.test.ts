@@ -14,17 +14,19 @@ describe('the admin Outbox page', () => {
     await page.getByRole('link', { name: 'Outbox' }).click()
     await page.waitForURL(/\/admin\/outbox$/)
     await hydrated(page)
-    await expect.poll(() => page.getByTestId('relay').textContent()).toContain('local mail catcher')
+    await expect.poll(() => page.locator('[data-test="relay"]').textContent()).toContain('local mail catcher')
     // the demo seed released shipments to customers whose buyers receive certificate notices
     await expect.poll(async () => {
-      await page.getByTestId('refresh').click()
-      return page.getByTestId('received-mail').count()
+      await page.locator('[data-test="refresh"]').click()
+      return page.locator('[data-test="received-mail"]').count()
     }, { timeout: 30_000 }).toBeGreaterThan(0)
-    await expect.poll(() => page.getByTestId('outbox-queue').textContent()).toContain('sent')
-    const first = page.getByTestId('received-mail').first()
+    await expect.poll(() => page.locator('[data-test="outbox-queue"]').textContent()).toContain('sent')
+    const first = page.locator('[data-test="received-mail"]').first()
     const frame = first.locator('iframe')
     expect(await frame.getAttribute('sandbox')).toBe('')
     expect(await frame.getAttribute('srcdoc')).toContain('<!doctype html>')
+    // the frame draws the message itself
+    await expect.poll(async () => (await Promise.all(page.frames().map((f) => f.content().catch(() => '')))).some((c) => c.includes('Open the shipment'))).toBe(true)
     expect(await first.textContent()).toMatch(/\/portal\/shipments\/\d+/)
     await first.getByRole('button', { name: 'Plain part' }).click()
     expect(await first.locator('pre').textContent()).toContain('Open the shipment:')
@@ -37,6 +39,6 @@ describe('the admin Outbox page', () => {
     await page.goto(`${baseUrl()}/admin/outbox`)
     // sent to the role's landing page instead
     await page.waitForURL((u) => u.pathname === '/lots')
-    expect(await page.getByTestId('outbox-queue').count()).toBe(0)
+    expect(await page.locator('[data-test="outbox-queue"]').count()).toBe(0)
   })
 })
