@@ -3,6 +3,7 @@ import { existsSync, readFileSync, readdirSync, statSync, writeFileSync } from '
 import { join, resolve } from 'node:path'
 import { root } from './env.mjs'
 import { log, runOrFail } from './run.mjs'
+import { ensureNodeModules } from './deps.mjs'
 
 const SOURCES = ['app', 'server', 'shared', 'public', 'fixtures', 'nuxt.config.ts', 'tailwind.config.ts', 'package-lock.json']
 const outputDir = resolve(root, process.env.TERCET_OUTPUT_DIR || '.output')
@@ -20,8 +21,12 @@ function sourceHash() {
   return createHash('sha256').update(files.join('\n')).digest('hex')
 }
 
-/** Builds the server only when a source file changed since the last build. */
+/**
+ * Builds the server only when a source file changed since the last build. Packages come first: a lock file that
+ * moved on (a pull, a merge) would otherwise leave a build that cannot load the packages it now needs.
+ */
 export function buildIfChanged() {
+  ensureNodeModules()
   const hash = sourceHash()
   if (existsSync(resolve(outputDir, 'server/index.mjs')) && existsSync(stamp) && readFileSync(stamp, 'utf8') === hash) {
     log('build is up to date')

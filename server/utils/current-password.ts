@@ -8,7 +8,10 @@ import { clientAddress } from './client-address'
  * Checks the signed-in user's current password. A wrong one counts toward the sign-in failure limits like a failed
  * sign-in (429 with Retry-After once they are reached), so a stolen session cannot guess the password here.
  */
-export async function requireCurrentPassword(event: H3Event, user: UserRecord, password: string, pointer: string): Promise<void> {
+export async function requireCurrentPassword(
+  event: H3Event, user: UserRecord, password: string, pointer: string,
+  refusal: { detail: string; extra?: Record<string, unknown> } = { detail: 'The current password is not correct.' },
+): Promise<void> {
   const address = clientAddress(event)
   const key = user.email.toLowerCase()
   const wait = Math.max(signInFailuresByAccount.retryAfter(key), signInFailuresByAddress.retryAfter(address))
@@ -18,7 +21,7 @@ export async function requireCurrentPassword(event: H3Event, user: UserRecord, p
   if (!ok) {
     signInFailuresByAccount.fail(key)
     signInFailuresByAddress.fail(address)
-    throw problem(422, 'The current password is not correct.', { errors: [{ pointer, message: 'not correct' }] })
+    throw problem(422, refusal.detail, { errors: [{ pointer, message: 'not correct' }], ...refusal.extra })
   }
   signInFailuresByAccount.clear(key)
 }

@@ -1,8 +1,7 @@
 import type { H3Event } from 'h3'
-import { findUserForSignIn, type UserRecord } from '../database/repositories/users'
+import type { UserRecord } from '../database/repositories/users'
+import { requireCurrentPassword } from './current-password'
 import { problem } from './problem'
-import { signInFailuresByAccount, signInFailuresByAddress } from './rate-limit'
-import { clientAddress } from './client-address'
 
 /**
  * Signing an action again: releasing a lot or a shipment, approving a specification revision, revoking or
@@ -29,18 +28,7 @@ export const PASSWORD_NEEDED = 'Enter your password again to sign this action.'
  */
 export async function requireSignature(event: H3Event, user: UserRecord, password: string | undefined, now = new Date()): Promise<Signature> {
   if (password !== undefined && password !== '') {
-    const address = clientAddress(event)
-    const key = user.email.toLowerCase()
-    const wait = Math.max(signInFailuresByAccount.retryAfter(key), signInFailuresByAddress.retryAfter(address))
-    if (wait > 0) throw problem(429, `Too many wrong passwords; try again in ${wait} s.`, { headers: { 'Retry-After': String(wait) } })
-    const account = await findUserForSignIn(useDb(), key)
-    const ok = !!account && account.id === user.id && await verifyPassword(account.passwordHash, password)
-    if (!ok) {
-      signInFailuresByAccount.fail(key)
-      signInFailuresByAddress.fail(address)
-      throw problem(422, 'The password is not correct.', { errors: [{ pointer: '/password', message: 'not correct' }], signature: 'required' })
-    }
-    signInFailuresByAccount.clear(key)
+    await requireCurrentPassword(event, user, password, '/password', { detail: 'The password is not correct.', extra: { signature: 'required' } })
     return { method: 'password', at: now.toISOString() }
   }
   const session = await getUserSession(event)

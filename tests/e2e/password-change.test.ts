@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import { call, freshAddress, signIn } from '../support/http'
+import { newUser } from '../support/accounts'
 
 let db: Knex
 let admin: string
@@ -11,18 +12,13 @@ beforeAll(async () => {
 })
 afterAll(async () => { await db.destroy() })
 
-async function newUser(tag: string, password: string): Promise<{ id: number; email: string }> {
-  const email = `${tag}-${Date.now()}-${Math.floor(Math.random() * 1e6)}@tercet.test`
-  const r = await call('POST', '/api/users', { cookie: admin, body: { email, name: `Probe ${tag}`, role: 'engineer', password } })
-  expect(r.status).toBe(201)
-  return { id: r.body.user.id, email }
-}
+const probe = (tag: string, password: string) => newUser(admin, { tag, password, name: `Probe ${tag}`, role: 'engineer' })
 
 const login = (email: string, password: string) => call('POST', '/api/auth/login', { body: { email, password }, headers: { 'x-forwarded-for': freshAddress() } })
 
 describe('changing one\'s own password', () => {
   it('needs the current password, applies the rule, then the new password signs in and the old one does not', async () => {
-    const u = await newUser('change', 'first password of probe')
+    const u = await probe('change', 'first password of probe')
     const cookie = await signIn(u.email, 'first password of probe')
 
     const wrong = await call('POST', '/api/me/password', { cookie, body: { currentPassword: 'not my password', newPassword: 'an entirely new phrase' } })
@@ -49,7 +45,7 @@ describe('changing one\'s own password', () => {
   })
 
   it('counts wrong current passwords toward the sign-in failure limit (429 with Retry-After)', async () => {
-    const u = await newUser('guess', 'guessing target phrase')
+    const u = await probe('guess', 'guessing target phrase')
     const cookie = await signIn(u.email, 'guessing target phrase')
     const statuses: number[] = []
     let retryAfter = 0

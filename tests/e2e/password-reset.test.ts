@@ -3,6 +3,7 @@ import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import { call, freshAddress, signIn } from '../support/http'
+import { newUser, uniqueEmail } from '../support/accounts'
 
 let db: Knex
 let admin: string
@@ -12,14 +13,7 @@ beforeAll(async () => {
 })
 afterAll(async () => { await db.destroy() })
 
-const unique = (tag: string) => `${tag}-${Date.now()}-${Math.floor(Math.random() * 1e6)}@tercet.test`
-
-async function newUser(tag: string, password: string): Promise<{ id: number; email: string }> {
-  const email = unique(tag)
-  const r = await call('POST', '/api/users', { cookie: admin, body: { email, name: `Reset ${tag}`, role: 'operator', password } })
-  expect(r.status).toBe(201)
-  return { id: r.body.user.id, email }
-}
+const resettable = (tag: string, password: string) => newUser(admin, { tag, password, name: `Reset ${tag}`, role: 'operator' })
 
 const ask = (email: string, address = freshAddress()) => call('POST', '/api/auth/password-reset', { body: { email }, headers: { 'x-forwarded-for': address } })
 const confirm = (token: string, newPassword: string) => call('POST', '/api/auth/password-reset/confirm', { body: { token, newPassword }, headers: { 'x-forwarded-for': freshAddress() } })
@@ -35,8 +29,8 @@ async function linksFor(email: string): Promise<string[]> {
 
 describe('a forgotten password', () => {
   it('answers an unknown and a known address alike, and only the known one gets a link', async () => {
-    const u = await newUser('same', 'the original phrase')
-    const ghost = unique('ghost')
+    const u = await resettable('same', 'the original phrase')
+    const ghost = uniqueEmail('ghost')
     const known = await ask(u.email)
     const unknown = await ask(ghost)
     expect(known.status).toBe(202)
@@ -53,14 +47,14 @@ describe('a forgotten password', () => {
   })
 
   it('sends no link to a disabled account, with the same answer', async () => {
-    const u = await newUser('off', 'the original phrase')
+    const u = await resettable('off', 'the original phrase')
     expect((await call('PATCH', `/api/users/${u.id}`, { cookie: admin, body: { disabled: true } })).status).toBe(200)
     expect((await ask(u.email)).status).toBe(202)
     expect(await linksFor(u.email)).toHaveLength(0)
   })
 
   it('limits requests per e-mail address and per client address with 429 and Retry-After', async () => {
-    const email = unique('flood')
+    const email = uniqueEmail('flood')
     const statuses: number[] = []
     for (let i = 0; i < 6; i++) statuses.push((await ask(email)).status) // each from a new client address
     expect(statuses).toEqual([202, 202, 202, 202, 202, 429])
@@ -70,13 +64,13 @@ describe('a forgotten password', () => {
 
     const address = freshAddress()
     const fromOne: number[] = []
-    for (let i = 0; i < 21; i++) fromOne.push((await ask(unique(`one${i}`), address)).status)
+    for (let i = 0; i < 21; i++) fromOne.push((await ask(uniqueEmail(`one${i}`), address)).status)
     expect(fromOne.slice(0, 20).every((s) => s === 202)).toBe(true)
     expect(fromOne[20]).toBe(429)
   })
 
   it('sets the password once through the link; the rule applies; other links close; reuse is refused', async () => {
-    const u = await newUser('use', 'the original phrase')
+    const u = await resettable('use', 'the original phrase')
     await ask(u.email)
     await ask(u.email)
     const [first, second] = await linksFor(u.email)
@@ -108,7 +102,7 @@ describe('a forgotten password', () => {
   })
 
   it('refuses an expired link the same way', async () => {
-    const u = await newUser('late', 'the original phrase')
+    const u = await resettable('late', 'the original phrase')
     await ask(u.email)
     const [token] = await linksFor(u.email)
     // the link was sent 31 minutes ago
