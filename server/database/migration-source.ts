@@ -19,6 +19,7 @@ import * as m018 from './migrations/20261202_018_shipment_part'
 import * as m020 from './migrations/20261202_020_mail_outbox'
 import * as m021 from './migrations/20261202_021_password_resets'
 import * as m022 from './migrations/20261202_022_station_owner'
+import * as m023 from './migrations/20261202_023_certificate_retest_index'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -44,6 +45,7 @@ const migrations: Record<string, Migration> = {
   '20261202_020_mail_outbox': m020,
   '20261202_021_password_resets': m021,
   '20261202_022_station_owner': m022,
+  '20261202_023_certificate_retest_index': m023,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {
