@@ -20,6 +20,7 @@ import * as m020 from './migrations/20261202_020_mail_outbox'
 import * as m021 from './migrations/20261202_021_password_resets'
 import * as m022 from './migrations/20261202_022_station_owner'
 import * as m023 from './migrations/20261202_023_certificate_retest_index'
+import * as m024 from './migrations/20261202_024_alerts'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -46,6 +47,7 @@ const migrations: Record<string, Migration> = {
   '20261202_021_password_resets': m021,
   '20261202_022_station_owner': m022,
   '20261202_023_certificate_retest_index': m023,
+  '20261202_024_alerts': m024,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {
