@@ -71,6 +71,30 @@ describe('setting a forgotten password in the browser', () => {
     await context.close()
   })
 
+  it('refuses a link whose 30 minutes have passed, and the old password still signs in', async () => {
+    const admin = await signIn('admin@tercet.test')
+    const email = `browser-expired-${Date.now()}@tercet.test`
+    expect((await call('POST', '/api/users', { cookie: admin, body: { email, name: 'Browser Expired', role: 'engineer', password: 'remembered after all' } })).status).toBe(201)
+    expect((await call('POST', '/api/auth/password-reset', { body: { email }, headers: { 'x-forwarded-for': freshAddress() } })).status).toBe(202)
+    const path = await linkFor(email)
+    const user = await db('users').where({ email }).first('id')
+    // the link was asked for 31 minutes ago
+    await db('password_resets').where({ user_id: user.id }).update({ created_at: db.raw('NOW(3) - INTERVAL 31 MINUTE'), expires_at: db.raw('NOW(3) - INTERVAL 1 MINUTE') })
+
+    const context = await browser.newContext({ extraHTTPHeaders: { 'x-forwarded-for': freshAddress() } })
+    const page = await context.newPage()
+    await page.goto(`${baseUrl()}${path}`)
+    await hydrated(page)
+    await page.getByLabel('New password', { exact: true }).fill('too late for this one')
+    await page.getByLabel('New password again').fill('too late for this one')
+    await page.getByRole('button', { name: 'Set password' }).click()
+    await expect.poll(() => page.locator('[data-test=link-refused]').textContent()).toContain('not valid')
+    await shot(page, 'reset-password-expired')
+    await context.close()
+    expect((await call('POST', '/api/auth/login', { body: { email, password: 'too late for this one' }, headers: { 'x-forwarded-for': freshAddress() } })).status).toBe(401)
+    expect((await call('POST', '/api/auth/login', { body: { email, password: 'remembered after all' }, headers: { 'x-forwarded-for': freshAddress() } })).status).toBe(200)
+  })
+
   it('changes the signed-in user\'s password on the account page reached from the header', async () => {
     const admin = await signIn('admin@tercet.test')
     const email = `browser-change-${Date.now()}@tercet.test`
