@@ -118,6 +118,19 @@ export const API_POLICY: Rule[] = [
 
   { method: 'GET', path: '/api/audit', allow: ['admin', 'quality'] },
 
+  // alert rules: every staff role reads them, engineering staff edit them; firings and one's own subscriptions for all staff
+  { method: 'GET', path: '/api/alert-rules', allow: STAFF },
+  { method: 'POST', path: '/api/alert-rules', allow: ENGINEERING },
+  { method: 'PATCH', path: '/api/alert-rules/:id', allow: ENGINEERING },
+  { method: 'DELETE', path: '/api/alert-rules/:id', allow: ENGINEERING },
+  { method: 'GET', path: '/api/alerts', allow: STAFF },
+  { method: 'GET', path: '/api/alerts/count', allow: STAFF },
+  { method: 'POST', path: '/api/alerts/:id/acknowledge', allow: STAFF },
+  { method: 'POST', path: '/api/alerts/:id/comments', allow: STAFF },
+  { method: 'GET', path: '/api/me/alert-subscriptions', allow: STAFF },
+  { method: 'POST', path: '/api/me/alert-subscriptions', allow: STAFF },
+  { method: 'DELETE', path: '/api/me/alert-subscriptions/:id', allow: STAFF },
+
   { method: 'GET', path: '/api/imports', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/imports', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/imports/:id', allow: ['admin', 'engineer'] },

@@ -1,0 +1,3 @@
+import { alertCount } from '../../services/alerts/firings'
+
+export default defineEventHandler((event) => alertCount(useDb(), requireUser(event).id))

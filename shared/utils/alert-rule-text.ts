@@ -1,0 +1,35 @@
+// A rule in words: its kind's `reads` sentence with the rule's own figures in place of the braces.
+import type { AlertRuleDto } from '../types/alert'
+import { ALERT_KIND_INFO, type AlertKind } from './alert-kinds'
+import { formatQualifier, KNOWN_MEASUREMENTS } from './measurement-names'
+
+/** "Phase noise @ 10 kHz", "Output power": the parameter as the trends page names it. */
+export function parameterLabel(name: string, qualifier: number | null): string {
+  const base = (KNOWN_MEASUREMENTS as Record<string, { label: string }>)[name]?.label ?? name.replace(/_/g, ' ')
+  const q = formatQualifier(name, qualifier || null)
+  return q ? `${base} @ ${q}` : base
+}
+
+/** "1, 2 or 4" */
+export function ruleNumbers(rules: readonly number[]): string {
+  if (rules.length <= 1) return rules.join('')
+  return `${rules.slice(0, -1).join(', ')} or ${rules[rules.length - 1]}`
+}
+
+type RuleFigures = Pick<AlertRuleDto, 'kind' | 'stationCode' | 'step' | 'parameter' | 'qualifier' | 'threshold' | 'windowUnits' | 'horizonUnits' | 'silentMinutes' | 'controlRules'>
+
+export function ruleSentence(rule: RuleFigures): string {
+  const info = ALERT_KIND_INFO[rule.kind as AlertKind]
+  const v: Record<string, string> = {
+    step: rule.step ?? '?',
+    parameter: rule.parameter ? `${parameterLabel(rule.parameter, rule.qualifier)} at ${rule.step ?? '?'}` : '?',
+    threshold: rule.threshold === null ? '?' : String(rule.threshold),
+    windowUnits: rule.windowUnits === null ? '?' : String(rule.windowUnits),
+    horizonUnits: rule.horizonUnits === null ? '?' : String(rule.horizonUnits),
+    silentMinutes: rule.silentMinutes === null ? '?' : String(rule.silentMinutes),
+    controlRules: rule.controlRules.length ? ruleNumbers(rule.controlRules) : '?',
+    station: rule.stationCode ?? 'any station',
+  }
+  const text = info.reads.replace(/\{(\w+)\}/g, (_, k: string) => v[k] ?? `{${k}}`)
+  return text.charAt(0).toUpperCase() + text.slice(1)
+}
