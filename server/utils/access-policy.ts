@@ -70,6 +70,9 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/stations/:id', allow: ['admin', 'engineer'] },
   { method: 'PUT', path: '/api/stations/:id/owner', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/stations/owner-candidates', allow: ['admin', 'engineer'] },
+  // run-time settings: every staff role reads them (the due-soon period behind the calibration badges); admins change them
+  { method: 'GET', path: '/api/settings', allow: STAFF },
+  { method: 'PUT', path: '/api/settings/calibration-due-soon-days', allow: ['admin'] },
   { method: 'POST', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'DELETE', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/stations/:id/calibration', allow: ['admin', 'engineer'] },

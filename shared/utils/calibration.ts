@@ -3,6 +3,7 @@
 export const CALIBRATION_STATES = ['ok', 'due_soon', 'lapsed'] as const
 export type CalibrationState = (typeof CALIBRATION_STATES)[number]
 
+/** The due-soon period until an administrator sets another (app_settings calibration_due_soon_days). */
 export const DUE_SOON_DAYS = 30
 const DAY_MS = 86_400_000
 
@@ -12,12 +13,12 @@ export const CALIBRATION_LABELS: Record<CalibrationState, string> = {
   lapsed: 'CAL LAPSED',
 }
 
-/** Lapsed from the due instant on; due soon within the last 30 days before it. */
-export function calibrationState(due: Date | string, now: Date = new Date()): CalibrationState {
+/** Lapsed from the due instant on; due soon within the last `dueSoonDays` days before it. */
+export function calibrationState(due: Date | string, now: Date = new Date(), dueSoonDays: number = DUE_SOON_DAYS): CalibrationState {
   const left = new Date(due).getTime() - now.getTime()
   if (Number.isNaN(left)) throw new RangeError('calibration due date is not a date')
   if (left <= 0) return 'lapsed'
-  return left <= DUE_SOON_DAYS * DAY_MS ? 'due_soon' : 'ok'
+  return left <= dueSoonDays * DAY_MS ? 'due_soon' : 'ok'
 }
 
 /** The worst state among a station's instruments; null when it has none. */

@@ -59,6 +59,8 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'GET /api/stations/:id', sample: '/api/stations/999999', allow: ['admin', 'engineer'] },
   { route: 'PUT /api/stations/:id/owner', sample: '/api/stations/999999/owner', allow: ['admin', 'engineer'] },
   { route: 'GET /api/stations/owner-candidates', allow: ['admin', 'engineer'] },
+  { route: 'GET /api/settings', allow: STAFF },
+  { route: 'PUT /api/settings/calibration-due-soon-days', allow: ['admin'] },
   { route: 'POST /api/stations/:id/token', sample: '/api/stations/999999/token', allow: ['admin', 'engineer'] },
   { route: 'DELETE /api/stations/:id/token', sample: '/api/stations/999999/token', allow: ['admin', 'engineer'] },
   { route: 'GET /api/stations/:id/calibration', sample: '/api/stations/999999/calibration', allow: ['admin', 'engineer'] },

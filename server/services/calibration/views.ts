@@ -6,6 +6,7 @@ import type {
 } from '../../../shared/types/calibration'
 import { calibrationState, type CalibrationState } from '../../../shared/utils/calibration'
 import { recordInForce } from '../../../shared/utils/calibration-history'
+import { calibrationDueSoonDays } from '../settings'
 import {
   holdingsOfInstruments, holdingsOfStations, instrumentsById, listInstrumentsWithStation, recordsOfInstruments, spansOfInstruments, stationNames, stationRef,
   type CalibrationRow, type HoldingRow, type InstrumentRow,
@@ -18,21 +19,21 @@ const iso = (d: Date) => new Date(d).toISOString()
 /** An instrument as the station pages list it: its state now, from the record in force now. */
 export type CurrentInstrument = { id: number; assetNumber: string; kind: string; model: string; serial: string; calibrationDue: string | null; state: CalibrationState }
 
-function stateNow(records: Parameters<typeof recordInForce>[0], instrumentId: number, now: Date): { dueAt: Date | null; state: CalibrationState } {
+function stateNow(records: Parameters<typeof recordInForce>[0], instrumentId: number, now: Date, dueSoonDays: number): { dueAt: Date | null; state: CalibrationState } {
   const r = recordInForce(records, instrumentId, now)
   // no record in force: runs taken now would be flagged, so the page says lapsed too
-  return r ? { dueAt: r.dueAt, state: calibrationState(r.dueAt, now) } : { dueAt: null, state: 'lapsed' }
+  return r ? { dueAt: r.dueAt, state: calibrationState(r.dueAt, now, dueSoonDays) } : { dueAt: null, state: 'lapsed' }
 }
 
 /** The instruments each station holds now, with the state of the record in force now. */
 export async function currentInstrumentsOfStations(db: Knex, stationIds: readonly number[], now = new Date()): Promise<Map<number, CurrentInstrument[]>> {
   const open = (await holdingsOfStations(db, stationIds)).filter((h) => h.until === null && h.from.getTime() <= now.getTime())
   const instruments = new Map((await instrumentsById(db, [...new Set(open.map((h) => h.instrumentId))])).map((i) => [i.id, i]))
-  const spans = await spansOfInstruments(db, [...instruments.keys()])
+  const [spans, dueSoonDays] = await Promise.all([spansOfInstruments(db, [...instruments.keys()]), calibrationDueSoonDays(db)])
   const out = new Map<number, CurrentInstrument[]>(stationIds.map((id) => [id, []]))
   for (const h of open) {
     const i = instruments.get(h.instrumentId)!
-    const s = stateNow(spans, i.id, now)
+    const s = stateNow(spans, i.id, now, dueSoonDays)
     out.get(h.stationId)!.push({ id: i.id, assetNumber: i.assetNumber, kind: i.kind, model: i.model, serial: i.serial, calibrationDue: s.dueAt ? iso(s.dueAt) : null, state: s.state })
   }
   for (const list of out.values()) list.sort((a, b) => (a.calibrationDue ?? '').localeCompare(b.calibrationDue ?? '') || a.assetNumber.localeCompare(b.assetNumber))
@@ -61,8 +62,9 @@ export async function stationCalibration(db: Knex, stationId: number, now = new 
   if (!(await stationRef(db, stationId))) return undefined
   const own = await holdingsOfStations(db, [stationId])
   const ids = [...new Set(own.map((h) => h.instrumentId))]
-  const [instruments, holdings, records, counts, latest] = await Promise.all([
+  const [instruments, holdings, records, counts, latest, dueSoonDays] = await Promise.all([
     instrumentsById(db, ids), holdingsOfInstruments(db, ids), recordsOfInstruments(db, ids), runCountsByRecord(db, ids), latestRunsByRecord(db, ids, LATEST_RUNS),
+    calibrationDueSoonDays(db),
   ])
   const names = await stationNames(db, [...new Set(holdings.map((h) => h.stationId))])
   const key = (instrumentId: number, calibrationId: number | null) => `${instrumentId}:${calibrationId}`
@@ -75,7 +77,7 @@ export async function stationCalibration(db: Knex, stationId: number, now = new 
     const inForce = recordInForce(mine, i.id, now)
     const spans = holdings.filter((h) => h.instrumentId === i.id)
     const open = spans.find((h) => h.until === null)
-    const s = stateNow(mine, i.id, now)
+    const s = stateNow(mine, i.id, now, dueSoonDays)
     return {
       id: i.id, assetNumber: i.assetNumber, kind: i.kind, model: i.model, serial: i.serial,
       currentStation: open ? { id: open.stationId, name: names.get(open.stationId) ?? String(open.stationId) } : null,

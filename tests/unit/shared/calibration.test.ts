@@ -35,3 +35,12 @@ describe('calibration state', () => {
     expect(calibrationState(dueInstant('2031-03-01'), NOW)).toBe('lapsed')
   })
 })
+
+describe('calibration state with a due-soon period set by an administrator', () => {
+  it('is due soon up to and including the given number of days ahead', () => {
+    expect(calibrationState(at(45 * DAY), NOW, 45)).toBe('due_soon')
+    expect(calibrationState(at(45 * DAY + 1), NOW, 45)).toBe('ok')
+    expect(calibrationState(at(8 * DAY), NOW, 7)).toBe('ok')
+    expect(calibrationState(at(0), NOW, 7)).toBe('lapsed')
+  })
+})

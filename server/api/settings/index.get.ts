@@ -1,0 +1,3 @@
+import { appSettings } from '../../services/settings'
+
+export default defineEventHandler(() => appSettings(useDb()))
