@@ -5,6 +5,7 @@ import { connectionFromEnv, createKnex } from '../server/database/connection'
 import { migrationSource } from '../server/database/migration-source'
 import { seedDemoCatalogue } from '../server/database/seeds/demo'
 import { seedDemoHistory } from '../server/database/seeds/demo-history'
+import { seedDemoAlerts } from '../server/database/seeds/demo-alerts'
 import { countUsers } from '../server/database/repositories/users'
 
 async function main() {
@@ -21,6 +22,7 @@ async function main() {
       writeFileSync(tokenFile, JSON.stringify(stationTokens, null, 2) + '\n', { mode: 0o600 })
       const runs = await seedDemoHistory(db)
       console.log(`[tercet] demo history: ${runs} test runs`)
+      await seedDemoAlerts(db)
     }
   } finally {
     await db.destroy()

@@ -22,6 +22,7 @@ export const MIN_DRIFT_VALUES = 5
 
 const QUIET = (summary: string, figures: AlertFigure[] = []): CheckResult => ({ fired: false, figures, summary })
 const round = (x: number, digits = 4) => Number(x.toPrecision(digits))
+// units until the line reaches a limit, rounded up (a ratio of 11.000000000000002 is 11 units, not 12)
 
 /**
  * First-pass yield over the last `windowUnits` units by first-attempt test time, oldest first: the share whose first
@@ -118,7 +119,7 @@ export function checkDriftTowardLimit(valuesInTestOrder: readonly number[], limi
   const figures: AlertFigure[] = [
     { label: 'Slope', value: round(fit.slope, 4), unit: unit ? `${unit} per unit` : 'per unit' }, { label: 'Fitted now', value: round(current, 6), unit },
     { label: `Projected in ${rule.horizonUnits} units`, value: round(projected, 6), unit }, { label: fit.slope > 0 ? 'USL' : 'LSL', value: limit, unit },
-    { label: 'Units to crossing', value: limit === null || fit.slope === 0 ? null : Math.max(0, Math.ceil((limit - current) / fit.slope)) },
+    { label: 'Units to crossing', value: limit === null || fit.slope === 0 ? null : Math.max(0, Math.ceil(Number(((limit - current) / fit.slope).toPrecision(12)))) },
   ]
   if (!inside) return QUIET('the fitted value is already outside the limits', figures)
   if (!crosses) return QUIET('the trend stays within the limits over the horizon', figures)

@@ -5,6 +5,7 @@
 // their lot first, so what they show includes every run stored before they asked.
 import type { Knex } from 'knex'
 import { movingRangeSum } from '../../../shared/utils/capability'
+import { markProductOfLot } from '../../database/repositories/alert-marks'
 import { ensureFoldLease, lotsToFold, markFolded, takeFoldLease } from '../../database/repositories/fold-leases'
 import {
   anyRebuildMarks, anyStaleParamRows, foldedSampleValues, staleParamRows, forgetQueuedRuns, forgetRebuildMark, newestQueuedRun, paramRowsOfLot, queuedRunsOfLot,
@@ -67,6 +68,8 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: b
       await rebuildParamRows(trx, m)
       await forgetRebuildMark(trx, m)
     }
+    // the product's alert rules look at the new results; last, so the product's mark row is held only until commit
+    if (runIds.length || marks.length) await markProductOfLot(trx, lotId)
     await markFolded(trx, lotId)
     return { folded: runIds.length, more: runIds.length === RUNS_PER_FOLD }
   })

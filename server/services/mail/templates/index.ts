@@ -1,3 +1,5 @@
 export { shipmentReleased, shipmentPortalUrl, type ShipmentReleasedInput } from './shipment-released'
 export { passwordReset, type PasswordResetInput } from './password-reset'
 export { escapeHtml, type RenderedMail } from './layout'
+export { alertRaised, absoluteLink, type AlertRaisedInput } from './alert-raised'
+export { calibrationDue, type CalibrationDueInput } from './calibration-due'
