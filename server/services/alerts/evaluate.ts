@@ -29,7 +29,21 @@ export type EvaluateOptions = {
   clockMs?: number
   throttleS?: number
 }
-export type EvaluateResult = { evaluated: boolean; products: number; clock: boolean; raised: number[] }
+export type EvaluateResult = { evaluated: boolean; products: number; clock: boolean; raised: number[]; failedRules: number[] }
+
+/**
+ * One rule's failure (limits a revision got wrong, say) must not hold up the others or leave its product's mark
+ * for ever: it is reported and the evaluation goes on. A database that is away fails the whole pass instead.
+ */
+async function guarded(ruleId: number, out: EvaluateResult, work: () => Promise<void>): Promise<void> {
+  try {
+    await work()
+  } catch (e: any) {
+    if (typeof e?.code === 'string' && /^(ECONN|PROTOCOL_|ER_LOCK|ER_CON|ETIMEDOUT)/.test(e.code)) throw e
+    out.failedRules.push(ruleId)
+    console.warn(`[tercet] alert rule ${ruleId} could not be evaluated: ${e?.message ?? e}`)
+  }
+}
 
 export const defaultOwner = () => `${hostname()}:${process.pid}`
 const envMs = (name: string, fallback: number) => { const n = Number(process.env[name]); return Number.isFinite(n) && n > 0 ? n : fallback }
@@ -40,7 +54,7 @@ export async function evaluateAlerts(db: Knex, opts: EvaluateOptions = {}): Prom
   const now = opts.now ?? new Date()
   const owner = opts.owner ?? defaultOwner()
   const throttleS = opts.throttleS ?? throttleSeconds()
-  const out: EvaluateResult = { evaluated: false, products: 0, clock: false, raised: [] }
+  const out: EvaluateResult = { evaluated: false, products: 0, clock: false, raised: [], failedRules: [] }
   if (!(await takeLease(db, ALERT_LEASE, owner, opts.leaseMs ?? 30_000, now))) return out
   out.evaluated = true
   for (const mark of await readMarks(db, MARKS_PER_PASS)) {
@@ -48,12 +62,12 @@ export async function evaluateAlerts(db: Knex, opts: EvaluateOptions = {}): Prom
     if (rules.length) {
       const [lots, revisions] = await Promise.all([newestLots(db, mark.productId), listEffectiveRevisions(db, mark.productId)])
       const ctx = { productId: mark.productId, partNumber: rules[0]!.partNumber ?? String(mark.productId), lots, revisions, now }
-      for (const rule of rules) {
+      for (const rule of rules) await guarded(rule.id, out, async () => {
         for (const o of await evaluateResultRule(db, ctx, rule)) {
           const id = await raise(db, rule, o, now, throttleS)
           if (id !== null) out.raised.push(id)
         }
-      }
+      })
     }
     await clearMark(db, mark)
     out.products++
@@ -63,12 +77,12 @@ export async function evaluateAlerts(db: Knex, opts: EvaluateOptions = {}): Prom
     const rules = await enabledRules(db, { kinds: CLOCK_KINDS })
     // the due-soon period is read once per evaluation, never kept in the process
     const days = rules.some((r) => r.kind === 'calibration_due') ? await calibrationDueSoonDays(db) : 0
-    for (const rule of rules) {
+    for (const rule of rules) await guarded(rule.id, out, async () => {
       for (const o of await evaluateClockRule(db, rule, now, days)) {
         const id = await raise(db, rule, o, now, throttleS)
         if (id !== null) out.raised.push(id)
       }
-    }
+    })
   }
   return out
 }

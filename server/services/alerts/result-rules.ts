@@ -34,8 +34,11 @@ const base = (ctx: ProductContext, r: RuleRow, subject: string, subjectLabel: st
   ({ subject, subjectLabel, productId: ctx.productId, lotId, stationId: null, instrumentId: null })
 
 export async function evaluateResultRule(db: Knex, ctx: ProductContext, r: RuleRow): Promise<Outcome[]> {
+  // a rule missing a field its kind needs (the rule editor never stores one) is skipped, not guessed at
+  if (!r.step || !r.windowUnits || (r.kind !== 'yield_low' && !r.parameter)) return []
+  if ((r.kind === 'yield_low' || r.kind === 'cpk_low' || r.kind === 'station_bias') && r.threshold === null) return []
   const lotIds = ctx.lots.map((l) => l.id)
-  const n = r.windowUnits ?? 0
+  const n = r.windowUnits
   const key = { step: r.step!, name: r.parameter!, qualifier: r.qualifier }
   switch (r.kind) {
     case 'yield_low': {
