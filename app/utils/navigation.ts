@@ -9,6 +9,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/trends', label: 'Trends', roles: ['admin', 'quality', 'engineer'] },
   { to: '/stations', label: 'Stations', roles: ['admin', 'engineer'] },
   { to: '/specs', label: 'Specs', roles: ['admin', 'quality', 'engineer'] },
+  { to: '/calibration-impacts', label: 'Cal. impact', roles: ['admin', 'quality', 'engineer'] },
   { to: '/shipments', label: 'Shipments', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/customers', label: 'Customers', roles: ['admin', 'quality'] },
   { to: '/imports', label: 'Imports', roles: ['admin', 'engineer'] },

@@ -83,6 +83,12 @@ export const API_POLICY: Rule[] = [
   { method: 'POST', path: '/api/instruments/:id/calibrations', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/calibrations/:id/supersede', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/calibrations/:id/certificate', allow: ['admin', 'engineer'] },
+  // reviews of what an instrument found out of tolerance measured: quality and admin decide and notify, engineers read
+  { method: 'GET', path: '/api/calibration-impacts', allow: ENGINEERING },
+  { method: 'GET', path: '/api/calibration-impacts/:id', allow: ENGINEERING },
+  { method: 'POST', path: '/api/calibration-impacts/:id/decisions', allow: SHIPPING },
+  { method: 'POST', path: '/api/calibration-impacts/:id/notices', allow: SHIPPING },
+  { method: 'POST', path: '/api/calibration-impacts/:id/close', allow: SHIPPING },
 
   { method: 'GET', path: '/api/lots/:code/summary', allow: STAFF },
   { method: 'GET', path: '/api/lots/:code/parameters/:name', allow: STAFF },

@@ -23,6 +23,8 @@ export type CalibrationRecordView = {
   certificate: { bytes: number; href: string } | null
   inForceNow: boolean
   runs: RecordRunsView
+  /** the impact review of a record found out of tolerance (null until one is opened, on the record's entry or first view) */
+  impactId: number | null
 }
 
 export type HoldingView = { id: number; stationId: number; station: string; from: string; until: string | null }
@@ -63,5 +65,6 @@ export type RejudgeSummaryView = { runs: number; relinked: number; nowLapsed: nu
 export type InstrumentAdded = { id: number; assetNumber: string; kind: string; model: string; serial: string; rejudged: RejudgeSummaryView | null }
 export type InstrumentMoved = { instrumentId: number; station: { id: number; name: string } | null; at: string; rejudged: RejudgeSummaryView }
 export type HoldingCorrected = { holdingId: number; from: string; until: string | null; rejudged: RejudgeSummaryView }
-export type CalibrationAdded = { id: number; instrumentId: number; rejudged: RejudgeSummaryView }
+/** impactId: the review opened for a record found out of tolerance */
+export type CalibrationAdded = { id: number; instrumentId: number; rejudged: RejudgeSummaryView; impactId: number | null }
 export type CalibrationSuperseded = { id: number; supersededFrom: string; rejudged: RejudgeSummaryView }

@@ -41,6 +41,7 @@ export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
   { prefix: '/stations', roles: ['admin', 'engineer'] },
   { prefix: '/imports', roles: ['admin', 'engineer'] },
   { prefix: '/specs', roles: ['admin', 'quality', 'engineer'] },
+  { prefix: '/calibration-impacts', roles: ['admin', 'quality', 'engineer'] },
   { prefix: '/audit', roles: ['admin', 'quality'] },
   { prefix: '/customers', roles: ['admin', 'quality'] },
   { prefix: '/', roles: ['admin', 'quality', 'engineer', 'operator'] },

@@ -3,7 +3,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import { unitStepsOfLot } from '../../server/database/repositories/lot-detail'
 import { lotReadiness } from '../../server/services/lot-readiness'
-import { DEMO_INSTRUMENTS, DEMO_STATIONS } from '../../fixtures/demo-catalogue'
+import { DEMO_CALIBRATION_FINDING, DEMO_INSTRUMENTS, DEMO_STATIONS } from '../../fixtures/demo-catalogue'
+import { noticePlan } from '../../server/services/calibration/impact-notice-plan'
+import { findImpact, lotsOfWindow } from '../../server/database/repositories/calibration-impacts'
 
 // The seeded test database holds the demo scenario; these checks hold it to the product's own rules.
 let db: Knex
@@ -49,5 +51,17 @@ describe('the demo scenario against its own calibration rules', () => {
     const pdf = await db('calibration_certificates as f').join('calibration_records as c', 'c.id', 'f.record_id').where('c.certificate_number', 'BML-25-1140-R1').first('f.pdf')
     expect(Buffer.from(pdf.pdf).subarray(0, 5).toString('latin1')).toBe('%PDF-')
     expect(DEMO_STATIONS.every((s) => DEMO_INSTRUMENTS.some((i) => i.holdings.some((h) => h.station === s.name && h.untilDaysAgo === undefined)))).toBe(true)
+  })
+
+  it('has an open impact review for the analyser found out of tolerance, holding the shipped doubler lot and Saltmarsh\'s certificates', async () => {
+    const row = await db('calibration_impacts as i').join('calibration_records as c', 'c.id', 'i.record_id')
+      .where('c.certificate_number', DEMO_CALIBRATION_FINDING.certificate).first('i.id', 'i.status')
+    expect(row.status).toBe('open')
+    const impact = (await findImpact(db, row.id))!
+    const lots = await lotsOfWindow(db, { instrumentId: impact.instrumentId, from: impact.from, to: impact.to }, impact.id)
+    expect(lots.find((l) => l.code === 'D2-2611-A')?.units).toBe(48)
+    const plan = await noticePlan(db, impact)
+    expect(plan.map((p) => p.customer.code)).toContain('SALT')
+    expect(plan.find((p) => p.customer.code === 'SALT')!.units.length).toBeGreaterThan(0)
   })
 })

@@ -7,6 +7,8 @@ export type AsFound = 'in_tolerance' | 'out_of_tolerance'
 export type CalibrationRow = CalibrationSpan & {
   certificateNumber: string | null; laboratory: string | null; asFound: AsFound | null; createdAt: Date; createdBy: string | null
   supersededReason: string | null; supersededAt: Date | null; supersededBy: string | null; certificateBytes: number | null
+  /** the impact review opened for a record found out of tolerance */
+  impactId: number | null
 }
 
 const instrument = (r: any): InstrumentRow => ({ id: r.id, assetNumber: r.asset_number, kind: r.kind, model: r.model, serial: r.serial, createdAt: r.created_at })
@@ -114,14 +116,14 @@ export async function recordsOfInstruments(db: Knex, instrumentIds: readonly num
   if (!instrumentIds.length) return []
   const rows = await db('calibration_records as c')
     .leftJoin('users as cu', 'cu.id', 'c.created_by').leftJoin('users as su', 'su.id', 'c.superseded_by')
-    .leftJoin('calibration_certificates as f', 'f.record_id', 'c.id')
+    .leftJoin('calibration_certificates as f', 'f.record_id', 'c.id').leftJoin('calibration_impacts as ci', 'ci.record_id', 'c.id')
     .whereIn('c.instrument_id', instrumentIds).orderBy('c.calibrated_on').orderBy('c.id')
-    .select('c.*', 'cu.name as created_by_name', 'su.name as superseded_by_name', 'f.bytes as certificate_bytes')
+    .select('c.*', 'cu.name as created_by_name', 'su.name as superseded_by_name', 'f.bytes as certificate_bytes', 'ci.id as impact_id')
   return rows.map((r: any) => ({
     ...span(r), certificateNumber: r.certificate_number ?? null, laboratory: r.laboratory ?? null, asFound: r.as_found ?? null,
     createdAt: r.created_at, createdBy: r.created_by_name ?? null, supersededReason: r.superseded_reason ?? null,
     supersededAt: r.superseded_at ?? null, supersededBy: r.superseded_by_name ?? null,
-    certificateBytes: r.certificate_bytes == null ? null : Number(r.certificate_bytes),
+    certificateBytes: r.certificate_bytes == null ? null : Number(r.certificate_bytes), impactId: r.impact_id ?? null,
   }))
 }
 

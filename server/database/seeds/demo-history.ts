@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
-import { DEMO_LOTS, DEMO_PRODUCTS, DEMO_STATIONS, type DemoProduct } from '../../../fixtures/demo-catalogue'
+import { DEMO_CALIBRATION_FINDING, DEMO_LOTS, DEMO_PRODUCTS, DEMO_STATIONS, type DemoProduct } from '../../../fixtures/demo-catalogue'
 import { generateRun, mulberry32, type GeneratedRun } from '../../../fixtures/run-generator'
+import { addCalibration } from '../../services/calibration/history'
 import { ingestBatch } from '../../services/ingest/ingest-batch'
 import { changeLotStatus } from '../../services/lot-status'
 import { createShipment } from '../../services/shipments/drafts'
@@ -84,6 +85,7 @@ export async function seedDemoHistory(db: Knex, now = new Date()): Promise<numbe
     }
   }
   await seedDemoShipments(db, now)
+  await seedDemoCalibrationFinding(db, now)
   // seeded history is old: a station was last seen when it finished its last seeded run, not when the seed ran
   await db.raw('UPDATE stations s SET last_seen_at = (SELECT MAX(r.finished_at) FROM test_runs r WHERE r.station_id = s.id)')
   return count
@@ -122,4 +124,15 @@ async function seedDemoShipments(db: Knex, now: Date): Promise<void> {
     await releaseShipment(db, quality.id, id, { signed: signed(released) }, released)
     if (p.dispatch) await dispatchShipment(db, quality.id, id, p.dispatch, at(p.releasedDaysAgo - 1))
   }
+}
+
+/** The doubler bay's analyser found out of tolerance after the shipments, entered as an engineer enters it: its review opens. */
+async function seedDemoCalibrationFinding(db: Knex, now: Date): Promise<void> {
+  const f = DEMO_CALIBRATION_FINDING
+  const engineer = await db('users').where({ role: 'engineer' }).first('id')
+  const instrument = await db('instruments').where({ asset_number: f.asset }).first('id')
+  await addCalibration(db, engineer.id, instrument.id, {
+    certificateNumber: f.certificate, laboratory: f.laboratory, asFound: 'out_of_tolerance',
+    calibratedOn: new Date(now.getTime() - f.calibratedDaysAgo * DAY).toISOString(), dueAt: new Date(now.getTime() + f.dueInDays * DAY).toISOString(),
+  }, now)
 }

@@ -13,6 +13,7 @@ import {
 } from '../../database/repositories/calibration'
 import { RuleError } from '../rule-error'
 import { decodeCertificatePdf } from './certificate-file'
+import { openImpactReview } from './impact-open'
 import { rejudgeRuns, runsTouchedByHolding, runsTouchedByRecords, type RejudgeSummary } from './rejudge'
 
 export type NewInstrument = { assetNumber: string; kind: string; model: string; serial: string; stationId?: number; installedAt?: string }
@@ -187,7 +188,9 @@ export async function addCalibration(db: Knex, actorId: number | null, instrumen
         certificate: file?.ok ? { bytes: file.pdf.length, sha256: file.sha256, fileName } : null, rejudged,
       },
     })
-    return { id, instrumentId, rejudged }
+    // found out of tolerance: the review of what the instrument measured since it was last found right opens with the record
+    const impactId = input.asFound === 'out_of_tolerance' ? await openImpactReview(trx, id, instrumentId, actorId, now) : null
+    return { id, instrumentId, rejudged, impactId }
   })
 }
 

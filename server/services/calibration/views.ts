@@ -53,7 +53,7 @@ function recordView(r: CalibrationRow, inForceNow: boolean, runs: RecordRunsView
     calibratedOn: iso(r.calibratedOn), dueAt: iso(r.dueAt), enteredAt: iso(r.createdAt), enteredBy: r.createdBy,
     superseded: r.supersededFrom ? { from: iso(r.supersededFrom), reason: r.supersededReason, at: r.supersededAt ? iso(r.supersededAt) : null, by: r.supersededBy } : null,
     certificate: r.certificateBytes === null ? null : { bytes: r.certificateBytes, href: `/api/calibrations/${r.id}/certificate` },
-    inForceNow, runs,
+    inForceNow, runs, impactId: r.impactId,
   }
 }
 
