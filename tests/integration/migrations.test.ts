@@ -30,9 +30,10 @@ describe('migrations', () => {
     await db.migrate.latest({ migrationSource })
     const up = await tables()
     expect(up).toEqual(expect.arrayContaining(['users', 'products', 'spec_revisions', 'spec_limits', 'stations', 'station_tokens', 'instruments',
-      'lots', 'units', 'test_runs', 'measurements', 'traces', 'shipments', 'shipment_units', 'certificates', 'alert_rules', 'alert_events', 'audit_log',
+      'lots', 'units', 'test_runs', 'measurements', 'traces', 'shipments', 'shipment_units', 'certificates', 'alert_rules', 'audit_log',
       'customers', 'customer_contacts', 'unit_returns', 'retest_policies', 'unit_dispositions', 'certificate_documents', 'certificate_sequences', 'request_limits', 'lot_param_stats', 'lot_step_stats', 'lot_stats_pending', 'unit_steps',
-      'instrument_holdings', 'calibration_records', 'calibration_certificates', 'run_instruments', 'calibration_history_version', 'calibration_rejudge', 'mail_outbox', 'password_resets']))
+      'instrument_holdings', 'calibration_records', 'calibration_certificates', 'run_instruments', 'calibration_history_version', 'calibration_rejudge', 'mail_outbox', 'password_resets',
+      'calibration_impacts', 'calibration_impact_decisions', 'calibration_impact_notices']))
     await db.migrate.rollback({ migrationSource }, true)
     expect(await tables()).toEqual([])
     await db.migrate.latest({ migrationSource })
