@@ -265,6 +265,24 @@ describe('the review of an out-of-tolerance finding', () => {
     expect(await db('audit_log').where({ entity: 'calibration_impact', entity_id: String(impactId), action: 'calibration_impact_close' })).toHaveLength(1)
   })
 
+  it('opens on first view for a record entered without one, and the station page links each finding to its review', async () => {
+    const instrumentId = (await db('instruments').where({ asset_number: assets.b }).first('id')).id
+    const [recordId] = await db('calibration_records').insert({ instrument_id: instrumentId, certificate_number: `CAL-${tag}-B2`, as_found: 'out_of_tolerance', calibrated_on: dayStart(1), due_at: dayStart(-300) })
+    expect(await db('calibration_impacts').where({ record_id: recordId })).toHaveLength(0)
+    const list = await call('GET', '/api/calibration-impacts', { cookie: engineer })
+    const opened = list.body.impacts.find((i: any) => i.record.id === recordId)
+    // B measured OTHER at dayStart(4), after its in-tolerance calibration at dayStart(9)
+    expect(opened).toMatchObject({ status: 'open', window: { from: dayStart(9).toISOString(), to: dayStart(1).toISOString() }, counts: { units: 1, runs: 1, certificates: 1 } })
+    expect((await call('GET', '/api/calibration-impacts', { cookie: engineer })).body.impacts.filter((i: any) => i.record.id === recordId)).toHaveLength(1)
+
+    const stations = await call('GET', '/api/stations', { cookie: engineer })
+    const d2 = stations.body.stations.find((s: any) => s.name === 'ATE-D2-01')
+    const view = await call('GET', `/api/stations/${d2.id}/calibration`, { cookie: engineer })
+    const records = view.body.current.flatMap((i: any) => i.records)
+    expect(records.find((r: any) => r.certificateNumber === 'BML-26-0093').impactId).toEqual(expect.any(Number))
+    expect(records.filter((r: any) => r.asFound === 'in_tolerance').every((r: any) => r.impactId === null)).toBe(true)
+  })
+
   it('answers 404 for a review that does not exist', async () => {
     expect((await call('GET', '/api/calibration-impacts/999999', { cookie: quality })).status).toBe(404)
   })
