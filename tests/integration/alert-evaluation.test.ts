@@ -235,6 +235,22 @@ describe('each kind of rule', () => {
   })
 })
 
+describe('a rule that cannot be evaluated', () => {
+  it('is reported and skipped: the other rules of its product still fire and the mark is cleared', async () => {
+    const productId = await newProduct('ALR-BAD')
+    const bad = await rule({ name: 'Cpk on broken limits', kind: 'cpk_low', product_id: productId, step: 'tune', parameter: 'output_power', threshold: 1, window_units: 10 })
+    const good = await rule({ name: 'Yield beside broken limits', kind: 'yield_low', product_id: productId, step: 'tune', threshold: 99, window_units: 10 })
+    await post('ALR-BAD', 'ALR-BAD-1', [10, 7, 10, 10.2, 9.8, 10.1, 9.9, 10, 10.3, 9.7], () => stations['ATE-A1']!)
+    // limits the capability arithmetic refuses (USL below LSL), as a hand edit of the database could leave them
+    const rev = await db('spec_revisions').where({ product_id: productId }).first('id')
+    await db('spec_limits').where({ revision_id: rev.id }).update({ lsl: 12, usl: 8 })
+    const r = await evaluate()
+    expect(r.failedRules).toEqual([bad])
+    expect(await firings(good)).toHaveLength(1)
+    expect(await db('alert_marks').where({ product_id: productId }).first()).toBeUndefined()
+  })
+})
+
 describe('throttle and subscriptions', () => {
   it('two evaluations within the hour raise one firing and one message per recipient; after the hour a second', async () => {
     const productId = await newProduct('ALR-THR')

@@ -70,13 +70,13 @@ export async function evaluateResultRule(db: Knex, ctx: ProductContext, r: RuleR
       const previous = await lastFiring(db, r.id, paramSubject(r))
       const testedAt = previous?.figures.find((f) => f.label === 'Tested at')?.value
       const after = typeof testedAt === 'string' ? new Date(testedAt) : null
-      const c = checkControlRule(values, { rules: controlRulesFromMask(r.controlRules), windowUnits: n }, basis, after)
+      const c = checkControlRule(values, { rules: controlRulesFromMask(r.controlRules), windowUnits: n }, basis, after, limitsInForce(ctx, r)?.unit)
       if (!c.fired || !c.point) return []
       return [{ ...base(ctx, r, paramSubject(r), `${ctx.partNumber} · ${r.step} · ${paramLabel(r)}`, c.point.lotId), summary: c.summary, figures: c.figures, link: lotLink(c.point.lot, r) }]
     }
     case 'station_bias': {
       const values = (await lastValues(db, lotIds, key, n)).map(toPoint)
-      return checkStationBias(values, { threshold: r.threshold!, windowUnits: n }).filter((s) => s.fired).map((s) => {
+      return checkStationBias(values, { threshold: r.threshold!, windowUnits: n }, limitsInForce(ctx, r)?.unit).filter((s) => s.fired).map((s) => {
         const stationId = Number(s.key.slice('station:'.length))
         return {
           ...base(ctx, r, `${paramSubject(r)}/${s.key}`, `${s.label} · ${ctx.partNumber} · ${r.step} · ${paramLabel(r)}`, values.at(-1)?.lotId ?? null),
