@@ -11,6 +11,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/specs', label: 'Specs', roles: ['admin', 'quality', 'engineer'] },
   { to: '/calibration-impacts', label: 'Cal. impact', roles: ['admin', 'quality', 'engineer'] },
   { to: '/shipments', label: 'Shipments', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  { to: '/alerts', label: 'Alerts', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { to: '/customers', label: 'Customers', roles: ['admin', 'quality'] },
   { to: '/imports', label: 'Imports', roles: ['admin', 'engineer'] },
   { to: '/audit', label: 'Audit', roles: ['admin', 'quality'] },

@@ -8,7 +8,7 @@ import { RuleError } from './rule-error'
 
 function productView(p: ProductRecord) {
   return {
-    partNumber: p.partNumber, name: p.name, multiplier: p.multiplier, inputHz: p.inputHz, outputHz: p.outputHz,
+    id: p.id, partNumber: p.partNumber, name: p.name, multiplier: p.multiplier, inputHz: p.inputHz, outputHz: p.outputHz,
     steps: p.steps, jitterBandLoHz: p.jitterBandLoHz, jitterBandHiHz: p.jitterBandHiHz, updatedAt: p.updatedAt,
   }
 }

@@ -16,13 +16,15 @@ export function ruleNumbers(rules: readonly number[]): string {
   return `${rules.slice(0, -1).join(', ')} or ${rules[rules.length - 1]}`
 }
 
+const lowerFirst = (text: string) => text.charAt(0).toLowerCase() + text.slice(1)
+
 type RuleFigures = Pick<AlertRuleDto, 'kind' | 'stationCode' | 'step' | 'parameter' | 'qualifier' | 'threshold' | 'windowUnits' | 'horizonUnits' | 'silentMinutes' | 'controlRules'>
 
 export function ruleSentence(rule: RuleFigures): string {
   const info = ALERT_KIND_INFO[rule.kind as AlertKind]
   const v: Record<string, string> = {
     step: rule.step ?? '?',
-    parameter: rule.parameter ? `${parameterLabel(rule.parameter, rule.qualifier)} at ${rule.step ?? '?'}` : '?',
+    parameter: rule.parameter ? `${lowerFirst(parameterLabel(rule.parameter, rule.qualifier))} at ${rule.step ?? '?'}` : '?',
     threshold: rule.threshold === null ? '?' : String(rule.threshold),
     windowUnits: rule.windowUnits === null ? '?' : String(rule.windowUnits),
     horizonUnits: rule.horizonUnits === null ? '?' : String(rule.horizonUnits),
@@ -30,6 +32,7 @@ export function ruleSentence(rule: RuleFigures): string {
     controlRules: rule.controlRules.length ? ruleNumbers(rule.controlRules) : '?',
     station: rule.stationCode ?? 'any station',
   }
-  const text = info.reads.replace(/\{(\w+)\}/g, (_, k: string) => v[k] ?? `{${k}}`)
-  return text.charAt(0).toUpperCase() + text.slice(1)
+  return info.reads.replace(/\{(\w+)\}/g, (_, k: string) => v[k] ?? `{${k}}`)
 }
+
+export const capitalised = (text: string) => text.charAt(0).toUpperCase() + text.slice(1)

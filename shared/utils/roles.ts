@@ -37,6 +37,8 @@ export const PAGE_ACCESS: { prefix: string; roles: Role[] }[] = [
   // the customer portal; staff open it too, to see what a customer sees
   { prefix: '/portal', roles: ['customer', 'admin', 'quality', 'engineer', 'operator'] },
   { prefix: '/floor', roles: ['admin', 'quality', 'engineer', 'operator'] },
+  // alerts and their rules: every staff role reads and follows; the rule editor shows for engineering staff
+  { prefix: '/alerts', roles: ['admin', 'quality', 'engineer', 'operator'] },
   { prefix: '/stations/compare', roles: ['admin', 'quality', 'engineer'] },
   { prefix: '/stations', roles: ['admin', 'engineer'] },
   { prefix: '/imports', roles: ['admin', 'engineer'] },
