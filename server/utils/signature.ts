@@ -5,7 +5,7 @@ import { problem } from './problem'
 
 /**
  * Signing an action again: releasing a lot or a shipment, approving a specification revision, revoking or
- * reissuing a certificate. The user types the password again, or signed in within the last few minutes.
+ * reissuing a certificate, sending calibration impact notices. The user types the password again, or signed in within the last few minutes.
  */
 export type Signature = { method: 'password' | 'recent-sign-in'; at: string; signedInAt?: string }
 

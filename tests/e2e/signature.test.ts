@@ -1,5 +1,5 @@
-// Approving a revision, releasing a lot or a shipment, revoking or reissuing a certificate: signed by the password
-// again, or by a sign-in within the window.
+// Approving a revision, releasing a lot or a shipment, revoking or reissuing a certificate, sending calibration impact
+// notices: signed by the password again, or by a sign-in within the window.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { baseUrl, call, signIn, ROLE_ACCOUNTS } from '../support/http'
 import { startSecondServer } from '../support/second-server'
@@ -47,7 +47,7 @@ describe('signing again', () => {
     const refused = await at(second!.url, 'POST', '/api/shipments/999999/release', {}, fresh, address)
     expect(refused.status).toBe(422)
     expect(refused.body).toMatchObject({ signature: 'required', errors: [{ pointer: '/password', message: 'your password is needed to sign' }] })
-    for (const path of ['/api/revisions/999999/approve', '/api/lots/NO-SUCH-LOT/release', '/api/certificates/NO-SUCH/reissue']) {
+    for (const path of ['/api/revisions/999999/approve', '/api/lots/NO-SUCH-LOT/release', '/api/certificates/NO-SUCH/reissue', '/api/calibration-impacts/999999/notices']) {
       expect((await at(second!.url, 'POST', path, {}, fresh, address)).status).toBe(422)
     }
     expect((await at(second!.url, 'POST', '/api/certificates/NO-SUCH/revoke', { reason: 'Wrong unit' }, fresh, address)).status).toBe(422)

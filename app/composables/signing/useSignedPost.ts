@@ -1,4 +1,4 @@
-// Actions that must be signed (approve, release, revoke, reissue): sent as they are first; when the server asks for
+// Actions that must be signed (approve, release, revoke, reissue, calibration impact notices): sent as they are first; when the server asks for
 // the password again (422 with `signature: 'required'`), the prompt opens and the same request is sent with it.
 export type Signer = ReturnType<typeof useSignedPost>
 
