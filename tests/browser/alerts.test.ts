@@ -77,6 +77,10 @@ describe('alerts pages', () => {
     expect(await card.locator('[data-test=alert-comments]').textContent()).toContain('re-torqued')
     await expect.poll(() => page.locator('[data-test=alert-badge-count]').textContent()).toBe('0')
     await shot(page, 'alerts-acknowledged')
+    // the list also renders on the server when opened directly
+    await page.goto(`${baseUrl()}/alerts?state=acknowledged&mine=1`)
+    await hydrated(page)
+    expect(await page.locator('[data-test=alert-card]', { hasText: RULE }).textContent()).toContain('re-torqued')
     await page.context().close()
   })
 

@@ -8,12 +8,13 @@ export async function useAlerts() {
   const state = computed<AlertState>(() => (['open', 'acknowledged', 'all'].includes(String(route.query.state)) ? route.query.state as AlertState : 'open'))
   const mine = computed(() => route.query.mine === '1')
   const query = computed(() => ({ state: state.value, ...(mine.value ? { mine: '1' } : {}), limit: 25 }))
+  // composables that need the Nuxt instance come before the first await, which loses it on the server
+  const { refresh: refreshCount } = useAlertCount()
   const first = await useFetch<AlertPage>('/api/alerts', { query, default: () => ({ alerts: [], next: null }) })
   const older = ref<AlertFiringDto[]>([])
   const next = ref<string | null>(null)
   watch(first.data, (d) => { older.value = []; next.value = d.next }, { immediate: true })
   const alerts = computed(() => [...first.data.value.alerts, ...older.value])
-  const { refresh: refreshCount } = useAlertCount()
 
   async function loadOlder() {
     if (!next.value) return
