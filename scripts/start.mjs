@@ -14,6 +14,8 @@ const { startMailFakeIfNeeded } = await import('./lib/mail.mjs')
 const env = loadEnv()
 const port = Number(env.PORT || 3000)
 const host = env.HOST || '127.0.0.1'
+// links in e-mail and on certificates point at this server unless the operator names the public address
+env.NUXT_PUBLIC_SITE_URL ||= `http://localhost:${port}`
 
 const free = await new Promise((done) => {
   const srv = net.createServer().once('error', () => done(false)).once('listening', () => srv.close(() => done(true)))

@@ -179,7 +179,9 @@ export function checkCalibrationDue(held: readonly HeldInstrument[], now: Date, 
       key: `instrument:${i.instrumentId}/due:${due}`, label: `${i.assetNumber} on ${i.station}`, fired: true,
       figures: [
         { label: 'Instrument', value: i.assetNumber }, { label: 'Station', value: i.station }, { label: 'Due', value: i.dueAt ? due : null },
-        { label: 'Days left', value: daysLeft, unit: 'days' }, { label: 'Due-soon period', value: days, unit: 'days' },
+        // whole days either side of the due instant: 3.6 days past it reads "3 days overdue", not "−4 days left"
+        i.dueAt && left <= 0 ? { label: 'Days overdue', value: Math.floor(-left / DAY_MS), unit: 'days' } : { label: 'Days left', value: daysLeft, unit: 'days' },
+        { label: 'Due-soon period', value: days, unit: 'days' },
       ],
       summary: `${i.assetNumber} on ${i.station} ${state}`,
     }]

@@ -283,6 +283,17 @@ describe('the review of an out-of-tolerance finding', () => {
     expect(records.filter((r: any) => r.asFound === 'in_tolerance').every((r: any) => r.impactId === null)).toBe(true)
   })
 
+  it('closes a review as it opens when nothing was measured with the instrument in its window', async () => {
+    const quiet = await instrument(`IMP-${tag}-Q`.slice(0, 32))
+    await calibrate(quiet, 'in_tolerance', 9, 'Q1')
+    const found = await calibrate(quiet, 'out_of_tolerance', 2, 'Q2')
+    const detail = await call('GET', `/api/calibration-impacts/${found.impactId}`, { cookie: quality })
+    expect(detail.body).toMatchObject({ status: 'closed', closed: { by: null }, counts: { runs: 0, units: 0, certificates: 0 } })
+    const audit = await db('audit_log').where({ entity: 'calibration_impact', entity_id: String(found.impactId) }).orderBy('id').pluck('action')
+    expect(audit).toEqual(['calibration_impact_open', 'calibration_impact_close'])
+    expect((await call('POST', `/api/calibration-impacts/${found.impactId}/close`, { cookie: quality })).status).toBe(409)
+  })
+
   it('answers 404 for a review that does not exist', async () => {
     expect((await call('GET', '/api/calibration-impacts/999999', { cookie: quality })).status).toBe(404)
   })

@@ -62,7 +62,7 @@ export async function lockImpact(trx: Knex, id: number): Promise<ImpactRow | und
   return r ? impact(r) : undefined
 }
 
-export async function closeImpactRow(trx: Knex, id: number, by: number, at: Date): Promise<void> {
+export async function closeImpactRow(trx: Knex, id: number, by: number | null, at: Date): Promise<void> {
   await trx('calibration_impacts').where({ id }).update({ status: 'closed', closed_at: at, closed_by: by })
 }
 

@@ -3,7 +3,7 @@
 import type { Knex } from 'knex'
 import { impactWindow } from '../../../shared/utils/calibration-impact'
 import { writeAudit } from '../../database/repositories/audit'
-import { countWindow, impactRecordsOf, insertImpact, recordsWithoutReview, setImpactCounts } from '../../database/repositories/calibration-impacts'
+import { closeImpactRow, countWindow, impactRecordsOf, insertImpact, recordsWithoutReview, setImpactCounts } from '../../database/repositories/calibration-impacts'
 
 /** Opens the review of one record inside the caller's transaction; null when the record is not out of tolerance or already has one. */
 export async function openImpactReview(trx: Knex, recordId: number, instrumentId: number, actorId: number | null, now = new Date()): Promise<number | null> {
@@ -21,6 +21,15 @@ export async function openImpactReview(trx: Knex, recordId: number, instrumentId
     userId: actorId, action: 'calibration_impact_open', entity: 'calibration_impact', entityId: id,
     after: { recordId, instrumentId, window: { from: window.from.toISOString(), to: window.to.toISOString(), basis: window.basis }, counts },
   })
+  // Nothing was measured with the instrument in the window: there is nothing to decide or tell anyone, so the review
+  // closes as it opens rather than waiting on the list for a person to close an empty page.
+  if (counts.runs === 0) {
+    await closeImpactRow(trx, id, null, now)
+    await writeAudit(trx, {
+      userId: actorId, action: 'calibration_impact_close', entity: 'calibration_impact', entityId: id,
+      before: { status: 'open' }, after: { status: 'closed', counts, reason: 'no run was measured with the instrument in the window' },
+    })
+  }
   return id
 }
 

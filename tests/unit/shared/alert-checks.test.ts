@@ -151,6 +151,9 @@ describe('calibration due', () => {
     expect(r!.key).toBe(`instrument:1/due:${at(10).toISOString().slice(0, 10)}`)
     expect(figure(r!, 'Days left')).toBe(10)
     expect(checkCalibrationDue([held(at(-2))], now, 30)).toHaveLength(1)
+    const [late] = checkCalibrationDue([held(at(-3.6))], now, 30)
+    expect(figure(late!, 'Days overdue')).toBe(3)
+    expect(late!.figures.some((f) => f.label === 'Days left')).toBe(false)
   })
   it('stays quiet beyond the period', () => {
     expect(checkCalibrationDue([held(at(31))], now, 30)).toEqual([])
