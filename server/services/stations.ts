@@ -1,6 +1,8 @@
 import type { Knex } from 'knex'
 import { worstCalibration, type CalibrationState } from '../../shared/utils/calibration'
 import { writeAudit } from '../database/repositories/audit'
+import { recentStationRuns, stationExists } from '../database/repositories/station-runs'
+import type { StationRecentRun } from '../../shared/types/station-runs'
 import { insertToken, revokeTokens } from '../database/repositories/station-tokens'
 import {
   activeTokenHints, findStation, insertStation, listStations, listTokens, lockStation, type StationRow, type TokenRow,
@@ -89,4 +91,9 @@ export async function revokeStationTokens(db: Knex, actorId: number | null, stat
     await writeAudit(trx, { userId: actorId, action: 'token_revoke', entity: 'station', entityId: stationId, before: { activeTokenHints: hints }, after: { activeTokenHints: [] } })
     return { revoked }
   })
+}
+
+/** The station's latest runs (at most `limit`), or undefined for a station that does not exist. */
+export async function stationRecentRuns(db: Knex, id: number, limit = 20): Promise<StationRecentRun[] | undefined> {
+  return (await stationExists(db, id)) ? recentStationRuns(db, id, limit) : undefined
 }

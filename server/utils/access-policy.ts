@@ -76,6 +76,7 @@ export const API_POLICY: Rule[] = [
   { method: 'POST', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'DELETE', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/stations/:id/calibration', allow: ['admin', 'engineer'] },
+  { method: 'GET', path: '/api/stations/:id/runs', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/instruments', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/instruments', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/instruments/:id/moves', allow: ['admin', 'engineer'] },

@@ -36,3 +36,19 @@ describe('the station software page', () => {
     await page.context().close()
   })
 })
+
+describe('a station page', () => {
+  it('lists the station\'s latest runs, each serial linking to its unit', async () => {
+    const page = await signInPage(browser, baseUrl(), 'engineer@tercet.test', { width: 1440, height: 900 })
+    await page.goto(`${baseUrl()}/stations`)
+    await hydrated(page)
+    expect(await page.locator('[data-test="stations-links"]').getByRole('link', { name: 'Compare stations' }).getAttribute('href')).toBe('/stations/compare')
+    await page.getByRole('link', { name: 'ATE-D2-01' }).click()
+    const runs = page.locator('[data-test="station-recent-runs"]')
+    await expect.poll(() => runs.locator('tbody tr').count(), { timeout: 20_000 }).toBe(20)
+    const first = runs.locator('tbody tr').first().locator('a').first()
+    expect(await first.getAttribute('href')).toMatch(/^\/units\/[^?]+\?part=VFW-D2-250$/)
+    await shot(page, 'station-recent-runs')
+    await page.context().close()
+  })
+})

@@ -64,6 +64,7 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'POST /api/stations/:id/token', sample: '/api/stations/999999/token', allow: ['admin', 'engineer'] },
   { route: 'DELETE /api/stations/:id/token', sample: '/api/stations/999999/token', allow: ['admin', 'engineer'] },
   { route: 'GET /api/stations/:id/calibration', sample: '/api/stations/999999/calibration', allow: ['admin', 'engineer'] },
+  { route: 'GET /api/stations/:id/runs', sample: '/api/stations/999999/runs', allow: ['admin', 'engineer'] },
   { route: 'GET /api/instruments', allow: ['admin', 'engineer'] },
   { route: 'POST /api/instruments', allow: ['admin', 'engineer'] },
   { route: 'POST /api/instruments/:id/moves', sample: '/api/instruments/999999/moves', allow: ['admin', 'engineer'] },
