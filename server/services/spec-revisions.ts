@@ -4,7 +4,7 @@ import { writeAudit } from '../database/repositories/audit'
 import type { Signature } from '../utils/signature'
 import { findProductById, findProductByPartNumber } from '../database/repositories/products'
 import {
-  findDraftOf, findSourceRevision, insertRevision, latestEffectiveAt, listLimitsOf, lockRevision, markApproved,
+  clearSubmission, findDraftOf, findSourceRevision, insertRevision, latestEffectiveAt, listLimitsOf, lockRevision, markApproved,
   nextRevisionNumber, replaceLimits, supersedeApproved,
 } from '../database/repositories/spec-revisions'
 import { normalizeSpecLimit, validateSpecLimits, type SpecLimitRow } from '../../shared/utils/spec-limits'
@@ -45,7 +45,10 @@ async function lockDraft(trx: Knex, revisionId: number) {
   return { rev, product }
 }
 
-/** Replaces a draft's whole limit table after checking it against the product's steps and the measurement rules. */
+/**
+ * Replaces a draft's whole limit table after checking it against the product's steps and the measurement rules.
+ * A submitted draft goes back to a plain draft: what the reviewer was asked to approve no longer exists.
+ */
 export async function replaceDraftLimits(db: Knex, actorId: number, revisionId: number, input: LimitInput[], action = 'limits_replace'): Promise<SpecLimitRow[]> {
   return db.transaction(async (trx) => {
     const { rev, product } = await lockDraft(trx, revisionId)
@@ -54,7 +57,12 @@ export async function replaceDraftLimits(db: Knex, actorId: number, revisionId: 
     const limits = input.map(normalizeSpecLimit)
     const before = await listLimitsOf(trx, revisionId)
     await replaceLimits(trx, revisionId, limits)
-    await writeAudit(trx, { userId: actorId, action, entity: 'spec_revision', entityId: revisionId, before: { revision: rev.revision, limits: before }, after: { revision: rev.revision, limits } })
+    if (rev.submittedAt) await clearSubmission(trx, revisionId)
+    const submission = rev.submittedAt ? { before: { submittedAt: rev.submittedAt, submitNote: rev.submitNote, reviewerId: rev.reviewerId }, after: { submittedAt: null } } : { before: {}, after: {} }
+    await writeAudit(trx, {
+      userId: actorId, action, entity: 'spec_revision', entityId: revisionId,
+      before: { revision: rev.revision, limits: before, ...submission.before }, after: { revision: rev.revision, limits, ...submission.after },
+    })
     return limits
   })
 }
@@ -65,7 +73,8 @@ export async function checkDraftAccepts(db: Knex, revisionId: number): Promise<{
 }
 
 /**
- * Approval by a quality engineer who did not write the draft. The approved revision takes effect at
+ * Approval by a quality engineer who did not write the draft. A draft never submitted may still be approved
+ * (the audit row says so); the note is kept with the revision and shown on its page. The approved revision takes effect at
  * `effectiveAt` (now by default); the one it replaces is marked superseded but stays in force until then.
  */
 export async function approveRevision(db: Knex, actor: UserRecord, revisionId: number, opts: { effectiveAt?: Date; note?: string; signed?: Signature } = {}, now = new Date()) {
@@ -93,8 +102,11 @@ export async function approveRevision(db: Knex, actor: UserRecord, revisionId: n
     const superseded = await supersedeApproved(trx, product.id, revisionId)
     await writeAudit(trx, {
       userId: actor.id, action: 'approve', entity: 'spec_revision', entityId: revisionId,
-      before: { status: 'draft', partNumber: product.partNumber, revision: rev.revision, effectiveAt: null, supersedes: [] },
-      after: { status: 'approved', partNumber: product.partNumber, revision: rev.revision, effectiveAt, supersedes: superseded.map((s) => s.revision), ...(opts.signed ? { signed: opts.signed } : {}) },
+      before: { status: 'draft', partNumber: product.partNumber, revision: rev.revision, effectiveAt: null, supersedes: [], submittedAt: rev.submittedAt },
+      after: {
+        status: 'approved', partNumber: product.partNumber, revision: rev.revision, effectiveAt, supersedes: superseded.map((s) => s.revision),
+        note: opts.note ?? null, ...(opts.signed ? { signed: opts.signed } : {}),
+      },
     })
     for (const s of superseded) {
       await writeAudit(trx, { userId: actor.id, action: 'supersede', entity: 'spec_revision', entityId: s.id, before: { status: 'approved' }, after: { status: 'superseded', by: rev.revision } })

@@ -117,6 +117,11 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/revisions/:id/limits.csv', allow: ENGINEERING },
   { method: 'POST', path: '/api/revisions/:id/limits/import', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/revisions/:id/approve', allow: ['quality'] },
+  // the draft's author or an administrator submits it; its author (engineer), an administrator or quality may discard it
+  { method: 'POST', path: '/api/revisions/:id/submit', allow: ['admin', 'engineer'] },
+  { method: 'POST', path: '/api/revisions/:id/discard', allow: ENGINEERING },
+  { method: 'GET', path: '/api/specs/awaiting-approval', allow: ['quality'] },
+  { method: 'GET', path: '/api/specs/reviewers', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/revisions/:id/compare/:other', allow: ENGINEERING },
 
   { method: 'GET', path: '/api/lots/:code', allow: STAFF },

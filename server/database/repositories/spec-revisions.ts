@@ -1,13 +1,16 @@
 import type { Knex } from 'knex'
 import type { SpecLimitRow } from '../../../shared/utils/spec-limits'
 
-export type RevisionStatus = 'draft' | 'approved' | 'superseded'
+export type RevisionStatus = 'draft' | 'approved' | 'superseded' | 'discarded'
 export type Person = { id: number; name: string } | null
 
 export type RevisionRecord = {
   id: number; productId: number; partNumber: string; revision: number; status: RevisionStatus
   effectiveAt: Date | null; author: Person; approvedBy: Person; approvedAt: Date | null; note: string | null; createdAt: Date
   limitCount: number
+  /** set while a draft awaits approval; cleared when its limits change */
+  submittedAt: Date | null; submittedBy: Person; submitNote: string | null; reviewer: Person
+  discardedAt: Date | null; discardedBy: Person; discardNote: string | null
 }
 
 const EFFECTIVE: RevisionStatus[] = ['approved', 'superseded']
@@ -21,13 +24,18 @@ function toRevision(r: any): RevisionRecord {
     id: r.id, productId: r.product_id, partNumber: r.part_number, revision: r.revision, status: r.status,
     effectiveAt: r.effective_at ?? null, author: person(r.author_id, r.author_name), approvedBy: person(r.approved_by, r.approver_name),
     approvedAt: r.approved_at ?? null, note: r.note ?? null, createdAt: r.created_at, limitCount: Number(r.limit_count ?? 0),
+    submittedAt: r.submitted_at ?? null, submittedBy: person(r.submitted_by, r.submitter_name), submitNote: r.submit_note ?? null,
+    reviewer: person(r.reviewer_id, r.reviewer_name),
+    discardedAt: r.discarded_at ?? null, discardedBy: person(r.discarded_by, r.discarder_name), discardNote: r.discard_note ?? null,
   }
 }
 
 function base(db: Knex) {
   return db('spec_revisions as r').join('products as p', 'p.id', 'r.product_id')
     .leftJoin('users as a', 'a.id', 'r.author_id').leftJoin('users as q', 'q.id', 'r.approved_by')
+    .leftJoin('users as s', 's.id', 'r.submitted_by').leftJoin('users as v', 'v.id', 'r.reviewer_id').leftJoin('users as d', 'd.id', 'r.discarded_by')
     .select('r.*', 'p.part_number', 'a.name as author_name', 'q.name as approver_name',
+      's.name as submitter_name', 'v.name as reviewer_name', 'd.name as discarder_name',
       db('spec_limits as l').count('*').whereRaw('l.revision_id = r.id').as('limit_count'))
 }
 
@@ -44,10 +52,39 @@ export async function findRevision(db: Knex, id: number): Promise<RevisionRecord
   return r ? toRevision(r) : undefined
 }
 
-/** Locks the revision row for the rest of the transaction and returns its product and status. */
-export async function lockRevision(trx: Knex, id: number): Promise<{ id: number; productId: number; status: RevisionStatus; authorId: number | null; revision: number } | undefined> {
-  const r = await trx('spec_revisions').where({ id }).forUpdate().first('id', 'product_id', 'status', 'author_id', 'revision')
-  return r ? { id: r.id, productId: r.product_id, status: r.status, authorId: r.author_id, revision: r.revision } : undefined
+export type LockedRevision = {
+  id: number; productId: number; status: RevisionStatus; authorId: number | null; revision: number
+  submittedAt: Date | null; submitNote: string | null; reviewerId: number | null
+}
+
+/** Locks the revision row for the rest of the transaction and returns its product, status and submission. */
+export async function lockRevision(trx: Knex, id: number): Promise<LockedRevision | undefined> {
+  const r = await trx('spec_revisions').where({ id }).forUpdate().first('id', 'product_id', 'status', 'author_id', 'revision', 'submitted_at', 'submit_note', 'reviewer_id')
+  return r ? {
+    id: r.id, productId: r.product_id, status: r.status, authorId: r.author_id, revision: r.revision,
+    submittedAt: r.submitted_at ?? null, submitNote: r.submit_note ?? null, reviewerId: r.reviewer_id ?? null,
+  } : undefined
+}
+
+/** Submitted drafts a quality user may approve: not their own, addressed to them or to no one in particular. */
+export async function listAwaitingApproval(db: Knex, reviewerId: number): Promise<RevisionRecord[]> {
+  return (await base(db).where('r.status', 'draft').whereNotNull('r.submitted_at')
+    .where((w) => { w.whereNull('r.author_id').orWhereNot('r.author_id', reviewerId) })
+    .where((w) => { w.whereNull('r.reviewer_id').orWhere('r.reviewer_id', reviewerId) })
+    .orderBy('r.submitted_at')).map(toRevision)
+}
+
+export async function markSubmitted(trx: Knex, id: number, s: { by: number; at: Date; note: string | null; reviewerId: number | null }): Promise<void> {
+  await trx('spec_revisions').where({ id, status: 'draft' }).update({ submitted_at: s.at, submitted_by: s.by, submit_note: s.note, reviewer_id: s.reviewerId })
+}
+
+/** Takes a draft back out of the approvers' lists (its limits changed after submission). */
+export async function clearSubmission(trx: Knex, id: number): Promise<void> {
+  await trx('spec_revisions').where({ id }).update({ submitted_at: null, submitted_by: null, submit_note: null, reviewer_id: null })
+}
+
+export async function markDiscarded(trx: Knex, id: number, d: { by: number; at: Date; note: string | null }): Promise<void> {
+  await trx('spec_revisions').where({ id, status: 'draft' }).update({ status: 'discarded', discarded_at: d.at, discarded_by: d.by, discard_note: d.note })
 }
 
 export async function findDraftOf(db: Knex, productId: number): Promise<{ id: number; revision: number } | undefined> {

@@ -66,3 +66,8 @@ export async function countUsers(db: Knex): Promise<number> {
   const r = await db('users').count<{ n: number }[]>({ n: '*' })
   return Number(r[0]!.n)
 }
+
+/** Enabled quality users, who may be named to review a draft. */
+export async function listQualityReviewers(db: Knex): Promise<{ id: number; name: string }[]> {
+  return db('users').where({ role: 'quality', disabled: false }).orderBy('name').select('id', 'name')
+}

@@ -1,0 +1,14 @@
+import schema from '../../../../shared/schemas/revision-discard.schema.json'
+import { compileSchema } from '../../../utils/run-validator'
+import { idParam } from '../../../utils/route-params'
+import { discardRevision } from '../../../services/spec-workflow'
+import { underRules } from '../../../services/rule-error'
+
+const validate = compileSchema<{ note?: string }>(schema)
+
+export default defineEventHandler(async (event) => {
+  const actor = requireUser(event)
+  const id = idParam(event, 'id', 'revision')
+  const body = await readValidBody(event, validate)
+  return underRules(() => discardRevision(useDb(), actor, id, body))
+})

@@ -1,0 +1,14 @@
+import schema from '../../../../shared/schemas/revision-submit.schema.json'
+import { compileSchema } from '../../../utils/run-validator'
+import { idParam } from '../../../utils/route-params'
+import { submitRevision } from '../../../services/spec-workflow'
+import { underRules } from '../../../services/rule-error'
+
+const validate = compileSchema<{ note?: string; reviewerId?: number }>(schema)
+
+export default defineEventHandler(async (event) => {
+  const actor = requireUser(event)
+  const id = idParam(event, 'id', 'revision')
+  const body = await readValidBody(event, validate)
+  return underRules(() => submitRevision(useDb(), actor, id, body))
+})

@@ -1,0 +1,42 @@
+/** A submitted draft waiting for a quality user's approval (GET /api/specs/awaiting-approval). */
+export type AwaitingApproval = {
+  id: number
+  partNumber: string
+  revision: number
+  author: { id: number; name: string } | null
+  submittedAt: string
+  submittedBy: { id: number; name: string } | null
+  note: string | null
+  /** named reviewer, or null when any quality user may take it */
+  reviewer: { id: number; name: string } | null
+  limitCount: number
+}
+
+export type AwaitingApprovalList = { revisions: AwaitingApproval[] }
+
+/** Quality users a draft can be addressed to (GET /api/specs/reviewers). */
+export type ReviewerList = { reviewers: { id: number; name: string }[] }
+
+/** Answer to a submission or a discard. */
+export type RevisionStep = { id: number; revision: number; status: 'draft' | 'discarded'; submittedAt: string | null; discardedAt: string | null }
+
+type Person = { id: number; name: string } | null
+
+/** The workflow fields of a revision as GET /api/revisions/:id returns them. */
+export type RevisionFlow = {
+  id: number
+  revision: number
+  status: 'draft' | 'approved' | 'superseded' | 'discarded'
+  author: Person
+  approvedBy: Person
+  approvedAt: string | null
+  /** the approval note */
+  note: string | null
+  submittedAt: string | null
+  submittedBy: Person
+  submitNote: string | null
+  reviewer: Person
+  discardedAt: string | null
+  discardedBy: Person
+  discardNote: string | null
+}
