@@ -13,6 +13,7 @@ import {
   checkRunCsvHeader, CsvRecordJoiner, CsvRunAssembler, describeHeaderProblem, locateCsvPointer, parseCsvRecord,
   type CsvRun, type CsvRunRow,
 } from '../../shared/utils/run-csv'
+import type { ImportJob } from '../../shared/types/imports'
 import { writeAudit } from '../database/repositories/audit'
 import {
   findImportJob, finishImportJob, insertImportJob, insertRejections, isCancelRequested, lockImportJob, markImportCancelled, requestImportCancel, updateImportProgress,
@@ -348,7 +349,7 @@ const STALLED_MS = 2 * 60_000
  * Stops a running import. Its worker stops at its next progress write (within half a second); a stalled job, whose
  * worker went with a stopped server, is marked cancelled at once. Runs stored before the stop stay.
  */
-export async function cancelImport(db: Knex, actorId: number, id: string, now = new Date()): Promise<ImportJobView> {
+export async function cancelImport(db: Knex, actorId: number, id: string, now = new Date()): Promise<ImportJob> {
   await db.transaction(async (trx) => {
     const job = (await lockImportJob(trx, id)) ? await findImportJob(trx, id) : undefined
     if (!job) throw new RuleError(404, 'No such import.')
@@ -364,9 +365,14 @@ export async function cancelImport(db: Knex, actorId: number, id: string, now = 
   return importJobView((await findImportJob(db, id))!, now)
 }
 
-export type ImportJobView = ImportJobRow & { stalled: boolean }
+const iso = (d: Date) => new Date(d).toISOString()
 
-/** A running job whose counters stopped moving was left behind by a stopped server. */
-export function importJobView(job: ImportJobRow, now = new Date()): ImportJobView {
-  return { ...job, stalled: job.status === 'running' && now.getTime() - new Date(job.updatedAt).getTime() > STALLED_MS }
+/** The job as the routes answer it; a running job whose counters stopped moving was left behind by a stopped server. */
+export function importJobView(job: ImportJobRow, now = new Date()): ImportJob {
+  return {
+    ...job,
+    startedAt: iso(job.startedAt), updatedAt: iso(job.updatedAt),
+    finishedAt: job.finishedAt && iso(job.finishedAt), cancelRequestedAt: job.cancelRequestedAt && iso(job.cancelRequestedAt),
+    stalled: job.status === 'running' && now.getTime() - new Date(job.updatedAt).getTime() > STALLED_MS,
+  }
 }

@@ -1,9 +1,10 @@
 import { findImportJob, listRejections } from '../../database/repositories/imports'
 import { importJobView } from '../../services/imports'
 import { importJobId } from '../../utils/import-params'
+import type { ImportJobDetail } from '../../../shared/types/imports'
 
 /** The job and its first rejected lines (?rejections=N, 0–1000, default 100); every one is in rejections.csv. */
-export default defineEventHandler(async (event) => {
+export default defineEventHandler(async (event): Promise<ImportJobDetail> => {
   const id = importJobId(event)
   const raw = getQuery(event).rejections
   const limit = raw === undefined ? 100 : Number(raw)

@@ -1,5 +1,6 @@
 import { findStationByName, type ImportFormat } from '../../database/repositories/imports'
 import { ImportRefused, importJobView, startImport } from '../../services/imports'
+import type { ImportStarted } from '../../../shared/types/imports'
 
 const FORMATS: ImportFormat[] = ['jsonl', 'csv']
 
@@ -8,7 +9,7 @@ function queryText(v: unknown): string {
 }
 
 /** Takes a .jsonl or .csv file of past runs as the raw request body; 202 with the job once it is received whole. */
-export default defineEventHandler(async (event) => {
+export default defineEventHandler(async (event): Promise<ImportStarted> => {
   const user = requireUser(event)
   const q = getQuery(event)
   const stationName = queryText(q.station)

@@ -1,9 +1,7 @@
 import type { Knex } from 'knex'
+import type { ImportCounts, ImportFormat, ImportRejection, ImportStatus } from '../../../shared/types/imports'
 
-export type ImportFormat = 'jsonl' | 'csv'
-export type ImportStatus = 'running' | 'done' | 'failed' | 'cancelled'
-
-export type ImportCounts = { linesDone: number; runsDone: number; runsCreated: number; runsReplayed: number; runsRejected: number }
+export type { ImportCounts, ImportFormat, ImportStatus }
 
 export type ImportJobRow = ImportCounts & {
   id: string
@@ -22,7 +20,7 @@ export type ImportJobRow = ImportCounts & {
   cancelledBy: { id: number; name: string } | null
 }
 
-export type RejectionRow = { line: number; runId: string | null; status: number; reason: string }
+export type RejectionRow = ImportRejection
 
 export async function findStationByName(db: Knex, name: string): Promise<{ id: number; name: string } | undefined> {
   const r = await db('stations').where({ name }).first('id', 'name')
