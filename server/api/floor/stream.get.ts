@@ -1,4 +1,5 @@
 import type { EventStream } from 'h3'
+import type { FloorLotsEvent, FloorRunEvent, FloorSnapshot, FloorStationsEvent } from '../../../shared/types/floor'
 import { floorLotYields, floorSnapshot, floorStationView, pollRuns } from '../../services/analytics/floor'
 import type { FeedCursor } from '../../services/analytics/floor-cursor'
 import { trackStream } from '../../services/analytics/floor-streams'
@@ -36,7 +37,9 @@ export default defineEventHandler((event) => {
   stream.onClosed(stop)
   event.node.res.on('close', () => { stop(); stream.close() })
 
-  const send = (name: string, data: unknown, id?: number) =>
+  // each event's data is typed by the shared contract the floor page reads
+  type Events = { run: FloorRunEvent; lots: FloorLotsEvent; stations: FloorStationsEvent }
+  const send = <K extends keyof Events>(name: K, data: Events[K], id?: number) =>
     stream.push({ event: name, data: JSON.stringify(data), ...(id !== undefined ? { id: String(id) } : {}) })
 
   const tick = async () => {
@@ -61,7 +64,7 @@ export default defineEventHandler((event) => {
     try {
       const first = await floorSnapshot(db)
       cursor = first.cursor
-      await stream.push({ event: 'snapshot', data: JSON.stringify(first.snapshot), retry: RETRY_MS })
+      await stream.push({ event: 'snapshot', data: JSON.stringify(first.snapshot satisfies FloorSnapshot), retry: RETRY_MS })
       if (once) { await stream.close(); return }
     } catch (e) {
       console.error('floor stream snapshot failed', e)

@@ -1,5 +1,6 @@
 // The floor view's data: a snapshot for first paint, then the runs arriving after it.
 import type { Knex } from 'knex'
+import type { FloorLotView, FloorRunEvent, FloorSnapshot, FloorStationView } from '../../../shared/types/floor'
 import { wilsonInterval } from '../../../shared/utils/yield'
 import { floorLots, floorStations, latestRuns, runsAfter, type FloorRunRow } from '../../database/repositories/floor'
 import { advanceCursor, startCursor, type FeedCursor } from './floor-cursor'
@@ -7,11 +8,11 @@ import { advanceCursor, startCursor, type FeedCursor } from './floor-cursor'
 export const RECENT_RUNS = 25
 const BATCH = 200
 
-export function runEvent(r: FloorRunRow) {
+export function runEvent(r: FloorRunRow): FloorRunEvent {
   return { id: r.id, serial: r.serial, part: r.part, lot: r.lot, station: r.station, step: r.step, attempt: r.attempt, verdict: r.verdict, finishedAt: r.finishedAt.toISOString() }
 }
 
-export async function floorLotYields(db: Knex) {
+export async function floorLotYields(db: Knex): Promise<FloorLotView[]> {
   return (await floorLots(db)).map((l) => {
     const order = (s: string) => { const i = l.steps.indexOf(s); return i < 0 ? 99 : i }
     const steps = [...l.stepStats].sort((a, b) => order(a.step) - order(b.step)).map((s) => ({
@@ -28,7 +29,7 @@ export async function floorLotYields(db: Knex) {
   })
 }
 
-export async function floorStationView(db: Knex, now: Date) {
+export async function floorStationView(db: Knex, now: Date): Promise<FloorStationView[]> {
   return (await floorStations(db, now)).map((s) => ({
     name: s.name, location: s.location, lastSeenAt: s.lastSeenAt?.toISOString() ?? null, runsToday: s.runsToday,
     lastRun: s.lastRun ? { ...s.lastRun, finishedAt: s.lastRun.finishedAt.toISOString() } : null,
@@ -36,7 +37,7 @@ export async function floorStationView(db: Knex, now: Date) {
 }
 
 /** The snapshot and the feed cursor that continues from it (recent ids it did not see are kept as gaps). */
-export async function floorSnapshot(db: Knex, now = new Date()) {
+export async function floorSnapshot(db: Knex, now = new Date()): Promise<{ cursor: FeedCursor; snapshot: FloorSnapshot }> {
   const recent = await latestRuns(db, RECENT_RUNS)
   const ids = recent.map((r) => r.id)
   const cursor = ids.length ? advanceCursor(startCursor(Math.min(...ids) - 1), ids, now.getTime()) : startCursor(0)
@@ -48,7 +49,7 @@ export async function floorSnapshot(db: Knex, now = new Date()) {
 }
 
 /** Runs that became visible since the cursor, and the cursor after them. */
-export async function pollRuns(db: Knex, cursor: FeedCursor, now = Date.now()) {
+export async function pollRuns(db: Knex, cursor: FeedCursor, now = Date.now()): Promise<{ runs: FloorRunEvent[]; cursor: FeedCursor }> {
   const rows = await runsAfter(db, cursor.lastId, cursor.gaps.map((g) => g.id), BATCH)
   return { runs: rows.map(runEvent), cursor: advanceCursor(cursor, rows.map((r) => r.id), now) }
 }
