@@ -3,6 +3,7 @@ import type { FieldError } from '../utils/problem'
 import { findLotByCode, lotCounts, runsReceivedSince, unitStepsOfLot } from '../database/repositories/lot-detail'
 import { findProductById } from '../database/repositories/products'
 import { listLotUnits, lotStationNames, UNIT_SORTS, UNIT_VERDICTS, type UnitQuery, type UnitSort, type UnitVerdict } from '../database/repositories/lot-units'
+import type { LotUnitsPage, LotView } from '../../shared/types/lot'
 import { lotReadiness } from './lot-readiness'
 import { RuleError } from './rule-error'
 import { lotShipping } from './shipments/lot-shipping'
@@ -10,7 +11,10 @@ import { lotShipping } from './shipments/lot-shipping'
 export const MAX_PAGE_SIZE = 200
 export const MAX_CSV_ROWS = 50_000
 
-export async function lotDetail(db: Knex, code: string) {
+const iso = (d: Date) => new Date(d).toISOString()
+const isoOrNull = (d: Date | null) => (d ? iso(d) : null)
+
+export async function lotDetail(db: Knex, code: string): Promise<LotView | undefined> {
   const lot = await findLotByCode(db, code)
   if (!lot) return undefined
   const product = (await findProductById(db, lot.productId))!
@@ -24,11 +28,12 @@ export async function lotDetail(db: Knex, code: string) {
   const { id: _id, productId: _p, ...rest } = lot
   return {
     ...rest,
+    createdAt: iso(lot.createdAt), releasedAt: isoOrNull(lot.releasedAt), shippedAt: isoOrNull(lot.shippedAt),
     runsSinceRelease,
     shipping,
     readiness: readiness ? { units: readiness.units, notReady: readiness.notReady.length } : null,
     product: { partNumber: product.partNumber, name: product.name, steps: product.steps },
-    counts: { planned: lot.plannedQty, ...counts },
+    counts: { planned: lot.plannedQty, ...counts, firstRunAt: isoOrNull(counts.firstRunAt), lastRunAt: isoOrNull(counts.lastRunAt) },
   }
 }
 
@@ -75,13 +80,14 @@ export function parseUnitQuery(raw: RawQuery): { query: UnitQuery; page: number;
   return { query, page, pageSize }
 }
 
-export async function lotUnitsPage(db: Knex, code: string, raw: RawQuery) {
+export async function lotUnitsPage(db: Knex, code: string, raw: RawQuery): Promise<LotUnitsPage> {
   const lot = await findLotByCode(db, code)
   if (!lot) throw new RuleError(404, `No lot ${code}.`)
   const { query, page, pageSize } = parseUnitQuery(raw)
   const product = (await findProductById(db, lot.productId))!
   const { total, rows } = await listLotUnits(db, lot.id, product.steps.at(-1) ?? '', query, { limit: pageSize, offset: (page - 1) * pageSize })
-  return { lot: lot.code, page, pageSize, total, pageCount: Math.max(1, Math.ceil(total / pageSize)), sort: query.sort, dir: query.dir, units: rows, stations: await lotStationNames(db, lot.id) }
+  const units = rows.map((r) => ({ ...r, lastTestedAt: isoOrNull(r.lastTestedAt) }))
+  return { lot: lot.code, page, pageSize, total, pageCount: Math.max(1, Math.ceil(total / pageSize)), sort: query.sort, dir: query.dir, units, stations: await lotStationNames(db, lot.id) }
 }
 
 export async function lotUnitsForCsv(db: Knex, code: string, raw: RawQuery) {
