@@ -47,7 +47,8 @@ describe('a station page', () => {
     const runs = page.locator('[data-test="station-recent-runs"]')
     await expect.poll(() => runs.locator('tbody tr').count(), { timeout: 20_000 }).toBe(20)
     const first = runs.locator('tbody tr').first().locator('a').first()
-    expect(await first.getAttribute('href')).toMatch(/^\/units\/[^?]+\?part=VFW-D2-250$/)
+    // other tests post to this station too, so the newest run may be of any part: the link names the part it is of
+    expect(await first.getAttribute('href')).toMatch(/^\/units\/[^?/]+\?part=[^&]+$/)
     await shot(page, 'station-recent-runs')
     await page.context().close()
   })
