@@ -1,14 +1,13 @@
 import type { NitroErrorHandler } from 'nitropack'
 import { getRequestURL, setResponseHeader, setResponseStatus, send } from 'h3'
+import { isDatabaseUnavailable } from './utils/database-unavailable'
 import { problemTitle } from './utils/problem'
-
-const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ER_CON_COUNT_ERROR', 'ETIMEDOUT', 'ER_LOCK_WAIT_TIMEOUT', 'ER_LOCK_DEADLOCK'])
 
 function classify(error: any): { status: number; detail: string; data: Record<string, unknown> } {
   const cause = error?.cause ?? error
   const code = cause?.code ?? error?.code
   if (code === 'ER_DUP_ENTRY') return { status: 409, detail: 'A record with the same key already exists.', data: {} }
-  if (UNAVAILABLE.has(code) || /Timeout acquiring a connection/.test(String(cause?.message ?? ''))) {
+  if (isDatabaseUnavailable(error)) {
     return { status: 503, detail: 'The database is unavailable; retry later.', data: { headers: { 'Retry-After': '5' } } }
   }
   const status = Number(error?.statusCode ?? error?.status ?? 500)

@@ -3,6 +3,7 @@ import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import { baseUrl, call, freshAddress, signIn } from '../support/http'
+import { attemptSignIn } from '../support/accounts'
 import { hydrated, launchBrowser, shot } from '../support/browser'
 
 let browser: Browser
@@ -91,8 +92,8 @@ describe('setting a forgotten password in the browser', () => {
     await expect.poll(() => page.locator('[data-test=link-refused]').textContent()).toContain('not valid')
     await shot(page, 'reset-password-expired')
     await context.close()
-    expect((await call('POST', '/api/auth/login', { body: { email, password: 'too late for this one' }, headers: { 'x-forwarded-for': freshAddress() } })).status).toBe(401)
-    expect((await call('POST', '/api/auth/login', { body: { email, password: 'remembered after all' }, headers: { 'x-forwarded-for': freshAddress() } })).status).toBe(200)
+    expect((await attemptSignIn(email, 'too late for this one')).status).toBe(401)
+    expect((await attemptSignIn(email, 'remembered after all')).status).toBe(200)
   })
 
   it('changes the signed-in user\'s password on the account page reached from the header', async () => {
@@ -120,7 +121,7 @@ describe('setting a forgotten password in the browser', () => {
     await page.getByRole('button', { name: 'Change password' }).click()
     await expect.poll(() => page.locator('[data-test=changed]').textContent()).toContain('password is changed')
     await shot(page, 'account-password-changed')
-    const login = await call('POST', '/api/auth/login', { body: { email, password: 'the second phrase here' }, headers: { 'x-forwarded-for': freshAddress() } })
+    const login = await attemptSignIn(email, 'the second phrase here')
     expect(login.status).toBe(200)
     await context.close()
   })

@@ -1,8 +1,8 @@
 import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
-import { call, freshAddress, signIn } from '../support/http'
-import { newUser } from '../support/accounts'
+import { call, signIn } from '../support/http'
+import { attemptSignIn, newUser } from '../support/accounts'
 
 let db: Knex
 let admin: string
@@ -14,7 +14,7 @@ afterAll(async () => { await db.destroy() })
 
 const probe = (tag: string, password: string) => newUser(admin, { tag, password, name: `Probe ${tag}`, role: 'engineer' })
 
-const login = (email: string, password: string) => call('POST', '/api/auth/login', { body: { email, password }, headers: { 'x-forwarded-for': freshAddress() } })
+const login = attemptSignIn
 
 describe('changing one\'s own password', () => {
   it('needs the current password, applies the rule, then the new password signs in and the old one does not', async () => {

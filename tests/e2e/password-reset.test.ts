@@ -3,7 +3,7 @@ import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import { call, freshAddress, signIn } from '../support/http'
-import { newUser, uniqueEmail } from '../support/accounts'
+import { attemptSignIn, newUser, uniqueEmail } from '../support/accounts'
 
 let db: Knex
 let admin: string
@@ -17,7 +17,7 @@ const resettable = (tag: string, password: string) => newUser(admin, { tag, pass
 
 const ask = (email: string, address = freshAddress()) => call('POST', '/api/auth/password-reset', { body: { email }, headers: { 'x-forwarded-for': address } })
 const confirm = (token: string, newPassword: string) => call('POST', '/api/auth/password-reset/confirm', { body: { token, newPassword }, headers: { 'x-forwarded-for': freshAddress() } })
-const login = (email: string, password: string) => call('POST', '/api/auth/login', { body: { email, password }, headers: { 'x-forwarded-for': freshAddress() } })
+const login = attemptSignIn
 
 /** The links queued for an address, newest last, read from the outbox message's text. */
 async function linksFor(email: string): Promise<string[]> {

@@ -1,6 +1,6 @@
 // Throwaway staff accounts for tests that change passwords: the demo accounts keep theirs.
 import { expect } from 'vitest'
-import { call } from './http'
+import { call, freshAddress } from './http'
 
 export const uniqueEmail = (tag: string) => `${tag}-${Date.now()}-${Math.floor(Math.random() * 1e6)}@tercet.test`
 
@@ -11,3 +11,7 @@ export async function newUser(admin: string, o: { tag: string; password: string;
   expect(r.status).toBe(201)
   return { id: r.body.user.id, email }
 }
+
+/** One sign-in attempt from an address of its own, so the per-address limits of other tests never refuse it. */
+export const attemptSignIn = (email: string, password: string) =>
+  call('POST', '/api/auth/login', { body: { email, password }, headers: { 'x-forwarded-for': freshAddress() } })

@@ -14,12 +14,6 @@ export async function lockEnabledRule(trx: Knex.Transaction, ruleId: number): Pr
   return !!r?.enabled
 }
 
-/** When the rule last fired about the subject (rule_id, subject, raised_at index). */
-export async function lastRaisedAt(trx: Knex.Transaction, ruleId: number, subject: string): Promise<Date | null> {
-  const r = await trx('alert_firings').where({ rule_id: ruleId, subject }).orderBy('raised_at', 'desc').first('raised_at')
-  return r ? new Date(r.raised_at) : null
-}
-
 export async function insertFiring(trx: Knex.Transaction, f: NewFiring): Promise<number> {
   const [id] = await trx('alert_firings').insert({
     rule_id: f.ruleId, subject: f.subject.slice(0, 160), subject_label: f.subjectLabel.slice(0, 200), product_id: f.productId, lot_id: f.lotId,

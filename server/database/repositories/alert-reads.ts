@@ -99,9 +99,9 @@ export async function openLotsTestedSince(db: Knex, stationId: number, since: Da
   return rows.map((r: any) => r.code)
 }
 
-/** The time the previous firing of a rule about a subject was raised, and the moment its figures name ('Tested at'). */
+/** The previous firing of a rule about a subject (rule_id, subject, raised_at index): when, and its figures. */
 export async function lastFiring(db: Knex, ruleId: number, subject: string): Promise<{ raisedAt: Date; figures: { label: string; value: unknown }[] } | null> {
   const r = await db('alert_firings').where({ rule_id: ruleId, subject }).orderBy('raised_at', 'desc').first('raised_at', 'figures')
   if (!r) return null
-  return { raisedAt: r.raised_at, figures: typeof r.figures === 'string' ? JSON.parse(r.figures) : r.figures }
+  return { raisedAt: new Date(r.raised_at), figures: typeof r.figures === 'string' ? JSON.parse(r.figures) : r.figures }
 }

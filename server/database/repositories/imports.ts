@@ -1,23 +1,14 @@
 import type { Knex } from 'knex'
-import type { ImportCounts, ImportFormat, ImportRejection, ImportStatus } from '../../../shared/types/imports'
+import type { ImportCounts, ImportFormat, ImportJob, ImportRejection, ImportStatus } from '../../../shared/types/imports'
 
 export type { ImportCounts, ImportFormat, ImportStatus }
 
-export type ImportJobRow = ImportCounts & {
-  id: string
-  format: ImportFormat
-  fileName: string
-  status: ImportStatus
-  station: { id: number; name: string }
-  createdBy: { id: number; name: string }
-  linesTotal: number | null
+/** The job as stored: the answer's fields with its instants as dates, and without what the service derives (stalled). */
+export type ImportJobRow = Omit<ImportJob, 'startedAt' | 'updatedAt' | 'finishedAt' | 'cancelRequestedAt' | 'stalled'> & {
   startedAt: Date
   updatedAt: Date
   finishedAt: Date | null
-  error: string | null
-  /** someone asked to stop the import: set until its worker stops, and kept afterwards */
   cancelRequestedAt: Date | null
-  cancelledBy: { id: number; name: string } | null
 }
 
 export type RejectionRow = ImportRejection

@@ -5,11 +5,13 @@
 import type { Knex } from 'knex'
 import { hostname } from 'node:os'
 import { ALERT_KINDS, ALERT_KIND_INFO, type AlertKind } from '../../../shared/utils/alert-kinds'
-import { clearMark, enabledRules, newestLots, readMarks } from '../../database/repositories/alert-reads'
+import { clearMark, enabledRules, newestLots, readMarks, type RuleRow } from '../../database/repositories/alert-reads'
 import { claimPeriodicRun, releaseLease, takeLease } from '../../database/repositories/job-leases'
 import { listEffectiveRevisions } from '../../database/repositories/spec-lookup'
+import { isDatabaseUnavailable } from '../../utils/database-unavailable'
 import { calibrationDueSoonDays } from '../settings'
 import { evaluateClockRule } from './clock-rules'
+import type { Outcome } from './outcome'
 import { raise, throttleSeconds } from './raise'
 import { evaluateResultRule } from './result-rules'
 
@@ -39,7 +41,7 @@ async function guarded(ruleId: number, out: EvaluateResult, work: () => Promise<
   try {
     await work()
   } catch (e: any) {
-    if (typeof e?.code === 'string' && /^(ECONN|PROTOCOL_|ER_LOCK|ER_CON|ETIMEDOUT)/.test(e.code)) throw e
+    if (isDatabaseUnavailable(e)) throw e
     out.failedRules.push(ruleId)
     console.warn(`[tercet] alert rule ${ruleId} could not be evaluated: ${e?.message ?? e}`)
   }
@@ -57,17 +59,18 @@ export async function evaluateAlerts(db: Knex, opts: EvaluateOptions = {}): Prom
   const out: EvaluateResult = { evaluated: false, products: 0, clock: false, raised: [], failedRules: [] }
   if (!(await takeLease(db, ALERT_LEASE, owner, opts.leaseMs ?? 30_000, now))) return out
   out.evaluated = true
+  const raiseEach = async (rule: RuleRow, outcomes: Outcome[]) => {
+    for (const o of outcomes) {
+      const id = await raise(db, rule, o, now, throttleS)
+      if (id !== null) out.raised.push(id)
+    }
+  }
   for (const mark of await readMarks(db, MARKS_PER_PASS)) {
     const rules = await enabledRules(db, { productId: mark.productId, kinds: RESULT_KINDS })
     if (rules.length) {
       const [lots, revisions] = await Promise.all([newestLots(db, mark.productId), listEffectiveRevisions(db, mark.productId)])
       const ctx = { productId: mark.productId, partNumber: rules[0]!.partNumber ?? String(mark.productId), lots, revisions, now }
-      for (const rule of rules) await guarded(rule.id, out, async () => {
-        for (const o of await evaluateResultRule(db, ctx, rule)) {
-          const id = await raise(db, rule, o, now, throttleS)
-          if (id !== null) out.raised.push(id)
-        }
-      })
+      for (const rule of rules) await guarded(rule.id, out, async () => raiseEach(rule, await evaluateResultRule(db, ctx, rule)))
     }
     await clearMark(db, mark)
     out.products++
@@ -77,12 +80,7 @@ export async function evaluateAlerts(db: Knex, opts: EvaluateOptions = {}): Prom
     const rules = await enabledRules(db, { kinds: CLOCK_KINDS })
     // the due-soon period is read once per evaluation, never kept in the process
     const days = rules.some((r) => r.kind === 'calibration_due') ? await calibrationDueSoonDays(db) : 0
-    for (const rule of rules) await guarded(rule.id, out, async () => {
-      for (const o of await evaluateClockRule(db, rule, now, days)) {
-        const id = await raise(db, rule, o, now, throttleS)
-        if (id !== null) out.raised.push(id)
-      }
-    })
+    for (const rule of rules) await guarded(rule.id, out, async () => raiseEach(rule, await evaluateClockRule(db, rule, now, days)))
   }
   return out
 }

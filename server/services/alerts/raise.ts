@@ -3,8 +3,8 @@
 // its firing does.
 import type { Knex } from 'knex'
 import { ALERT_KIND_INFO, ALERT_THROTTLE_S } from '../../../shared/utils/alert-kinds'
-import type { RuleRow } from '../../database/repositories/alert-reads'
-import { insertFiring, lastRaisedAt, lockEnabledRule, stationOwner, subscribers, type Recipient } from '../../database/repositories/alert-firings-write'
+import { lastFiring, type RuleRow } from '../../database/repositories/alert-reads'
+import { insertFiring, lockEnabledRule, stationOwner, subscribers, type Recipient } from '../../database/repositories/alert-firings-write'
 import { enqueueMail } from '../mail/outbox'
 import { alertRaised, calibrationDue } from '../mail/templates'
 import type { Outcome } from './outcome'
@@ -22,7 +22,7 @@ export function throttleSeconds(env: NodeJS.ProcessEnv = process.env): number {
 export async function raise(db: Knex, rule: RuleRow, o: Outcome, now: Date, throttleS: number): Promise<number | null> {
   return db.transaction(async (trx) => {
     if (!(await lockEnabledRule(trx, rule.id))) return null
-    const last = await lastRaisedAt(trx, rule.id, o.subject)
+    const last = (await lastFiring(trx, rule.id, o.subject))?.raisedAt
     if (last && (o.once || now.getTime() - last.getTime() < throttleS * 1000)) return null
     const id = await insertFiring(trx, { ...o, ruleId: rule.id, raisedAt: now })
     const info = ALERT_KIND_INFO[rule.kind]

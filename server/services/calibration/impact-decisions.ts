@@ -4,9 +4,10 @@ import type { Knex } from 'knex'
 import type { ImpactDecisionsResult } from '../../../shared/types/calibration-impact'
 import { decisionNeedsReason, type ImpactDecision } from '../../../shared/utils/calibration-impact'
 import { writeAudit } from '../../database/repositories/audit'
-import { closeImpactRow, countWindow, decisionsOf, lockImpact, setImpactCounts, unitsOfWindow, upsertDecisions } from '../../database/repositories/calibration-impacts'
+import { closeImpactRow, countWindow, decisionsOf, setImpactCounts, unitsOfWindow, upsertDecisions } from '../../database/repositories/calibration-impacts'
 import type { FieldError } from '../../utils/problem'
 import { RuleError } from '../rule-error'
+import { lockedImpact } from './impact-review'
 
 export type DecisionEntry = { partNumber: string; serial: string; decision: ImpactDecision; reason?: string }
 export type DecisionsInput = { decisions: DecisionEntry[] } | { lot: string; decision: ImpactDecision; reason?: string }
@@ -15,10 +16,9 @@ const clean = (r: string | undefined) => (r?.trim() ? r.trim() : null)
 
 export async function recordDecisions(db: Knex, actorId: number, impactId: number, input: DecisionsInput, now = new Date()): Promise<ImpactDecisionsResult> {
   return db.transaction(async (trx) => {
-    const impact = await lockImpact(trx, impactId)
-    if (!impact) throw new RuleError(404, 'No such calibration impact review.')
+    const impact = await lockedImpact(trx, impactId)
     if (impact.status === 'closed') throw new RuleError(409, 'The review is closed: its decisions stand as recorded.')
-    const w = { instrumentId: impact.instrumentId, from: impact.from, to: impact.to }
+    const w = impact
     const units = await unitsOfWindow(trx, w)
     const byName = new Map(units.map((u) => [`${u.partNumber}\u0000${u.serial}`, u]))
     const errors: FieldError[] = []
@@ -63,10 +63,9 @@ export async function recordDecisions(db: Knex, actorId: number, impactId: numbe
 /** Closes a review once every unit of its window has a decision. */
 export async function closeReview(db: Knex, actorId: number, impactId: number, now = new Date()): Promise<{ id: number; status: 'closed'; closedAt: string }> {
   return db.transaction(async (trx) => {
-    const impact = await lockImpact(trx, impactId)
-    if (!impact) throw new RuleError(404, 'No such calibration impact review.')
+    const impact = await lockedImpact(trx, impactId)
     if (impact.status === 'closed') throw new RuleError(409, 'The review is already closed.')
-    const w = { instrumentId: impact.instrumentId, from: impact.from, to: impact.to }
+    const w = impact
     const units = await unitsOfWindow(trx, w)
     const decisions = await decisionsOf(trx, impactId)
     const undecided = units.filter((u) => !decisions.has(u.unitId))

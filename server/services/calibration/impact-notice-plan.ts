@@ -17,7 +17,7 @@ export function noticeFingerprint(units: readonly NoticeUnit[]): string {
 }
 
 export async function noticePlan(db: Knex, impact: ImpactRow): Promise<NoticePlanEntry[]> {
-  const units = await unitsOfWindow(db, { instrumentId: impact.instrumentId, from: impact.from, to: impact.to })
+  const units = await unitsOfWindow(db, impact)
   const ids = units.map((u) => u.unitId)
   const [certs, decisions] = await Promise.all([certificatesOfUnits(db, ids), decisionsOf(db, impact.id, ids)])
   const byUnit = new Map(units.map((u) => [u.unitId, u]))

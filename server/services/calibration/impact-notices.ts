@@ -5,18 +5,18 @@ import type { Knex } from 'knex'
 import type { ImpactNoticesResult } from '../../../shared/types/calibration-impact'
 import type { Signature } from '../../utils/signature'
 import { writeAudit } from '../../database/repositories/audit'
-import { insertNotice, latestNotices, lockImpact, recordAndInstrument } from '../../database/repositories/calibration-impacts'
+import { insertNotice, latestNotices, recordAndInstrument } from '../../database/repositories/calibration-impacts'
 import { contactsOf } from '../../database/repositories/customers'
 import { makerIdentity } from '../certificates/maker'
 import { enqueueMail } from '../mail/outbox'
 import { calibrationImpact } from '../mail/templates'
 import { RuleError } from '../rule-error'
 import { noticePlan } from './impact-notice-plan'
+import { lockedImpact } from './impact-review'
 
 export async function sendNotices(db: Knex, actorId: number, impactId: number, o: { resend: boolean; signed: Signature }, now = new Date()): Promise<ImpactNoticesResult> {
   return db.transaction(async (trx) => {
-    const impact = await lockImpact(trx, impactId)
-    if (!impact) throw new RuleError(404, 'No such calibration impact review.')
+    const impact = await lockedImpact(trx, impactId)
     const plan = await noticePlan(trx, impact)
     const undecided = plan.flatMap((p) => p.units.filter((u) => u.decision === null).map((u) => ({ customer: p.customer.name, partNumber: u.partNumber, serial: u.serial })))
     if (undecided.length) {

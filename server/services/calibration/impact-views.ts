@@ -2,7 +2,7 @@
 import type { Knex } from 'knex'
 import type { ImpactCustomer, ImpactDetail, ImpactList, ImpactUnit } from '../../../shared/types/calibration-impact'
 import {
-  certificateNumberOfRecord, certificatesOfUnits, countWindow, decisionTallies, decisionsOf, findImpact, latestNotices, listImpactRows, lotsOfWindow,
+  certificateNumberOfRecord, certificatesOfUnits, countWindow, decisionTallies, decisionsOf, latestNotices, listImpactRows, lotsOfWindow,
   noticeContactCounts, noticesOf, recordAndInstrument, unitsOfWindowPage, type ImpactRow,
 } from '../../database/repositories/calibration-impacts'
 import { productSteps, stepStatesOf } from '../../database/repositories/shipment-units'
@@ -10,6 +10,7 @@ import { RuleError } from '../rule-error'
 import { overallVerdict } from '../shipments/unit-verdict'
 import { openMissingReviews } from './impact-open'
 import { noticePlan } from './impact-notice-plan'
+import { existingImpact } from './impact-review'
 
 const iso = (d: Date) => new Date(d).toISOString()
 
@@ -38,12 +39,6 @@ export async function impactList(db: Knex, viewerId: number): Promise<ImpactList
   }
 }
 
-export async function existingImpact(db: Knex, id: number): Promise<ImpactRow> {
-  const impact = await findImpact(db, id)
-  if (!impact) throw new RuleError(404, 'No such calibration impact review.')
-  return impact
-}
-
 /** The customers holding valid certificates of the window's units, with what a notice to each would name. */
 async function customersOf(db: Knex, impact: ImpactRow): Promise<ImpactCustomer[]> {
   const plan = await noticePlan(db, impact)
@@ -63,7 +58,7 @@ export async function impactDetail(db: Knex, id: number, raw: Record<string, unk
   const lotValue = Array.isArray(raw.lot) ? raw.lot[0] : raw.lot
   const lot = typeof lotValue === 'string' && lotValue ? lotValue.slice(0, 32) : undefined
   const impact = await existingImpact(db, id)
-  const w = { instrumentId: impact.instrumentId, from: impact.from, to: impact.to }
+  const w = impact
   const [ri, basisNumber, lots, unitPage, tallies, customers, notices] = await Promise.all([
     recordAndInstrument(db, impact.recordId), certificateNumberOfRecord(db, impact.basisRecordId), lotsOfWindow(db, w, impact.id),
     unitsOfWindowPage(db, w, { lot, limit: pageSize, offset: (page - 1) * pageSize }), decisionTallies(db, impact.id), customersOf(db, impact), noticesOf(db, impact.id),

@@ -1,4 +1,5 @@
 import type { Knex } from 'knex'
+import { isDatabaseUnavailable } from '../../utils/database-unavailable'
 import { validateRun } from '../../utils/run-validator'
 import { loadRunsWithMeasurements } from '../../database/repositories/runs'
 import { bodyHash } from './canonical'
@@ -15,12 +16,9 @@ const idOf = (item: unknown) => {
   return typeof id === 'string' ? id : null
 }
 
-const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ETIMEDOUT', 'ER_CON_COUNT_ERROR', 'ER_LOCK_WAIT_TIMEOUT', 'ER_LOCK_DEADLOCK'])
-
 /** A run the database could not take: 503 when it was away or busy (the station retries), else 500. */
 export function failedItem(id: string | null, error: unknown): BatchItemResult {
-  const code = (error as { code?: string })?.code ?? ''
-  const unavailable = UNAVAILABLE.has(code) || /Timeout acquiring a connection/.test(String((error as Error)?.message))
+  const unavailable = isDatabaseUnavailable(error)
   if (!unavailable) console.error(error)
   return { id, status: unavailable ? 503 : 500, detail: unavailable ? 'The database is unavailable; retry this run.' : 'This run could not be stored.' }
 }
