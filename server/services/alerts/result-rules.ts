@@ -3,6 +3,7 @@
 import type { Knex } from 'knex'
 import { checkControlRule, checkCpkLow, checkDriftTowardLimit, checkStationBias, checkYieldLow, chartBasis, type AlertPoint, type Limits } from '../../../shared/utils/alert-checks'
 import { controlRulesFromMask } from '../../../shared/utils/alert-kinds'
+import { parameterLabel } from '../../../shared/utils/alert-rule-text'
 import { frozenBaseline, lastFirstAttempts, lastFiring, lastValues, type RuleRow } from '../../database/repositories/alert-reads'
 import { revisionAt, type RevisionInForce } from '../../database/repositories/spec-lookup'
 import { bookOf } from '../analytics/revision-limits'
@@ -12,7 +13,7 @@ export type ProductContext = { productId: number; partNumber: string; lots: { id
 
 const qs = (o: Record<string, string | number | null | undefined>) =>
   Object.entries(o).filter(([, v]) => v !== null && v !== undefined && v !== '' && v !== 0).map(([k, v]) => `${k}=${encodeURIComponent(String(v))}`).join('&')
-const paramLabel = (r: RuleRow) => `${r.parameter}${r.qualifier ? ` @ ${r.qualifier}` : ''}`
+const paramLabel = (r: RuleRow) => parameterLabel(r.parameter!, r.qualifier)
 const paramSubject = (r: RuleRow) => `product:${r.productId}/${r.step}/${r.parameter}/${r.qualifier}`
 /** The trends page on the rule's part and parameter (it reads part, name, step and qualifier from the query). */
 const trendsLink = (ctx: ProductContext, r: RuleRow) => `/trends?${qs({ part: ctx.partNumber, name: r.parameter, step: r.step, qualifier: r.qualifier })}`
