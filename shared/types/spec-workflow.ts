@@ -20,23 +20,24 @@ export type ReviewerList = { reviewers: { id: number; name: string }[] }
 /** Answer to a submission or a discard. */
 export type RevisionStep = { id: number; revision: number; status: 'draft' | 'discarded'; submittedAt: string | null; discardedAt: string | null }
 
-type Person = { id: number; name: string } | null
+export type SpecPerson = { id: number; name: string } | null
+export type RevisionStatus = 'draft' | 'approved' | 'superseded' | 'discarded'
 
 /** The workflow fields of a revision as GET /api/revisions/:id returns them. */
 export type RevisionFlow = {
   id: number
   revision: number
-  status: 'draft' | 'approved' | 'superseded' | 'discarded'
-  author: Person
-  approvedBy: Person
+  status: RevisionStatus
+  author: SpecPerson
+  approvedBy: SpecPerson
   approvedAt: string | null
   /** the approval note */
   note: string | null
   submittedAt: string | null
-  submittedBy: Person
+  submittedBy: SpecPerson
   submitNote: string | null
-  reviewer: Person
+  reviewer: SpecPerson
   discardedAt: string | null
-  discardedBy: Person
+  discardedBy: SpecPerson
   discardNote: string | null
 }

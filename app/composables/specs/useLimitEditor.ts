@@ -75,3 +75,5 @@ export function useLimitEditor(revisionId: Ref<number>, saved: Ref<SpecLimitRow[
   }
   return { rows, parsed, dirty, liveErrors, cellError, errorList, onName, addRow, saving, saveMessage, save }
 }
+
+export type LimitEditor = ReturnType<typeof useLimitEditor>
