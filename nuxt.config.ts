@@ -7,7 +7,7 @@ export default defineNuxtConfig({
   compatibilityDate: '2025-07-15',
   devtools: { enabled: false },
   telemetry: false,
-  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils'],
+  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils', '@nuxt/eslint'], // @nuxt/eslint only writes the lint config (eslint.config.mjs)
   css: ['~/assets/css/main.css'],
   tailwindcss: { cssPath: false, configPath: 'tailwind.config.ts', viewer: false },
   app: {

@@ -441,7 +441,10 @@ async function main() {
     const rounds = Math.max(1, Math.min(Math.floor(batchBodies.length / CONNECTIONS), Math.round((runsPerSec * SECONDS) / (BATCH * CONNECTIONS))))
     const b = await cannon(port, '/api/v1/runs/batch', batchBodies, tokens, { amount: rounds * CONNECTIONS }, (status, body) => {
       if (status !== 200) return
-      for (const m of body.matchAll(/"status":(\d{3})/g)) (m[1] === '201' || m[1] === '200' ? stored++ : refused++)
+      for (const m of body.matchAll(/"status":(\d{3})/g)) {
+        if (m[1] === '201' || m[1] === '200') stored++
+        else refused++
+      }
     })
     const bDrain = await drained(knex)
     const batchPerSec = stored / (b.duration + bDrain.seconds)

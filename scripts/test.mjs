@@ -1,4 +1,4 @@
-// npm test: the same bring-up as npm start on a fresh tercet_test database, then the whole vitest suite.
+// npm test: lint, then the same bring-up as npm start on a fresh tercet_test database, then the whole vitest suite.
 import { resolve } from 'node:path'
 import { spawnSync } from 'node:child_process'
 import { existsSync, readFileSync, rmSync } from 'node:fs'
@@ -7,6 +7,11 @@ import { loadEnv, root, serverEnv } from './lib/env.mjs'
 import { log } from './lib/run.mjs'
 
 ensureNodeModules()
+// the whole suite lints first (npm run lint) and stops on any lint error; a run of named files skips it, as it skips the type check
+if (process.argv.length <= 2) {
+  const lint = spawnSync(process.execPath, [resolve(root, 'scripts/lint.mjs')], { cwd: root, stdio: 'inherit' })
+  if (lint.status !== 0) process.exit(lint.status ?? 1)
+}
 ensureDebianPackage('chromium', 'chromium')
 const { prepareDatabase } = await import('./lib/database.mjs')
 const { buildIfChanged } = await import('./lib/build.mjs')

@@ -69,7 +69,7 @@ describe('products', () => {
 describe('specification revisions', () => {
   let rev1 = 0
   let rev2 = 0
-  let second = { id: 0, email: '', cookie: '' }
+  const second = { id: 0, email: '', cookie: '' }
 
   it('opens an empty first draft for a new product, only one draft at a time', async () => {
     const r = await call('POST', `/api/products/${PART}/revisions`, { cookie: cookies.engineer })

@@ -15,8 +15,8 @@ const tag = Date.now().toString(36)
 const batchLot = `BAT-${tag}`
 const singleLot = `ONE-${tag}`
 const tripler = DEMO_PRODUCTS.find((p) => p.partNumber === 'VFW-T3-375')!
-let batchResults: Awaited<ReturnType<typeof ingestBatch>> = []
-let singleResults: unknown[] = []
+const batchResults: Awaited<ReturnType<typeof ingestBatch>> = []
+const singleResults: unknown[] = []
 
 function forLot(run: ReturnType<typeof generateRun>, lot: string) {
   return { ...run, id: randomUUID(), lot, serial: run.serial.replace('LOT', lot) }

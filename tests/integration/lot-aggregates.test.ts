@@ -7,8 +7,7 @@ import { lotSummary } from '../../server/services/analytics/lot-summary'
 import { validateRun } from '../../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../../fixtures/demo-catalogue'
 import { generateRun, mulberry32 } from '../../fixtures/run-generator'
-import { capabilityFromValues } from '../../shared/utils/capability'
-import { movingRangeSum, sigmaFromMovingRange } from '../../shared/utils/capability'
+import { capabilityFromValues, movingRangeSum, sigmaFromMovingRange } from '../../shared/utils/capability'
 
 let db: Knex
 const lotCode = `AGG-${Date.now().toString(36)}`

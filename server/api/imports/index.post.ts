@@ -26,6 +26,7 @@ export default defineEventHandler(async (event): Promise<ImportStarted> => {
   const station = await findStationByName(db, stationName)
   if (!station) throw problem(400, `There is no station named "${stationName}".`, { errors: [{ pointer: '', message: 'query parameter "station": no such station' }] })
 
+  // eslint-disable-next-line no-control-regex -- control characters are exactly what a stored file name must lose
   const fileName = (queryText(q.fileName).replace(/[\u0000-\u001f\\/]/g, '_').slice(0, 255)) || `upload.${format}`
   let job
   try {
