@@ -31,7 +31,8 @@ export default defineNuxtConfig({
       { baseName: 'certfonts-sans', dir: interDir, pattern: 'inter-latin-{400,600}-normal.woff' },
     ],
   },
-  typescript: { strict: true },
+  // the component tests (tests/app/, mirroring app/) are type-checked with the app they mount
+  typescript: { strict: true, tsConfig: { include: ['../tests/app/**/*'] } },
   // separate build folders let two checkouts' builds and test servers run side by side
   ...(process.env.TERCET_BUILD_DIR ? { buildDir: process.env.TERCET_BUILD_DIR } : {}),
   hooks: {

@@ -1,4 +1,5 @@
 import { defineConfig } from 'vitest/config'
+import { defineVitestProject } from '@nuxt/test-utils/config'
 
 export default defineConfig({
   test: {
@@ -11,6 +12,16 @@ export default defineConfig({
           globalSetup: ['tests/support/server-setup.ts'], testTimeout: 60_000, hookTimeout: 120_000, fileParallelism: false,
         },
       },
+      // components, composables and pages of app/, mounted in a Nuxt runtime over happy-dom: no server, no database
+      await defineVitestProject({
+        // Vite refuses the public-file import Nuxt makes of <img src="/favicon.svg"> ("Denied ID virtual:public?…svg")
+        // under strict file serving; this dev server only serves the test runner
+        server: { fs: { strict: false } },
+        test: {
+          name: 'app', include: ['tests/app/**/*.test.ts'], environment: 'nuxt', testTimeout: 30_000, hookTimeout: 120_000,
+          environmentOptions: { nuxt: { domEnvironment: 'happy-dom' } },
+        },
+      }),
     ],
   },
 })
