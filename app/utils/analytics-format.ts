@@ -1,75 +1,8 @@
-// Display-only rounding for analytics views: the API sends full precision, the screen shows what a reader needs.
+// Words and times of the analytics views; every number is formatted by shared/utils/value-format.ts.
+import { DASH } from '../../shared/utils/value-format'
 import { utcMinute, utcSeconds } from './utc-time'
 
-export const DASH = '—'
-
-/** Fixed decimals with a thin-spaced thousands grouping; null/NaN → dash. */
-export function fixed(v: number | null | undefined, decimals = 3): string {
-  if (v === null || v === undefined || !Number.isFinite(v)) return DASH
-  const [int, frac] = Math.abs(v).toFixed(decimals).split('.') as [string, string | undefined]
-  const grouped = int.replace(/\B(?=(\d{3})+(?!\d))/g, '\u2009')
-  return (v < 0 && Number(v.toFixed(decimals)) !== 0 ? '−' : '') + grouped + (frac ? '.' + frac : '')
-}
-
-/** Enough decimals to show `significant` digits of the value's magnitude (at least 0, at most 9). */
-export function sig(v: number | null | undefined, significant = 4): string {
-  if (v === null || v === undefined || !Number.isFinite(v)) return DASH
-  if (v === 0) return '0'
-  const magnitude = Math.floor(Math.log10(Math.abs(v)))
-  return fixed(v, Math.min(9, Math.max(0, significant - 1 - magnitude)))
-}
-
-/** Decimals suited to a spread of `scale` (e.g. σ): values and σ of one parameter then line up. */
-export function decimalsFor(scale: number | null | undefined, significant = 2): number {
-  if (scale === null || scale === undefined || !Number.isFinite(scale) || scale <= 0) return 3
-  return Math.min(9, Math.max(0, significant - 1 - Math.floor(Math.log10(scale))))
-}
-
-/** A value in the unit shown on screen: jitter is stored in seconds and read in femtoseconds. */
-export function displayUnit(unit: string | null | undefined): { unit: string; scale: number } {
-  if (unit === 's') return { unit: 'fs', scale: 1e15 }
-  return { unit: unit ?? '', scale: 1 }
-}
-
-export function scaled(v: number | null | undefined, unit: string | null | undefined): number | null {
-  if (v === null || v === undefined || !Number.isFinite(v)) return null
-  return v * displayUnit(unit).scale
-}
-
-export function percent(p: number | null | undefined, decimals = 1): string {
-  return p === null || p === undefined || !Number.isFinite(p) ? DASH : `${(100 * p).toFixed(decimals)} %`
-}
-
-/** "96.1 % (91.2–98.4)" for a proportion with its interval. */
-export function yieldText(y: { p: number; lo: number; hi: number } | null | undefined): string {
-  if (!y) return DASH
-  return `${percent(y.p)} (${(100 * y.lo).toFixed(1)}–${(100 * y.hi).toFixed(1)})`
-}
-
-/** Capability indices to two decimals, with the same minus sign as other numbers and no "−0.00". */
-export function index(v: number | null | undefined): string {
-  return fixed(v, 2)
-}
-
-export function ppm(v: number | null | undefined): string {
-  if (v === null || v === undefined || !Number.isFinite(v)) return DASH
-  if (v === 0) return '0'
-  return v >= 100 ? fixed(v, 0) : v >= 1 ? v.toFixed(1) : v.toFixed(3)
-}
-
-export function pValue(p: number | null | undefined): string {
-  if (p === null || p === undefined || !Number.isFinite(p)) return DASH
-  return p < 0.0001 ? '< 0.0001' : p.toFixed(4)
-}
-
 export const BAND_WORDS: Record<string, string> = { capable: 'CAPABLE', marginal: 'MARGINAL', not_capable: 'NOT CAPABLE', too_few: 'FEW VALUES', unknown: 'NO INDEX' }
-
-/** 2 → "100 Hz", 3 → "1 kHz", 6.5 → "3.16 MHz": labels for a log10(Hz) axis. */
-export function logHzLabel(log10Hz: number): string {
-  const hz = 10 ** log10Hz
-  const [scale, unit] = hz >= 1e9 ? [1e9, 'GHz'] : hz >= 1e6 ? [1e6, 'MHz'] : hz >= 1e3 ? [1e3, 'kHz'] : [1, 'Hz']
-  return `${Number.parseFloat((hz / scale).toPrecision(3))} ${unit}`
-}
 
 export function utcStamp(iso: string | null | undefined, withSeconds = false): string {
   return withSeconds ? utcSeconds(iso) : utcMinute(iso)
@@ -93,6 +26,23 @@ export const RULE_TEXT: Record<number, string> = {
   4: 'Rule 4: eight points in a row on one side of the centre line',
 }
 
+/**
+ * Where limits come from, worded alike on every chart and table that uses them: "Limits: VFW-T3-375 rev. 4, approved
+ * 2026-11-03"; several revisions "Limits: VFW-T3-375 rev. 3 (approved 2026-10-01) and rev. 4 (approved 2026-11-03)".
+ */
+export function limitsSource(partNumber: string | null | undefined, revisions: readonly { revision: number | null; approvedAt?: string | null }[]): string {
+  const known = revisions.filter((r) => r.revision !== null)
+  if (!known.length) return 'Limits: none (values stored without a specification revision)'
+  const one = (r: { revision: number | null; approvedAt?: string | null }, brackets: boolean) => {
+    const when = r.approvedAt ? (brackets ? ` (approved ${r.approvedAt.slice(0, 10)})` : `, approved ${r.approvedAt.slice(0, 10)}`) : ''
+    return `rev. ${r.revision}${when}`
+  }
+  const part = partNumber ? `${partNumber} ` : ''
+  if (known.length === 1) return `Limits: ${part}${one(known[0]!, false)}`
+  const words = known.map((r) => one(r, true))
+  return `Limits: ${part}${words.slice(0, -1).join(', ')} and ${words[words.length - 1]}`
+}
+
 /** "rev. 3"; values stored without a revision read "no rev.". */
 export function revisionText(revision: number | null | undefined): string {
   return revision === null || revision === undefined ? 'no rev.' : `rev. ${revision}`
@@ -103,11 +53,6 @@ export function revisionList(revisions: readonly (number | null)[]): string {
   const words = revisions.map((r) => (r === null ? 'none recorded' : String(r)))
   if (words.length <= 1) return `revision ${words[0] ?? DASH}`
   return `revisions ${words.slice(0, -1).join(', ')} and ${words[words.length - 1]}`
-}
-
-/** "0.89…1.41" for an index interval (an ellipsis, since either end may carry a minus sign); dash when there is none. */
-export function intervalText(i: readonly [number, number] | null | undefined): string {
-  return i ? `${index(i[0])}…${index(i[1])}` : DASH
 }
 
 /** Why a lot is flagged on the across-lot chart of its means ("" when it is not). */

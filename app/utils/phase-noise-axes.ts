@@ -1,3 +1,4 @@
+import { formatFixed, formatQuantity } from '#shared/utils/value-format'
 import type { ApexOptions } from 'apexcharts'
 import { formatFrequency } from '#shared/utils/measurement-names'
 import { decadeRange, logFrequencyLabel } from '#shared/utils/phase-noise-plot'
@@ -11,7 +12,7 @@ export function offsetDecades(offsetsHz: number[]): [number, number] {
 }
 
 /** A point at an offset, on the log10 axis. */
-export const atOffset = (offsetHz: number, y: number) => ({ x: Math.log10(offsetHz), y })
+export { chartPoint as atOffset } from '#shared/utils/phase-noise-mask'
 
 export function phaseNoiseAxes(range: [number, number], yTitle: string): Pick<ApexOptions, 'xaxis' | 'yaxis' | 'tooltip'> {
   return {
@@ -19,11 +20,11 @@ export function phaseNoiseAxes(range: [number, number], yTitle: string): Pick<Ap
       type: 'numeric', min: range[0], max: range[1], tickAmount: range[1] - range[0],
       title: { text: 'offset from carrier' }, labels: { formatter: (v: string | number) => logFrequencyLabel(Number(v)) }, tooltip: { enabled: false },
     },
-    yaxis: { title: { text: yTitle }, labels: { formatter: (v: number) => v.toFixed(0) } },
+    yaxis: { title: { text: yTitle }, labels: { formatter: (v: number) => formatFixed(v, 0) } },
     tooltip: {
       shared: false, intersect: true,
       x: { formatter: (v: number) => formatFrequency(Number.parseFloat((10 ** v).toPrecision(4))) },
-      y: { formatter: (v: number) => `${v.toFixed(1)} dBc/Hz` },
+      y: { formatter: (v: number) => formatQuantity(v, 'dBc/Hz') },
     },
   }
 }

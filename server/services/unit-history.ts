@@ -35,6 +35,7 @@ export async function unitHistory(db: Knex, serial: string, part?: string): Prom
     return {
       ...view,
       receivedAt: new Date(run.received_at).toISOString(),
+      revisionApprovedAt: run.revision_approved_at ? new Date(run.revision_approved_at).toISOString() : null,
       traces: traces.map((t: any) => ({ name: t.name, points: points(t.points) })),
       phaseNoiseMask: mask,
       rf: unitRfChecks(unit, run.reference, view.measurements),

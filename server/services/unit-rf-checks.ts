@@ -1,6 +1,7 @@
 // The RF checks of one stored run as the unit page shows them: the ×N phase-noise excess per offset, the harmonics
 // of the input, the output against N × the reference frequency, and why the run is flagged. Pure: from the stored run.
 import { measurementLabel } from '../../shared/utils/measurement-display'
+import { formatQuantity } from '../../shared/utils/value-format'
 import { formatFrequency } from '../../shared/utils/measurement-names'
 import { interpolatePhaseNoise, multiplicationCheck, type PhaseNoisePoint } from '../../shared/utils/multiplication-check'
 import { implausibleReason } from '../../shared/utils/plausibility'
@@ -17,7 +18,6 @@ function readReference(v: unknown): StoredReference | null {
   return o && typeof o === 'object' ? o : null
 }
 
-const fmt = (x: number, digits: number) => Number.parseFloat(x.toFixed(digits)).toString()
 
 export function unitRfChecks(product: ProductFrequencies, storedReference: unknown, ms: UnitMeasurement[]): UnitRfChecks {
   const reference = readReference(storedReference)
@@ -50,10 +50,10 @@ export function unitRfChecks(product: ProductFrequencies, storedReference: unkno
 
   const issues: string[] = []
   for (const r of phaseNoise) {
-    if (r.quieterThanIdeal) issues.push(`Phase noise at ${formatFrequency(r.offsetHz)} is ${fmt(-r.excessDb!, 2)} dB quieter than an ideal ×${product.multiplier} of the reference allows.`)
+    if (r.quieterThanIdeal) issues.push(`Phase noise at ${formatFrequency(r.offsetHz)} is ${formatQuantity(-r.excessDb!, 'dB')} quieter than an ideal ×${product.multiplier} of the reference allows.`)
   }
   if (referenceFrequency?.agrees === false) {
-    issues.push(`The output is ${fmt(referenceFrequency.offsetPpm, 3)} ppm from ${product.multiplier} × the reference frequency; the specification allows ${referenceFrequency.tolerancePpm} ppm.`)
+    issues.push(`The output is ${formatQuantity(referenceFrequency.offsetPpm, 'ppm')} from ${product.multiplier} × the reference frequency; the specification allows ${formatQuantity(referenceFrequency.tolerancePpm, 'ppm')}.`)
   }
   for (const m of ms) {
     if (!m.implausible) continue

@@ -4,7 +4,8 @@
 import type { CapabilityBand, CapabilityIntervals } from '../utils/capability'
 
 /** The revision a group of values was judged by: revisionId 0 (revision null) for values stored without one. */
-export type RevisionTag = { revisionId: number; revision: number | null }
+/** The specification revision figures were judged by, and when it was approved (null for values stored without one). */
+export type RevisionTag = { revisionId: number; revision: number | null; approvedAt: string | null }
 
 /** A revision a lot's values were judged by, with when it took effect. */
 export type JudgedRevision = RevisionTag & { effectiveAt: string | null }
@@ -66,7 +67,9 @@ export type ParameterView = {
   normal: { mean: number; sigma: number } | null
   control: { baselineN: number; frozen: boolean; centre: number; sigma: number; ucl: number; lcl: number; points: ControlPoint[] } | null
   ewma: { lambda: number; L: number; asymptoticUcl: number; asymptoticLcl: number; points: { index: number; z: number; ucl: number; lcl: number; signal: boolean }[] } | null
+  /** null with fewer than driftMinUnits values: too few to extrapolate a slope per 1 000 units from */
   drift: { slopePer1000: number; interval: [number, number] | null; n: number } | null
+  driftMinUnits: number
 }
 
 export type PhaseNoiseOffset = { offsetHz: number; n: number; median: number | null; p10: number | null; p90: number | null; min: number | null; max: number | null; usl: number | null; lsl: number | null }
@@ -78,6 +81,8 @@ export type PhaseNoiseView = {
   /** the revision shown: the one asked for, else the latest with values, else the one in force now */
   revision: number | null
   revisionId: number
+  /** when the revision shown was approved */
+  approvedAt: string | null
   /** the revisions this step's values were judged by, oldest first, with their count of phase-noise runs */
   revisions: RevisionCount[]
   population: 'first'
@@ -113,7 +118,7 @@ export type TrendsView = {
   /** the parameter with the limits of the revision in force now (drawn on the spread chart) */
   parameter: {
     step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string
-    unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null
+    unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null; approvedAt: string | null
   }
   from: string | null; to: string | null
   lots: TrendLot[]

@@ -60,6 +60,8 @@ export type UnitRun = {
   verdict: 'pass' | 'fail'; stationVerdict: 'pass' | 'fail' | null; verdictDisagrees: boolean
   incomplete: boolean; missingRequired: { name: string; offsetHz?: number; harmonic?: number }[]
   calibrationLapsed: boolean; measurementIssue: boolean; revision: number | null
+  /** when the revision the run was judged by was approved: the source of its limits */
+  revisionApprovedAt: string | null
   measurements: UnitMeasurement[]
   traces: { name: string; points: [number, number][] }[]
   /** the phase-noise spot limits the run was held to */

@@ -4,6 +4,7 @@ import type { AlertFigure } from '../types/alert'
 import { capabilityFromValues } from './capability'
 import { individualsLimits, westernElectricHits, type WesternElectricRule } from './control'
 import { linearRegression } from './regression'
+import { formatFigure } from './value-format'
 
 export type CheckResult = { fired: boolean; figures: AlertFigure[]; summary: string }
 /** A check about one of several subjects (a station, an instrument): `key` ends the firing's subject. */
@@ -94,7 +95,7 @@ export function checkControlRule(
         { label: 'Limits from', value: basis.source === 'baseline' ? 'frozen baseline' : `last ${window.length} values` },
         { label: 'Serial', value: p.serial }, { label: 'Station', value: p.station }, { label: 'Tested at', value: p.at.toISOString() }, { label: 'Run', value: p.runId },
       ],
-      summary: `${p.serial} (${p.station}) breaks Western Electric rule ${broken.join(' and ')}: ${p.value} is ${round(z, 3)} σ from the centre`,
+      summary: `${p.serial} (${p.station}) breaks Western Electric rule ${broken.join(' and ')}: ${formatFigure(p.value, unit)} is ${formatFigure(round(z, 3))} σ from the centre`,
     }
   }
   return QUIET(`no new point breaks rule ${rule.rules.join(', ')}`)
@@ -125,7 +126,7 @@ export function checkDriftTowardLimit(valuesInTestOrder: readonly number[], limi
   if (!crosses) return QUIET('the trend stays within the limits over the horizon', figures)
   return {
     fired: true, figures,
-    summary: `trend of ${round(fit.slope, 3)}${unit ? ` ${unit}` : ''} per unit reaches the ${fit.slope > 0 ? 'USL' : 'LSL'} ${limit} in about ${figures[4]!.value} units`,
+    summary: `trend of ${formatFigure(fit.slope, unit ? `${unit} per unit` : 'per unit')} reaches the ${fit.slope > 0 ? 'USL' : 'LSL'} ${formatFigure(limit, unit)} in about ${figures[4]!.value} units`,
   }
 }
 
@@ -155,7 +156,7 @@ export function checkStationBias(points: readonly AlertPoint[], rule: { threshol
         { label: `Mean on ${s.name}`, value: round(mean(s.values), 6), unit }, { label: 'Mean on the others', value: round(mean(others), 6), unit },
         { label: `Values on ${s.name}`, value: s.values.length }, { label: 'Values on the others', value: others.length },
       ],
-      summary: `${s.name} reads ${round(diff, 3)}${unit ? ` ${unit}` : ''} from the other stations over the last ${window.length} values`,
+      summary: `${s.name} reads ${formatFigure(diff, unit)} from the other stations over the last ${window.length} values`,
     })
   }
   return out

@@ -1,14 +1,9 @@
 // A rule in words: its kind's `reads` sentence with the rule's own figures in place of the braces.
 import type { AlertRuleDto } from '../types/alert'
 import { ALERT_KIND_INFO, type AlertKind } from './alert-kinds'
-import { formatQualifier, KNOWN_MEASUREMENTS } from './measurement-names'
+import { expectedUnit } from './measurement-names'
+import { formatFigure, parameterLabel } from './value-format'
 
-/** "Phase noise @ 10 kHz", "Output power": the parameter as the trends page names it. */
-export function parameterLabel(name: string, qualifier: number | null): string {
-  const base = (KNOWN_MEASUREMENTS as Record<string, { label: string }>)[name]?.label ?? name.replace(/_/g, ' ')
-  const q = formatQualifier(name, qualifier || null)
-  return q ? `${base} @ ${q}` : base
-}
 
 /** "1, 2 or 4" */
 export function ruleNumbers(rules: readonly number[]): string {
@@ -25,7 +20,8 @@ export function ruleSentence(rule: RuleFigures): string {
   const v: Record<string, string> = {
     step: rule.step ?? '?',
     parameter: rule.parameter ? `${lowerFirst(parameterLabel(rule.parameter, rule.qualifier))} at ${rule.step ?? '?'}` : '?',
-    threshold: rule.threshold === null ? '?' : String(rule.threshold),
+    // a bias threshold is in the parameter's unit and reads as its values do (jitter in fs)
+    threshold: rule.threshold === null ? '?' : rule.kind === 'station_bias' ? formatFigure(rule.threshold, expectedUnit(rule.parameter ?? '')) : String(rule.threshold),
     windowUnits: rule.windowUnits === null ? '?' : String(rule.windowUnits),
     horizonUnits: rule.horizonUnits === null ? '?' : String(rule.horizonUnits),
     silentMinutes: rule.silentMinutes === null ? '?' : String(rule.silentMinutes),

@@ -1,28 +1,9 @@
-// How a stored measurement reads on screen: label with qualifier, and jitter in femtoseconds.
-import { KNOWN_MEASUREMENTS, formatQualifier, isKnownMeasurement } from './measurement-names'
+// How a stored measurement is named on screen and which chip its verdict wears; numbers are value-format.ts's job.
+import { parameterLabel } from './value-format'
 
-type Shown = { name: string; offsetHz?: number; harmonic?: number; unit: string }
-
-export function measurementLabel(m: Pick<Shown, 'name' | 'offsetHz' | 'harmonic'>): string {
-  const base = isKnownMeasurement(m.name) ? KNOWN_MEASUREMENTS[m.name].label : m.name.replace(/_/g, ' ')
-  const q = formatQualifier(m.name, m.offsetHz ?? m.harmonic ?? null)
-  return q ? `${base} @ ${q}` : base
-}
-
-/** Unit and scale a value is displayed in: seconds of jitter as fs, everything else as stored. */
-export function displayScale(unit: string): { unit: string; factor: number } {
-  return unit === 's' ? { unit: 'fs', factor: 1e15 } : { unit, factor: 1 }
-}
-
-/**
- * A number in the display unit: as posted (no float noise), derived jitter to three significant digits; `significant`
- * overrides the digits (derived values such as the mask margin carry more than a reader can use).
- */
-export function formatInUnit(value: number | null | undefined, unit: string, significant?: number): string {
-  if (value == null || !Number.isFinite(value)) return '—'
-  const { factor } = displayScale(unit)
-  const v = value * factor
-  return String(Number.parseFloat(v.toPrecision(significant ?? (unit === 's' ? 3 : 10))))
+/** "Phase noise @ 10 kHz": the measurement's label with its offset or harmonic. */
+export function measurementLabel(m: { name: string; offsetHz?: number; harmonic?: number }): string {
+  return parameterLabel(m.name, m.offsetHz ?? m.harmonic ?? null)
 }
 
 export type ChipVerdict = 'pass' | 'fail' | 'info' | 'marginal'

@@ -49,6 +49,20 @@ export function maskLine(mask: readonly MaskPoint[]): [number, number][] {
 
 export type TracePoint = readonly [offsetHz: number, dBcHz: number]
 
+/** A point of a phase-noise chart: x is log10 of the offset, and charts join points with straight segments on it. */
+export type ChartPoint = { x: number; y: number }
+export const chartPoint = (offsetHz: number, level: number): ChartPoint => ({ x: Math.log10(offsetHz), y: level })
+
+/** The mask as every chart draws it (unit, lot, specification, portal): maskLine's corners on the log10 axis. */
+export function maskChartPoints(mask: readonly MaskPoint[]): ChartPoint[] {
+  return maskLine(mask).map(([f, u]) => chartPoint(f, u))
+}
+
+/** A sweep as every chart draws it: each point, in offset order, on the same axis (the judge reads it the same way). */
+export function traceChartPoints(trace: readonly TracePoint[]): ChartPoint[] {
+  return trace.filter(([f, l]) => Number.isFinite(f) && f > 0 && Number.isFinite(l)).map(([f, l]) => chartPoint(f, l)).sort((a, b) => a.x - b.x)
+}
+
 export interface MaskMargin {
   /** Limit minus trace at the worst place, dB: negative where the trace lies above the mask. */
   worstMarginDb: number

@@ -58,6 +58,14 @@ export function linearRegression(xs: readonly number[], ys: readonly number[], c
   return { n, slope, intercept, slopeStdErr, interceptStdErr, slopeInterval: [slope - t * slopeStdErr, slope + t * slopeStdErr], r2 }
 }
 
+/**
+ * The fewest units a lot's drift is extrapolated from. A slope per 1 000 units read off a handful of units is mostly
+ * noise projected far beyond the data; 20 is the least number of points common SPC practice asks for before a chart's
+ * limits (and so its trend) are trusted, and by then the t quantile of the slope's interval (18 degrees of freedom,
+ * 2.10) is within 8 % of its large-sample value (1.96).
+ */
+export const MIN_DRIFT_UNITS = 20
+
 /** Drift in test order: regression on x = index/1000, so the slope is the change per 1,000 units tested. */
 export function driftPer1000(ysInTestOrder: readonly number[], confidence = 0.95): RegressionResult | null {
   return linearRegression(

@@ -13,7 +13,7 @@ export async function loadRunsWithMeasurements(db: Knex, runIds: number[]) {
     .join('lots as l', 'l.id', 'r.lot_id').join('stations as s', 's.id', 'r.station_id')
     .leftJoin('spec_revisions as sr', 'sr.id', 'r.revision_id')
     .whereIn('r.id', runIds)
-    .select('r.*', 'u.serial', 'p.part_number', 'l.code as lot_code', 's.name as station_name', 'sr.revision as revision_number')
+    .select('r.*', 'u.serial', 'p.part_number', 'l.code as lot_code', 's.name as station_name', 'sr.revision as revision_number', 'sr.approved_at as revision_approved_at')
   const ms = await db('measurements').whereIn('run_id', runIds).orderBy('id')
   const traces = await db('traces').whereIn('run_id', runIds).orderBy('id')
   return runs.map((r: any) => ({

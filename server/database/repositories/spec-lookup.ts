@@ -11,7 +11,7 @@ export type SpecLimit = {
   unit: string; required: boolean; rule: 'simple' | 'guarded'; defaultUncertainty: number | null; key: boolean
 }
 
-export type RevisionInForce = { id: number; revision: number; effectiveAt: Date; status: string; limits: SpecLimit[] }
+export type RevisionInForce = { id: number; revision: number; effectiveAt: Date; approvedAt: Date | null; status: string; limits: SpecLimit[] }
 
 /** The catalogue record in the shape judgement and station tooling read. */
 function toProductInfo(p: ProductRecord): ProductInfo {
@@ -44,7 +44,7 @@ export async function listEffectiveRevisions(db: Knex, productId: number): Promi
   if (!revs.length) return []
   const limits = await db('spec_limits').whereIn('revision_id', revs.map((r: any) => r.id)).orderBy('id')
   return revs.map((r: any) => ({
-    id: r.id, revision: r.revision, effectiveAt: r.effective_at, status: r.status,
+    id: r.id, revision: r.revision, effectiveAt: r.effective_at, approvedAt: r.approved_at ?? null, status: r.status,
     limits: limits.filter((l: any) => l.revision_id === r.id).map(toLimit),
   }))
 }

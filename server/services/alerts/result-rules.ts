@@ -3,7 +3,7 @@
 import type { Knex } from 'knex'
 import { checkControlRule, checkCpkLow, checkDriftTowardLimit, checkStationBias, checkYieldLow, chartBasis, type AlertPoint, type Limits } from '../../../shared/utils/alert-checks'
 import { controlRulesFromMask } from '../../../shared/utils/alert-kinds'
-import { parameterLabel } from '../../../shared/utils/alert-rule-text'
+import { parameterLabel } from '../../../shared/utils/value-format'
 import { frozenBaseline, lastFirstAttempts, lastFiring, lastValues, type RuleRow } from '../../database/repositories/alert-reads'
 import { revisionAt, type RevisionInForce } from '../../database/repositories/spec-lookup'
 import { bookOf } from '../analytics/revision-limits'

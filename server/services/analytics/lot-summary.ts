@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import { capabilityFromStats, sigmaFromMovingRange } from '../../../shared/utils/capability'
-import { formatQualifier, KNOWN_MEASUREMENTS } from '../../../shared/utils/measurement-names'
+import { parameterLabel } from '../../../shared/utils/value-format'
 import { emptyMoments, mergeMoments, momentsFromShiftedSums, stdDev } from '../../../shared/utils/moments'
 import { paretoFailures, rolledThroughputYield, wilsonInterval } from '../../../shared/utils/yield'
 import { findLotHeader, paramStats, paramStatsAllAttempts, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
@@ -17,11 +17,6 @@ type Merged = {
   min: number; max: number; mrSum: number; mrN: number; outOfSpec: number; failAll: number
 }
 
-export function parameterLabel(name: string, qualifier: number): string {
-  const base = (KNOWN_MEASUREMENTS as Record<string, { label: string }>)[name]?.label ?? name.replace(/_/g, ' ')
-  const q = formatQualifier(name, qualifier || null)
-  return q ? `${base} @ ${q}` : base
-}
 
 const parameterKey = (r: { step: string; name: string; qualifier: number }) => `${r.step}\u0000${r.name}\u0000${r.qualifier}`
 

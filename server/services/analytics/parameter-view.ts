@@ -1,12 +1,12 @@
 import type { Knex } from 'knex'
 import { ewma, individualsLimits, westernElectricHits } from '../../../shared/utils/control'
 import { qualifierKind } from '../../../shared/utils/measurement-names'
-import { slopeFromCentredSums } from '../../../shared/utils/regression'
+import { MIN_DRIFT_UNITS, slopeFromCentredSums } from '../../../shared/utils/regression'
 import { findLotHeader } from '../../database/repositories/lot-stats'
 import { findBaseline, parameterHistogram, parameterMomentsByRevision, parameterPoints, parameterTrendSums, type ParamKey, type RevisionMoments } from '../../database/repositories/parameter-values'
 import type { ParameterView, RevisionCount } from '../../../shared/types/capability'
 import { problem } from '../../utils/problem'
-import { parameterLabel } from './lot-summary'
+import { parameterLabel } from '../../../shared/utils/value-format'
 import { revisionBook, type RevisionBook } from './revision-limits'
 
 export const BASELINE_POINTS = 25
@@ -39,7 +39,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
   const all = { lotId: lot.id, step: q.step, name: q.name, qualifier: q.qualifier, firstOnly: q.attempts === 'first' }
   const [groups, book, frozen] = await Promise.all([parameterMomentsByRevision(db, all), revisionBook(db, lot.productId), findBaseline(db, all)])
   const revisions = book.judged(groups.filter((g) => g.n > 0).map((g) => g.revisionId))
-    .map((r) => ({ revisionId: r.revisionId, revision: r.revision, n: groups.find((g) => g.revisionId === r.revisionId)!.n }))
+    .map((r) => ({ revisionId: r.revisionId, revision: r.revision, approvedAt: r.approvedAt, n: groups.find((g) => g.revisionId === r.revisionId)!.n }))
   const moments = chooseRevision(q, lot.partNumber, book, revisions, groups)
   const key: ParamKey = { ...all, revisionId: moments.revisionId }
   const limit = book.limitFor(moments.revisionId, q)
@@ -48,7 +48,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
     step: q.step, name: q.name, qualifier: q.qualifier, label: parameterLabel(q.name, q.qualifier), unit: limit?.unit ?? null,
     lsl: limit?.lsl ?? null, usl: limit?.usl ?? null, target: limit?.target ?? null, qualifierKind: qualifierKind(q.name),
   }
-  if (moments.n === 0) return { lot: { code: lot.code, partNumber: lot.partNumber }, parameter, revisions, n: 0, histogram: null, normal: null, control: null, ewma: null, drift: null }
+  if (moments.n === 0) return { lot: { code: lot.code, partNumber: lot.partNumber }, parameter, revisions, n: 0, histogram: null, normal: null, control: null, ewma: null, drift: null, driftMinUnits: MIN_DRIFT_UNITS }
 
   const lo = Math.min(moments.min!, parameter.lsl ?? Infinity)
   const hi = Math.max(moments.max!, parameter.usl ?? -Infinity)
@@ -87,6 +87,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
     normal: moments.sd ? { mean: moments.mean!, sigma: moments.sd } : null,
     control,
     ewma: ewmaView,
-    drift: slope ? { slopePer1000: slope.slope, interval: slope.slopeInterval, n: slope.n } : null,
+    drift: slope && slope.n >= MIN_DRIFT_UNITS ? { slopePer1000: slope.slope, interval: slope.slopeInterval, n: slope.n } : null,
+    driftMinUnits: MIN_DRIFT_UNITS,
   }
 }

@@ -33,10 +33,10 @@ function parseRevision(query: Record<string, unknown>): number | null {
 }
 
 /** Revisions with phase-noise or jitter values at the step, oldest first; n is the count at the most-measured offset. */
-function revisionsPresent(counts: SampleCount[], judged: (ids: number[]) => { revisionId: number; revision: number | null }[]): RevisionCount[] {
+function revisionsPresent(counts: SampleCount[], judged: (ids: number[]) => { revisionId: number; revision: number | null; approvedAt: string | null }[]): RevisionCount[] {
   const most = new Map<number, number>()
   for (const c of counts) if (c.n > 0) most.set(c.revisionId, Math.max(most.get(c.revisionId) ?? 0, c.n))
-  return judged([...most.keys()]).map((r) => ({ revisionId: r.revisionId, revision: r.revision, n: most.get(r.revisionId)! }))
+  return judged([...most.keys()]).map((r) => ({ revisionId: r.revisionId, revision: r.revision, approvedAt: r.approvedAt, n: most.get(r.revisionId)! }))
 }
 
 /**

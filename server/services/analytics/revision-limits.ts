@@ -22,11 +22,11 @@ export function bookOf(revisions: RevisionInForce[]): RevisionBook {
   const byId = new Map(revisions.map((r) => [r.id, r]))
   const order = (id: number) => { const r = byId.get(id); return r ? r.effectiveAt.getTime() * 1e3 + r.revision : -Infinity }
   return {
-    tag: (revisionId) => ({ revisionId, revision: byId.get(revisionId)?.revision ?? null }),
+    tag: (revisionId) => ({ revisionId, revision: byId.get(revisionId)?.revision ?? null, approvedAt: byId.get(revisionId)?.approvedAt?.toISOString() ?? null }),
     // the mask margin of a sweep has no limit row of its own: its limit follows from the revision's phase-noise limits
     limitFor: (revisionId, k) => limitInForce(byId.get(revisionId)?.limits ?? [], k) as SpecLimit | undefined,
     judged: (ids) => [...new Set(ids)].sort((a, b) => order(a) - order(b) || a - b).map((id) => ({
-      revisionId: id, revision: byId.get(id)?.revision ?? null, effectiveAt: byId.get(id)?.effectiveAt.toISOString() ?? null,
+      revisionId: id, revision: byId.get(id)?.revision ?? null, approvedAt: byId.get(id)?.approvedAt?.toISOString() ?? null, effectiveAt: byId.get(id)?.effectiveAt.toISOString() ?? null,
     })),
     idOf: (revision) => revisions.find((r) => r.revision === revision)?.id,
   }

@@ -1,7 +1,8 @@
 // The query naming one parameter of one part: ?part=&name=&qualifier=&step= (plus view-specific extras).
 import type { Knex } from 'knex'
-import { CUSTOM_NAME_PATTERN, formatQualifier, KNOWN_MEASUREMENTS, qualifierKind } from '../../../shared/utils/measurement-names'
+import { CUSTOM_NAME_PATTERN, KNOWN_MEASUREMENTS, qualifierKind } from '../../../shared/utils/measurement-names'
 import { limitInForce } from '../../../shared/utils/phase-noise-mask'
+import { parameterLabel } from '../../../shared/utils/value-format'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type SpecLimit } from '../../database/repositories/spec-lookup'
 import { problem, type FieldError } from '../../utils/problem'
 import { qualifierFields } from '../ingest/run-view'
@@ -30,17 +31,12 @@ export function parseSeriesQuery(query: Record<string, unknown>, errors: FieldEr
   return { part: part!, name: name!, qualifier, step }
 }
 
-export function parameterLabelOf(name: string, qualifier: number): string {
-  const base = (KNOWN_MEASUREMENTS as Record<string, { label: string }>)[name]?.label ?? name.replace(/_/g, ' ')
-  const q = formatQualifier(name, qualifier || null)
-  return q ? `${base} @ ${q}` : base
-}
 
 export type ResolvedSeries = {
   product: ProductInfo
   step: string
   limit: SpecLimit | undefined
-  parameter: { step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string; unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null }
+  parameter: { step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string; unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null; approvedAt: string | null }
 }
 
 /**
@@ -58,9 +54,9 @@ export async function resolveSeries(db: Knex, q: SeriesQuery, now = new Date()):
   return {
     product, step, limit,
     parameter: {
-      step, name: q.name, qualifier: q.qualifier, ...qualifierFields(q.name, q.qualifier), label: parameterLabelOf(q.name, q.qualifier),
+      step, name: q.name, qualifier: q.qualifier, ...qualifierFields(q.name, q.qualifier), label: parameterLabel(q.name, q.qualifier),
       unit: limit?.unit ?? known?.unit ?? null, lsl: limit?.lsl ?? null, usl: limit?.usl ?? null, target: limit?.target ?? null,
-      revision: inForce?.revision ?? null,
+      revision: inForce?.revision ?? null, approvedAt: inForce?.approvedAt?.toISOString() ?? null,
     },
   }
 }

@@ -5,12 +5,12 @@ import { createHash } from 'node:crypto'
 import PDFDocument from 'pdfkit'
 import QRCode from 'qrcode'
 import type { CertificateCharacteristic, CertificatePhaseNoisePoint, CertificateSnapshot } from '../../../shared/types/certificate'
-import { displayScale, formatInUnit } from '../../../shared/utils/measurement-display'
 import { formatFrequency } from '../../../shared/utils/measurement-names'
 import { decadeRange, logFrequencyLabel } from '../../../shared/utils/phase-noise-plot'
 import { multiplicationPenaltyDb } from '../../../shared/utils/rf'
 import { fontsFromPackages, parsedFonts, type CertificateFonts } from './fonts'
-import { TEMPLATE_VERSION } from './template'
+import { formatQuantity } from '../../../shared/utils/value-format'
+import { KNOWN_TEMPLATE_VERSIONS, TEMPLATE_VERSION } from './template'
 
 export { TEMPLATE_VERSION }
 
@@ -29,12 +29,25 @@ const BOTTOM = PAGE.h - 56
 type Doc = PDFKit.PDFDocument
 
 const minus = (s: string) => s.replace(/^-/, '\u2212').replace(/([\s(])-(\d)/g, '$1\u2212$2')
-/** A value in its display unit (jitter as fs), with a typographic minus. */
-export function shownValue(value: number | null, unit: string, derived = false): string {
+type ValueText = (value: number | null, unit: string, derived?: boolean) => string
+
+/** Template 1, frozen so its certificates render as issued: values as posted (jitter in fs), derived ones to 5 digits. */
+function valueTextV1(value: number | null, unit: string, derived = false): string {
   if (value == null) return '—'
-  // derived values carry more digits than a reader can use (as the unit page shows them)
-  return `${minus(formatInUnit(value, unit, derived && unit !== 's' ? 5 : undefined))} ${displayScale(unit).unit}`
+  const fs = unit === 's'
+  const digits = derived && !fs ? 5 : fs ? 3 : 10
+  return `${minus(String(Number.parseFloat((value * (fs ? 1e15 : 1)).toPrecision(digits))))} ${fs ? 'fs' : unit}`
 }
+
+/** A value as every page shows it: its quantity's decimals, display unit, minus sign and digit grouping. */
+export function shownValue(value: number | null, unit: string): string {
+  return formatQuantity(value, unit)
+}
+
+const VALUE_TEXT: Record<number, ValueText> = { 1: valueTextV1, 2: shownValue }
+// set for the length of one drawing, which runs without a pause from the first page to doc.end()
+let valueText: ValueText = shownValue
+let drawnVersion = TEMPLATE_VERSION
 const day = (iso: string | null) => (iso ? iso.slice(0, 10) : '—')
 const minute = (iso: string) => `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`
 
@@ -44,13 +57,14 @@ export function differenceUnit(unit: string): string {
 }
 
 function ruleText(c: CertificateCharacteristic): string {
-  if (c.rule === 'guarded') return c.guardBand != null ? `guarded, band ${shownValue(c.guardBand, differenceUnit(c.unit))}` : 'guarded'
+  if (c.rule === 'guarded') return c.guardBand != null ? `guarded, band ${valueText(c.guardBand, differenceUnit(c.unit))}` : 'guarded'
   return 'simple acceptance'
 }
 
 // characters the embedded latin subsets lack, written the way a typewriter would
-const FALLBACK: Record<string, string> = { '\u2192': '->', '\u2190': '<-', '\u2264': '<=', '\u2265': '>=', '\u2248': '~', '\u2026': '...' }
-const SUPPORTED = /[\u0020-\u007e\u00a0-\u00ff\u2013\u2014\u2018\u2019\u201c\u201d\u2022\u2212\u00b7]/
+// the narrow no-break space that groups digits is drawn as the thin space the subsets carry (cells never wrap)
+const FALLBACK: Record<string, string> = { '\u202f': '\u2009', '\u2192': '->', '\u2190': '<-', '\u2264': '<=', '\u2265': '>=', '\u2248': '~', '\u2026': '...' }
+const SUPPORTED = /[\u0020-\u007e\u00a0-\u00ff\u2009\u2013\u2014\u2018\u2019\u201c\u201d\u2022\u2212\u00b7]/
 /** Text as the embedded fonts can draw it: known symbols spelled out, anything else unknown as "?". */
 export function printable(text: string): string {
   let out = ''
@@ -138,7 +152,7 @@ function header(doc: Doc, s: CertificateSnapshot) {
 function footer(doc: Doc, s: CertificateSnapshot, page: number, pages: number) {
   doc.moveTo(PAGE.m, PAGE.h - 40).lineTo(PAGE.m + W, PAGE.h - 40).lineWidth(0.5).strokeColor(C.rule).stroke()
   doc.font('sans').fontSize(6.5).fillColor(C.faint)
-    .text(`${s.number} · template ${TEMPLATE_VERSION} · verify at ${s.verifyUrl}`, PAGE.m, PAGE.h - 34, { width: W - 80, lineBreak: false, ellipsis: true })
+    .text(`${s.number} · template ${drawnVersion} · verify at ${s.verifyUrl}`, PAGE.m, PAGE.h - 34, { width: W - 80, lineBreak: false, ellipsis: true })
   doc.text(`page ${page} of ${pages}`, PAGE.m + W - 80, PAGE.h - 34, { width: 80, align: 'right', lineBreak: false })
 }
 
@@ -183,13 +197,13 @@ function characteristics(doc: Doc, s: CertificateSnapshot, y: number): number {
     { title: 'Lower limit', width: 70, mono: true, align: 'right' }, { title: 'Upper limit', width: 70, mono: true, align: 'right' },
     { title: 'Decision rule', width: 100 }, { title: 'Verdict', width: W - 476 },
   ]
-  const rows = s.characteristics.map((c) => [c.label, c.step, shownValue(c.value, c.unit, c.derived), shownValue(c.lsl, c.unit), shownValue(c.usl, c.unit), ruleText(c), { verdict: c.verdict }])
+  const rows = s.characteristics.map((c) => [c.label, c.step, valueText(c.value, c.unit, c.derived), valueText(c.lsl, c.unit), valueText(c.usl, c.unit), ruleText(c), { verdict: c.verdict }])
   y = table(doc, y, cols, rows)
   if (s.jitter) {
     const j = s.jitter
     y += 5
     doc.font('sans').fontSize(7.5).fillColor(C.ink)
-      .text(`Integrated RMS jitter ${shownValue(j.valueS, 's')} over ${formatFrequency(j.fromHz)} to ${formatFrequency(j.toHz)} offset${j.uslS != null ? `, upper limit ${shownValue(j.uslS, 's')}` : ', no limit (information)'}`, PAGE.m, y, { width: W - 40, lineBreak: false })
+      .text(`Integrated RMS jitter ${valueText(j.valueS, 's')} over ${formatFrequency(j.fromHz)} to ${formatFrequency(j.toHz)} offset${j.uslS != null ? `, upper limit ${valueText(j.uslS, 's')}` : ', no limit (information)'}`, PAGE.m, y, { width: W - 40, lineBreak: false })
     if (j.verdict) chip(doc, j.verdict, PAGE.m + W - 32, y - 1.5)
     y += 12
   }
@@ -333,7 +347,9 @@ function qr(doc: Doc, text: string, x: number, y: number, size: number) {
 
 /** The certificate as PDF bytes. */
 export function renderCertificate(s: CertificateSnapshot, templateVersion: number, fonts: CertificateFonts = fontsFromPackages()): Promise<Buffer> {
-  if (templateVersion !== TEMPLATE_VERSION) return Promise.reject(new Error(`template version ${templateVersion} is not known to this renderer`))
+  if (!KNOWN_TEMPLATE_VERSIONS.includes(templateVersion)) return Promise.reject(new Error(`template version ${templateVersion} is not known to this renderer`))
+  valueText = VALUE_TEXT[templateVersion]!
+  drawnVersion = templateVersion
   const at = new Date(s.issuedAt)
   const f = parsedFonts(fonts)
   const doc = new PDFDocument({
@@ -342,11 +358,11 @@ export function renderCertificate(s: CertificateSnapshot, templateVersion: numbe
     size: 'A4', margin: 0, autoFirstPage: false, compress: true, bufferPages: true,
     info: {
       Title: `Certificate of conformance ${s.number}`, Author: s.maker.name, Subject: `${s.product.partNumber} serial ${s.unit.serial}`,
-      Creator: `Tercet certificate template ${TEMPLATE_VERSION}`, Producer: 'Tercet', CreationDate: at, ModDate: at,
+      Creator: `Tercet certificate template ${templateVersion}`, Producer: 'Tercet', CreationDate: at, ModDate: at,
     },
   })
   // the file identifier pdfkit would derive is pinned to the certificate, so nothing about the moment of rendering enters the file
-  ;(doc as any)._id = createHash('sha256').update(`${s.number}\n${TEMPLATE_VERSION}`).digest().subarray(0, 16)
+  ;(doc as any)._id = createHash('sha256').update(`${s.number}\n${templateVersion}`).digest().subarray(0, 16)
   for (const name of ['sans', 'sansBold', 'mono', 'monoBold'] as const) doc.registerFont(name, f[name] as any)
 
   const chunks: Buffer[] = []

@@ -8,7 +8,7 @@ describe('alertRaised', () => {
   const base = {
     name: 'Ines Calloway', ruleName: 'Tune yield under 90 %', kindLabel: 'First-pass yield low', subjectLabel: 'VFW-T3-375 · tune',
     summary: 'first-pass yield 80 % over the last 20 units (16 passed first time), below 90 %',
-    figures: [{ label: 'First-pass yield', value: 80, unit: '%' }, { label: 'Units', value: 20 }, { label: 'LSL', value: null, unit: 'dBm' }],
+    figures: [{ label: 'First-pass yield', value: 80, unit: '%' }, { label: 'Units', value: 20 }, { label: 'LSL', value: null, unit: 'dBm' }, { label: 'Mean', value: 2.5e-14, unit: 's' }, { label: 'Slope', value: -1.2e-16, unit: 's per unit' }],
     link: '/lots/T3-2612-B?name=output_power&step=final', raisedAt: new Date('2026-12-02T09:15:00Z'),
   }
   it('names the rule and subject, states the summary and every figure with its unit in both parts', () => {
@@ -16,7 +16,10 @@ describe('alertRaised', () => {
     expect(m.subject).toBe('Tercet alert: Tune yield under 90 % — VFW-T3-375 · tune')
     for (const part of [m.text, m.html]) {
       expect(part).toContain('2026-12-02 09:15 UTC')
-      expect(part).toContain('80 %')
+      expect(part).toContain('80\u00a0%')
+      // jitter is stored in seconds and read in femtoseconds, as on the pages (1 fs = 1e-15 s)
+      expect(part).toContain('25.0\u00a0fs')
+      expect(part).toContain('\u22120.1200\u00a0fs per unit')
       expect(part).toContain('First-pass yield')
     }
     expect(m.text).toContain('LSL:')

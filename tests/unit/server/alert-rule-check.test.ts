@@ -42,4 +42,8 @@ describe('ruleSentence', () => {
     expect(ruleSentence({ ...base, kind: 'station_silent', parameter: null, silentMinutes: 45, controlRules: [] })).toBe('any station has posted nothing for 45 minutes while a lot it tested in the last 24 hours is open')
     expect(ruleNumbers([3])).toBe('3')
   })
+  it('states a bias threshold in the unit the values are shown in: jitter in fs (1 fs = 1e-15 s)', () => {
+    const bias = { kind: 'station_bias' as const, stationCode: null, step: 'final', parameter: 'integrated_jitter', qualifier: null, threshold: 4e-15, windowUnits: 50, horizonUnits: null, silentMinutes: null, controlRules: [] }
+    expect(ruleSentence(bias)).toBe("a station's mean of integrated jitter at final differs from the other stations' by more than 4.0\u00a0fs over the last 50 units")
+  })
 })

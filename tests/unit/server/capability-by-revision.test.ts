@@ -10,8 +10,8 @@ const limit = (lsl: number, usl: number): SpecLimit => ({
 })
 const REVISIONS: RevisionInForce[] = [
   // newest effective first, as listEffectiveRevisions gives them
-  { id: 41, revision: 3, effectiveAt: new Date('2026-11-20T00:00:00Z'), status: 'approved', limits: [limit(10.5, 13)] },
-  { id: 17, revision: 2, effectiveAt: new Date('2026-10-01T00:00:00Z'), status: 'superseded', limits: [limit(8, 12)] },
+  { id: 41, revision: 3, effectiveAt: new Date('2026-11-20T00:00:00Z'), approvedAt: new Date('2026-11-18T09:30:00Z'), status: 'approved', limits: [limit(10.5, 13)] },
+  { id: 17, revision: 2, effectiveAt: new Date('2026-10-01T00:00:00Z'), approvedAt: new Date('2026-09-29T14:00:00Z'), status: 'superseded', limits: [limit(8, 12)] },
 ]
 
 /** A station row of one revision, sums about the first value as the fold keeps them. */
@@ -29,8 +29,8 @@ function row(revisionId: number, stationId: number, values: number[]): ParamStat
 describe('the revision book', () => {
   it('gives each revision id its number and its own limits, and orders judged revisions oldest first', () => {
     const book = bookOf(REVISIONS)
-    expect(book.tag(17)).toEqual({ revisionId: 17, revision: 2 })
-    expect(book.tag(0)).toEqual({ revisionId: 0, revision: null })
+    expect(book.tag(17)).toEqual({ revisionId: 17, revision: 2, approvedAt: '2026-09-29T14:00:00.000Z' })
+    expect(book.tag(0)).toEqual({ revisionId: 0, revision: null, approvedAt: null })
     expect(book.limitFor(17, { step: 'final', name: 'output_power', qualifier: 0 })?.lsl).toBe(8)
     expect(book.limitFor(41, { step: 'final', name: 'output_power', qualifier: 0 })?.lsl).toBe(10.5)
     expect(book.limitFor(41, { step: 'final', name: 'phase_noise', qualifier: 1000 })).toBeUndefined()

@@ -66,10 +66,11 @@ describe('certificate document', async () => {
   })
 
   it('lists each key characteristic with its value, limits, decision rule and verdict in words', () => {
-    expect(text).toContain('Output power final 7.12 dBm 5.5 dBm 8.5 dBm guarded, band 0.3 dB PASS')
-    expect(text).toContain('Harmonic rejection @ H2 final 27.4 dB 28 dB — simple acceptance FAIL')
-    expect(text).toContain('Phase noise @ 10 kHz final −147.6 dBc/Hz — −144 dBc/Hz guarded, band 1.5 dB PASS')
-    expect(text).toContain('Integrated RMS jitter 14.3 fs over 1 kHz to 1 MHz offset, upper limit 40 fs PASS')
+    // each quantity to the decimals every page shows it with: dBm and dB to 2, dBc/Hz to 1, jitter in fs to 1
+    expect(text).toContain('Output power final 7.12 dBm 5.50 dBm 8.50 dBm guarded, band 0.30 dB PASS')
+    expect(text).toContain('Harmonic rejection @ H2 final 27.40 dB 28.00 dB — simple acceptance FAIL')
+    expect(text).toContain('Phase noise @ 10 kHz final −147.6 dBc/Hz — −144.0 dBc/Hz guarded, band 1.50 dB PASS')
+    expect(text).toContain('Integrated RMS jitter 14.3 fs over 1 kHz to 1 MHz offset, upper limit 40.0 fs PASS')
     // one characteristic failed: the statement does not claim conformance
     expect(text).toContain('1 of the characteristics stated below did not meet revision 2')
     expect(text).toContain('final 4 3 deviation at attempt 4')
@@ -116,5 +117,12 @@ describe('certificate document', async () => {
 
   it('refuses a template version it does not know', async () => {
     await expect(renderCertificate(SNAPSHOT, TEMPLATE_VERSION + 1)).rejects.toThrow(/template version/)
+  })
+
+  it('still draws a certificate issued under template 1 as it was issued: values as posted', async () => {
+    const old = await textOf(await renderCertificate(structuredClone(SNAPSHOT), 1))
+    expect(old).toContain('Output power final 7.12 dBm 5.5 dBm 8.5 dBm guarded, band 0.3 dB PASS')
+    expect(old).toContain('upper limit 40 fs PASS')
+    expect(old).toContain('template 1 ·')
   })
 })

@@ -8,7 +8,7 @@ import type { ProductInfo, RevisionInForce } from '../../../server/database/repo
 // The demo tripler (×3, 125 → 375 MHz) and its approved limits, as the judgement reads them.
 const T3 = DEMO_PRODUCTS.find((p) => p.partNumber === 'VFW-T3-375')!
 const product: ProductInfo = { id: 1, partNumber: T3.partNumber, name: T3.name, multiplier: 3, inputHz: 125e6, outputHz: 375e6, steps: T3.steps, jitterBand: T3.jitterBand }
-const revision: RevisionInForce = { id: 1, revision: 1, effectiveAt: new Date(0), status: 'approved', limits: T3.limits.map((l) => normalizeSpecLimit(l)) }
+const revision: RevisionInForce = { id: 1, revision: 1, effectiveAt: new Date(0), approvedAt: new Date(0), status: 'approved', limits: T3.limits.map((l) => normalizeSpecLimit(l)) }
 
 function body(extra: Record<string, unknown> = {}, measurements?: Record<string, unknown>[]) {
   return {

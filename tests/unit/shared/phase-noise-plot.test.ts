@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { decadeRange, limitMaskFromMeasurements, logFrequencyLabel } from '../../../shared/utils/phase-noise-plot'
-import { chipVerdict, displayScale, formatInUnit, measurementLabel } from '../../../shared/utils/measurement-display'
+import { chipVerdict, measurementLabel } from '../../../shared/utils/measurement-display'
 
 const pn = (offsetHz: number, usl: number | null) => ({ name: 'phase_noise', offsetHz, limit: usl === null ? null : { usl } })
 
@@ -38,18 +38,6 @@ describe('measurement display', () => {
     expect(measurementLabel({ name: 'harmonic_rejection', harmonic: 2 })).toBe('Harmonic rejection @ H2')
     expect(measurementLabel({ name: 'output_power' })).toBe('Output power')
     expect(measurementLabel({ name: 'case_temperature' })).toBe('case temperature')
-  })
-
-  it('shows jitter in fs and other values as posted', () => {
-    expect(displayScale('s')).toEqual({ unit: 'fs', factor: 1e15 })
-    expect(formatInUnit(23.456e-15, 's')).toBe('23.5')
-    expect(formatInUnit(40e-15, 's')).toBe('40')
-    expect(formatInUnit(7.012, 'dBm')).toBe('7.012')
-    expect(formatInUnit(0.1 + 0.2, 'ppm')).toBe('0.3')
-    expect(formatInUnit(375_000_150.5, 'Hz')).toBe('375000150.5')
-    expect(formatInUnit(null, 'dBm')).toBe('—')
-    expect(formatInUnit(-2.500030681, 'dB', 5)).toBe('-2.5')
-    expect(formatInUnit(0.123456789, 'ppm', 5)).toBe('0.12346')
   })
 
   it('marks a pass inside the guard band as marginal, nothing else', () => {

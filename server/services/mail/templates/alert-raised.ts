@@ -1,11 +1,12 @@
 import type { AlertFigure } from '../../../../shared/types/alert'
+import { formatFigure } from '../../../../shared/utils/value-format'
 import { htmlMail, siteUrl, type RenderedMail } from './layout'
 
 export type AlertRaisedInput = {
   name: string; ruleName: string; kindLabel: string; subjectLabel: string; summary: string; figures: AlertFigure[]; link: string; raisedAt: Date
 }
 
-export const figureText = (f: AlertFigure) => (f.value === null ? '—' : `${f.value}${f.unit ? ` ${f.unit}` : ''}`)
+export const figureText = (f: AlertFigure) => formatFigure(f.value, f.unit)
 /** A page of Tercet as an absolute address. */
 export const absoluteLink = (path: string, env: NodeJS.ProcessEnv = process.env) => `${siteUrl(env)}${path.startsWith('/') ? path : `/${path}`}`
 
