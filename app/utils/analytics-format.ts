@@ -1,5 +1,5 @@
 // Words and times of the analytics views; every number is formatted by shared/utils/value-format.ts.
-import { DASH } from '../../shared/utils/value-format'
+import { DASH } from '#shared/utils/value-format'
 import { utcMinute, utcSeconds } from './utc-time'
 
 export const BAND_WORDS: Record<string, string> = { capable: 'CAPABLE', marginal: 'MARGINAL', not_capable: 'NOT CAPABLE', too_few: 'FEW VALUES', unknown: 'NO INDEX' }

@@ -1,8 +1,8 @@
 // A limit as the editor's text cells hold it and back. Values are typed in the unit they are shown in (jitter in fs)
 // and converted to the stored unit (s) here, once, so the editor, the save and the server's checks all see stored units.
-import { qualifierKind } from '../../shared/utils/measurement-names'
-import type { LimitRule, SpecLimitRow } from '../../shared/utils/spec-limits'
-import { fromInputUnit, inputUnitFor, storedUnitFor, toInputUnit } from '../../shared/utils/value-format'
+import { qualifierKind } from '#shared/utils/measurement-names'
+import type { LimitRule, SpecLimitRow } from '#shared/utils/spec-limits'
+import { fromInputUnit, inputUnitFor, storedUnitFor, toInputUnit } from '#shared/utils/value-format'
 
 export type EditRow = { uid: number; step: string; name: string; qualifier: string; lsl: string; usl: string; target: string; unit: string; required: boolean; rule: LimitRule; defaultUncertainty: string; key: boolean }
 

@@ -30,11 +30,11 @@ describe('the lot page of a lot judged under two revisions', () => {
     const texts = await powerRows.allTextContents()
     expect(texts[0]).toContain('rev. 1')
     expect(texts[1]).toContain('rev. 2')
-    // each row carries its own revision's USL (12 and 13 dBm), which no posted value equals
-    expect(texts[0]).toContain('12.000')
-    expect(texts[0]).not.toContain('13.000')
-    expect(texts[1]).toContain('13.000')
-    expect(texts[1]).not.toContain('12.000')
+    // each row carries its own revision's USL (12 and 13 dBm), shown to 0.01 dB as every dBm value is
+    const uslColumn = (await table.locator('thead th').allTextContents()).findIndex((h) => h.trim().startsWith('USL'))
+    expect(uslColumn).toBeGreaterThan(0)
+    expect((await powerRows.nth(0).locator('td').nth(uslColumn).textContent())?.trim()).toBe('12.00')
+    expect((await powerRows.nth(1).locator('td').nth(uslColumn).textContent())?.trim()).toBe('13.00')
     expect(await page.locator('[data-test="interval-legend"]').first().textContent()).toContain('approximate')
 
     // the charts follow the chosen revision (a drawn chart says the page has hydrated and listens to clicks)
