@@ -13,7 +13,7 @@ function row(over: Partial<CapabilityRow>): CapabilityRow {
   const cpk = over.cpk === undefined ? 1.5 : over.cpk
   serial++
   return {
-    revisionId: 1, revision: 1, step: 'final', name: `p_${serial}`, qualifier: 0, label: `Param ${serial}`, unit: 'dBm',
+    revisionId: 1, revision: 1, approvedAt: '2026-10-03T08:00:00.000Z', step: 'final', name: `p_${serial}`, qualifier: 0, label: `Param ${serial}`, unit: 'dBm',
     n, mean: 10, sigmaWithin: 0.1, sigmaOverall: 0.1, min: 9.8, max: 10.2, lsl: 9, usl: 11, target: null,
     cp: 1.6, cpk, pp: 1.6, ppk: 1.5, intervals: { cp: null, cpk: null, pp: null, ppk: null },
     outOfSpec: 0, observedPpm: 0, expectedPpm: 0, band: capabilityBand(cpk, n), keyCharacteristic: false, revisionsOfParameter: 1,
@@ -23,7 +23,7 @@ function row(over: Partial<CapabilityRow>): CapabilityRow {
 
 async function mountTable(rows: CapabilityRow[]) {
   return mountSuspended(CapabilityTable, {
-    props: { rows, revisions: [{ revisionId: 1, revision: 1, effectiveAt: null }], code: 'LOT-T1', attempts: 'first', selectedKey: null },
+    props: { rows, revisions: [{ revisionId: 1, revision: 1, approvedAt: '2026-10-03T08:00:00.000Z', effectiveAt: null }], code: 'LOT-T1', partNumber: 'PART-T1', attempts: 'first', selectedKey: null },
   })
 }
 
