@@ -2,8 +2,20 @@ import type { NitroErrorHandler } from 'nitropack'
 import { getRequestURL, setResponseHeader, setResponseStatus, send } from 'h3'
 import { isDatabaseUnavailable } from './utils/database-unavailable'
 import { problemTitle } from './utils/problem'
+import { RetryLater, RuleError } from './services/rule-error'
+
+/** h3 wraps an error a handler throws that is not its own; the service's error is then its cause. */
+function domainError(error: any): RuleError | RetryLater | undefined {
+  for (const e of [error, error?.cause]) if (e instanceof RuleError || e instanceof RetryLater) return e
+  return undefined
+}
 
 function classify(error: any): { status: number; detail: string; data: Record<string, unknown> } {
+  const domain = domainError(error)
+  if (domain instanceof RuleError) {
+    return { status: domain.status, detail: domain.message, data: { ...(domain.errors.length ? { errors: domain.errors } : {}), ...domain.extra } }
+  }
+  if (domain instanceof RetryLater) return { status: 503, detail: domain.message, data: { headers: { 'Retry-After': String(domain.retryAfterS) } } }
   const cause = error?.cause ?? error
   const code = cause?.code ?? error?.code
   if (code === 'ER_DUP_ENTRY') return { status: 409, detail: 'A record with the same key already exists.', data: {} }

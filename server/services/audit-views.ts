@@ -1,36 +1,70 @@
 import type { Knex } from 'knex'
-import type { FieldError } from '../utils/problem'
-import { auditFacets, listAudit, type AuditFilter } from '../database/repositories/audit-log'
-import { RuleError } from './rule-error'
+import type { AuditEntry, AuditPage, AuditSubject } from '../../shared/types/audit'
+import { auditKind } from '../../shared/utils/audit-kinds'
+import { auditFacets, listAudit, type AuditFilter, type AuditRow } from '../database/repositories/audit-log'
+import { auditSubjectRows, type SubjectRow } from '../database/repositories/audit-subjects'
+import { parameterLabel } from '../../shared/utils/value-format'
 
-function one(v: unknown): string | undefined {
-  const s = Array.isArray(v) ? v[0] : v
-  return s == null || s === '' ? undefined : String(s)
+const SETTINGS: Record<string, { name: string; href: string }> = {
+  calibration_due_soon_days: { name: 'Calibration due-soon warning', href: '/stations' },
 }
 
-/** ?entity, entityId, action, user (id), from, to, page, pageSize; 400 with pointers into /query. */
-export async function auditPage(db: Knex, raw: Record<string, unknown>) {
-  const errors: FieldError[] = []
-  const int = (name: string, dflt: number, max: number) => {
-    const s = one(raw[name])
-    if (s === undefined) return dflt
-    if (!/^\d+$/.test(s) || Number(s) < 1 || Number(s) > max) { errors.push({ pointer: `/query/${name}`, message: `must be a whole number from 1 to ${max}` }); return dflt }
-    return Number(s)
+const enc = encodeURIComponent
+const unitHref = (partNumber: string, serial: string) => `/units/${enc(serial)}?part=${enc(partNumber)}`
+
+/** Where each kind's page is, given the entry's id and what was read about it; null where no page shows it. */
+const HREF: Record<string, (id: string, row: SubjectRow) => string | null> = {
+  spec_revision: (id) => `/specs/revisions/${id}`,
+  product: (id) => `/specs/${enc(id)}`,
+  lot: (id) => `/lots/${enc(id)}`,
+  test_run: (_id, row) => { const [part, serial] = String(row.link).split('/'); return unitHref(part!, serial!) },
+  station: (id) => `/stations/${id}`,
+  calibration_impact: (id) => `/calibration-impacts/${id}`,
+  certificate: (_id, row) => (row.link ? `/shipments/${row.link}` : null),
+  shipment: (_id, row) => `/shipments/${row.link}`,
+  customer: () => '/customers',
+  user: () => '/admin/users',
+  alert_rule: () => '/alerts/rules',
+  alert_firing: () => '/alerts',
+  import_job: () => '/imports',
+}
+
+/** Kinds whose id names them by itself (a unit, a control baseline, a setting, a range of runs): no lookup needed. */
+function fromId(entity: string, id: string): AuditSubject | undefined {
+  const kind = auditKind(entity)
+  if (entity === 'unit') {
+    const [part, serial] = id.split('/')
+    return serial ? { kind, name: `${part} ${serial}`, detail: null, href: unitHref(part!, serial) } : undefined
   }
-  const date = (name: string) => {
-    const s = one(raw[name])
-    if (s === undefined) return undefined
-    const d = new Date(s)
-    if (Number.isNaN(d.getTime())) { errors.push({ pointer: `/query/${name}`, message: 'must be a date or date-time (ISO 8601)' }); return undefined }
-    return d
+  if (entity === 'control_baseline') {
+    const [code, step, name, qualifier] = id.split('/')
+    return name ? { kind, name: code!, detail: `${parameterLabel(name, Number(qualifier) || 0)}, ${step}`, href: `/lots/${enc(code!)}` } : undefined
   }
-  const page = int('page', 1, 1_000_000)
-  const pageSize = int('pageSize', 50, 200)
-  const filter: AuditFilter = {
-    entity: one(raw.entity), entityId: one(raw.entityId), action: one(raw.action),
-    userId: one(raw.user) === undefined ? undefined : int('user', 0, 2 ** 31), from: date('from'), to: date('to'),
-  }
-  if (errors.length) throw new RuleError(400, 'Some query parameters are not valid.', errors)
+  if (entity === 'app_setting' && SETTINGS[id]) return { kind, ...SETTINGS[id]!, detail: null }
+  if (entity === 'test_run' && id.includes('…')) return { kind: 'Test runs', name: id.replace('…', ' to '), detail: null, href: null }
+  return undefined
+}
+
+/** Each entry's subject named as its page names it, read for the whole page at once. */
+async function subjectsOf(db: Knex, rows: AuditRow[]): Promise<AuditSubject[]> {
+  const wanted = new Map<string, string[]>()
+  for (const r of rows) if (!fromId(r.entity, r.entityId)) wanted.set(r.entity, [...(wanted.get(r.entity) ?? []), r.entityId])
+  const found = await auditSubjectRows(db, wanted)
+  return rows.map((r) => {
+    const own = fromId(r.entity, r.entityId)
+    if (own) return own
+    const row = found.get(r.entity)?.get(r.entityId)
+    const kind = auditKind(r.entity)
+    // gone since (or never a row of its own): the stored id is all there is to show
+    if (!row) return { kind, name: r.entityId, detail: null, href: null }
+    return { kind, name: row.name, detail: row.detail ?? null, href: HREF[r.entity]?.(r.entityId, row) ?? null }
+  })
+}
+
+/** One page of the audit log under a filter (parsed from the query by server/utils/audit-query.ts), with the facets to filter by. */
+export async function auditPage(db: Knex, { filter, page, pageSize }: { filter: AuditFilter; page: number; pageSize: number }): Promise<AuditPage> {
   const { total, rows } = await listAudit(db, filter, { limit: pageSize, offset: (page - 1) * pageSize })
-  return { page, pageSize, total, pageCount: Math.max(1, Math.ceil(total / pageSize)), entries: rows, facets: await auditFacets(db) }
+  const [subjects, facets] = await Promise.all([subjectsOf(db, rows), auditFacets(db)])
+  const entries: AuditEntry[] = rows.map((r, i) => ({ ...r, at: new Date(r.at).toISOString(), subject: subjects[i]! }))
+  return { page, pageSize, total, pageCount: Math.max(1, Math.ceil(total / pageSize)), entries, facets }
 }

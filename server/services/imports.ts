@@ -42,19 +42,13 @@ const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ETIMED
 
 type Spooled = { path: string; lines: number; format: ImportFormat }
 
-/** The upload is refused as a whole, before any run of it is written. */
-export class ImportRefused extends Error {
-  constructor(public status: 400 | 413, message: string, public messages: string[], public extra: Record<string, unknown> = {}) {
-    super(message)
-  }
-}
-
-function refuse(status: 400 | 413, detail: string, messages: string[], extra: Record<string, unknown> = {}): ImportRefused {
-  return new ImportRefused(status, detail, messages, extra)
+/** The upload is refused as a whole, before any run of it is written; each message is about the file, not a body field. */
+function refuse(status: 400 | 413, detail: string, messages: string[], extra: Record<string, unknown> = {}): RuleError {
+  return new RuleError(status, detail, messages.map((message) => ({ pointer: '', message })), extra)
 }
 
 /**
- * Copies the upload to a temporary file, checking each line as it passes. Refuses (ImportRefused) a CSV whose
+ * Copies the upload to a temporary file, checking each line as it passes. Refuses (RuleError) a CSV whose
  * header names unknown or misses required columns, any line that is not UTF-8, and a file without runs;
  * the rest of a refused upload is read and dropped so that the client receives the answer.
  */

@@ -3,11 +3,12 @@ import { writeAudit } from '../database/repositories/audit'
 import { findProductByPartNumber } from '../database/repositories/products'
 import { insertDisposition, policiesOf, replacePolicies } from '../database/repositories/retest'
 import { RuleError } from './rule-error'
+import type { RetestPolicy } from '../../shared/types/spec'
 
 export type PolicyInput = { policies: { step: string; maxAttempts: number | null }[] }
 export type DispositionInput = { step: string; kind: 'scrap' | 'rework' | 'deviation'; reason: string }
 
-export async function retestPolicy(db: Knex, partNumber: string) {
+export async function retestPolicy(db: Knex, partNumber: string): Promise<RetestPolicy> {
   const p = await findProductByPartNumber(db, partNumber)
   if (!p) throw new RuleError(404, `No part ${partNumber}.`)
   const rows = new Map((await policiesOf(db, p.id)).map((r) => [r.step, r]))
@@ -15,7 +16,7 @@ export async function retestPolicy(db: Knex, partNumber: string) {
 }
 
 /** Sets the attempts allowed at each step (null: no limit), replacing the product's whole policy. */
-export async function setRetestPolicy(db: Knex, actorId: number, partNumber: string, input: PolicyInput) {
+export async function setRetestPolicy(db: Knex, actorId: number, partNumber: string, input: PolicyInput): Promise<RetestPolicy> {
   await db.transaction(async (trx) => {
     const p = await findProductByPartNumber(trx, partNumber, { forUpdate: true })
     if (!p) throw new RuleError(404, `No part ${partNumber}.`)

@@ -1,19 +1,23 @@
-import type { FieldError } from '../utils/problem'
-import { problem } from '../utils/problem'
+import type { FieldError } from '../../shared/types/problem'
 
-/** A domain rule refused the request; handlers turn it into problem+json with the given status. */
+export type RuleStatus = 400 | 403 | 404 | 409 | 410 | 413 | 415 | 422
+
+/**
+ * A domain rule refused the request. Services throw it and nothing else for a refusal; the API's error handler
+ * (server/error-handler.ts) is the one place that turns it into problem+json: `status`, the message as `detail`,
+ * `errors` (JSON Pointers into the body or /query) when there are any, and `extra` as further members.
+ */
 export class RuleError extends Error {
-  constructor(public status: 400 | 403 | 404 | 409 | 413 | 422, message: string, public errors: FieldError[] = [], public extra: Record<string, unknown> = {}) {
+  constructor(public status: RuleStatus, message: string, public errors: FieldError[] = [], public extra: Record<string, unknown> = {}) {
     super(message)
+    this.name = 'RuleError'
   }
 }
 
-/** Runs a service call and rethrows a RuleError as the matching problem. */
-export async function underRules<T>(fn: () => Promise<T>): Promise<T> {
-  try {
-    return await fn()
-  } catch (e) {
-    if (e instanceof RuleError) throw problem(e.status, e.message, { ...(e.errors.length ? { errors: e.errors } : {}), ...e.extra })
-    throw e
+/** The work cannot be done right now but will be shortly (a lease held elsewhere, a document being prepared): 503 with Retry-After. */
+export class RetryLater extends Error {
+  constructor(message: string, public retryAfterS = 2) {
+    super(message)
+    this.name = 'RetryLater'
   }
 }

@@ -7,7 +7,8 @@ import {
   clearSubmission, findDraftOf, findSourceRevision, insertRevision, latestEffectiveAt, listLimitsOf, lockRevision, markApproved,
   nextRevisionNumber, replaceLimits, supersedeApproved,
 } from '../database/repositories/spec-revisions'
-import { normalizeSpecLimit, validateSpecLimits, type SpecLimitRow } from '../../shared/utils/spec-limits'
+import { normalizeSpecLimit, specLimitsFromCsv, validateSpecLimits, type SpecLimitRow } from '../../shared/utils/spec-limits'
+import type { LimitsImportApplied, LimitsImportPreview } from '../../shared/types/spec'
 import { invalidateSpecCache } from './ingest/caches'
 import { RuleError } from './rule-error'
 
@@ -70,6 +71,23 @@ export async function replaceDraftLimits(db: Knex, actorId: number, revisionId: 
 /** Read-only check that a draft could take these limits, for a preview. */
 export async function checkDraftAccepts(db: Knex, revisionId: number): Promise<{ steps: string[] }> {
   return db.transaction(async (trx) => ({ steps: (await lockDraft(trx, revisionId)).product.steps }))
+}
+
+/**
+ * Limits from a CSV file: with `preview` only what would be read; otherwise the draft's limits are replaced, and a
+ * file with any wrong row replaces nothing (422 with every row's fault).
+ */
+export async function importDraftLimits(db: Knex, actorId: number, revisionId: number, text: string, preview: boolean): Promise<LimitsImportPreview | LimitsImportApplied> {
+  const { steps } = await checkDraftAccepts(db, revisionId)
+  const parsed = specLimitsFromCsv(text, steps)
+  if (preview) return { preview: true, applied: false, rows: parsed.rows, errors: parsed.errors }
+  if (parsed.errors.length) {
+    throw new RuleError(422, `The file has ${parsed.errors.length} error(s); nothing was imported.`,
+      parsed.errors.map((e) => ({ pointer: e.pointer, message: `row ${e.row}${e.column ? `, ${e.column}` : ''}: ${e.message}` })),
+      { rowErrors: parsed.errors })
+  }
+  const limits = await replaceDraftLimits(db, actorId, revisionId, parsed.rows.map((r) => r.limit), 'limits_import')
+  return { preview: false, applied: true, count: limits.length }
 }
 
 /**

@@ -4,7 +4,7 @@ import {
   findRevision, findRevisionInForce, listAllRevisions, listLimitsOf, listRevisionsOfProduct, type RevisionRecord,
 } from '../database/repositories/spec-revisions'
 import { compareSpecLimits } from '../../shared/utils/spec-limits'
-import type { ProductRevisions, RevisionComparison, RevisionDetail, SpecProduct, SpecRevision } from '../../shared/types/spec'
+import type { ProductRevisions, RevisionComparison, RevisionDetail, SpecOverviewProduct, SpecProduct, SpecRevision } from '../../shared/types/spec'
 import { RuleError } from './rule-error'
 
 const iso = (d: Date) => new Date(d).toISOString()
@@ -44,7 +44,7 @@ export async function revisionDetail(db: Knex, id: number, now = new Date()): Pr
 }
 
 /** Every product with the revision in force, the approved ones still to take effect, and open drafts. */
-export async function specOverview(db: Knex, now = new Date()) {
+export async function specOverview(db: Knex, now = new Date()): Promise<SpecOverviewProduct[]> {
   const [products, revisions] = await Promise.all([listProductRecords(db), listAllRevisions(db)])
   return Promise.all(products.map(async (p) => {
     const inForce = await findRevisionInForce(db, p.id, now)

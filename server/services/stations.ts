@@ -1,5 +1,6 @@
 import type { Knex } from 'knex'
-import { worstCalibration, type CalibrationState } from '../../shared/utils/calibration'
+import { worstCalibration } from '../../shared/utils/calibration'
+import type { StationCreated, StationDetail, StationSummary, StationToken } from '../../shared/types/station'
 import { writeAudit } from '../database/repositories/audit'
 import { recentStationRuns, stationExists } from '../database/repositories/station-runs'
 import type { StationRecentRun } from '../../shared/types/station-runs'
@@ -9,21 +10,26 @@ import {
 } from '../database/repositories/stations'
 import { generateStationToken } from '../utils/station-token'
 import { currentInstrumentsOfStations, type CurrentInstrument } from './calibration/views'
+import { RuleError } from './rule-error'
 
 export type NewStation = { name: string; location?: string | null; description?: string | null }
 
-/** The instruments a station holds now, each with the state of its record in force now (history: calibration/). */
-export type StationView = StationRow & { instruments: CurrentInstrument[]; calibrationState: CalibrationState | null }
-export type StationDetail = StationView & { tokens: TokenRow[] }
+const iso = (d: Date) => new Date(d).toISOString()
+const isoOrNull = (d: Date | null) => (d ? iso(d) : null)
 
-/** A station write refused for a reason the schema cannot express; `pointer` names the field. */
-export class StationRuleError extends Error {
-  constructor(public status: 400 | 409, message: string, public pointer: string) { super(message) }
+/** A station write refused for a reason the schema cannot express, pointing at the field. */
+function refused(status: 400 | 409, message: string, pointer: string): RuleError {
+  return new RuleError(status, message, [{ pointer, message }])
 }
 
-function view(s: StationRow, instruments: Map<number, CurrentInstrument[]>): StationView {
+/** The station with the instruments it holds now, each with the state of its record in force now (history: calibration/). */
+function view(s: StationRow, instruments: Map<number, CurrentInstrument[]>): StationSummary {
   const list = instruments.get(s.id) ?? []
-  return { ...s, instruments: list, calibrationState: worstCalibration(list.map((i) => i.state)) }
+  return { ...s, lastSeenAt: isoOrNull(s.lastSeenAt), createdAt: iso(s.createdAt), instruments: list, calibrationState: worstCalibration(list.map((i) => i.state)) }
+}
+
+function tokenView(t: TokenRow): StationToken {
+  return { ...t, createdAt: iso(t.createdAt), revokedAt: isoOrNull(t.revokedAt), lastUsedAt: isoOrNull(t.lastUsedAt) }
 }
 
 function blankToNull(v: string | null | undefined): string | null {
@@ -31,26 +37,26 @@ function blankToNull(v: string | null | undefined): string | null {
   return t ? t : null
 }
 
-export async function stationList(db: Knex, now = new Date()): Promise<StationView[]> {
+export async function stationList(db: Knex, now = new Date()): Promise<StationSummary[]> {
   const stations = await listStations(db, now)
   const instruments = await currentInstrumentsOfStations(db, stations.map((s) => s.id), now)
   return stations.map((s) => view(s, instruments))
 }
 
-async function stationView(db: Knex, id: number, now = new Date()): Promise<StationView | undefined> {
+async function stationView(db: Knex, id: number, now = new Date()): Promise<StationSummary | undefined> {
   const s = await findStation(db, id, now)
   return s && view(s, await currentInstrumentsOfStations(db, [id], now))
 }
 
 export async function stationDetail(db: Knex, id: number, now = new Date()): Promise<StationDetail | undefined> {
   const station = await stationView(db, id, now)
-  return station && { ...station, tokens: await listTokens(db, id) }
+  return station && { ...station, tokens: (await listTokens(db, id)).map(tokenView) }
 }
 
 /** Creates the station with its first token; the token is returned here and nowhere else. */
-export async function createStation(db: Knex, actorId: number | null, input: NewStation): Promise<{ station: StationView; token: string }> {
+export async function createStation(db: Knex, actorId: number | null, input: NewStation): Promise<StationCreated> {
   const name = input.name.trim()
-  if (!name) throw new StationRuleError(400, 'The station name must not be blank.', '/name')
+  if (!name) throw refused(400, 'The station name must not be blank.', '/name')
   const t = generateStationToken()
   try {
     return await db.transaction(async (trx) => {
@@ -64,7 +70,7 @@ export async function createStation(db: Knex, actorId: number | null, input: New
       return { station: created, token: t.token }
     })
   } catch (e) {
-    if ((e as any)?.code === 'ER_DUP_ENTRY') throw new StationRuleError(409, `A station named "${name}" already exists.`, '/name')
+    if ((e as any)?.code === 'ER_DUP_ENTRY') throw refused(409, `A station named "${name}" already exists.`, '/name')
     throw e
   }
 }

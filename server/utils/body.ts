@@ -1,5 +1,6 @@
 import type { H3Event } from 'h3'
-import { problem, type FieldError } from './problem'
+import type { FieldError } from '../../shared/types/problem'
+import { problem } from './problem'
 
 type Validator<T> = (body: unknown) => { ok: true; value: T } | { ok: false; errors: FieldError[] }
 

@@ -113,15 +113,37 @@ export type TrendLot = {
   beyondLimits: boolean; rules: number[]
 }
 
+/** One parameter of one part as the trends and station-comparison views name it, with the limits of the revision in force now. */
+export type SeriesPart = { partNumber: string; name: string; steps: string[] }
+export type SeriesParameter = {
+  step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string
+  unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null; approvedAt: string | null
+}
+
 export type TrendsView = {
-  part: { partNumber: string; name: string; steps: string[] }
+  part: SeriesPart
   /** the parameter with the limits of the revision in force now (drawn on the spread chart) */
-  parameter: {
-    step: string; name: string; qualifier: number; offsetHz?: number; harmonic?: number; label: string
-    unit: string | null; lsl: number | null; usl: number | null; target: number | null; revision: number | null; approvedAt: string | null
-  }
+  parameter: SeriesParameter
   from: string | null; to: string | null
   lots: TrendLot[]
   acrossLots: { n: number; centre: number; sigma: number; ucl: number; lcl: number } | null
   drift: { slopePerLot: number; interval: [number, number] | null; n: number; r2: number | null } | null
+}
+
+/** Location and spread pooled over stations' rows. */
+export type PooledSummary = { n: number; mean: number | null; sigmaOverall: number | null; sigmaWithin: number | null; min: number | null; max: number | null }
+
+/** One station against all the others pooled: its bias from the pooled mean and Welch's test. */
+export type StationComparisonRow = {
+  station: string; n: number; mean: number | null; sigma: number | null; sigmaWithin: number | null; min: number | null; max: number | null
+  bias: number | null; welch: { t: number; df: number; p: number } | null; largestBias: boolean
+}
+
+/** GET /api/stations/compare */
+export type StationComparisonView = {
+  part: SeriesPart
+  parameter: SeriesParameter
+  lot: string | null
+  pooled: PooledSummary & { outOfSpec: number }
+  stations: StationComparisonRow[]
 }

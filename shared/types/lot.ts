@@ -30,3 +30,10 @@ export type LotUnitsPage = {
   /** every station that tested a unit of the lot, for the filter */
   stations: string[]
 }
+
+/** One lot in the list of lots (GET /api/lots), newest first. */
+export type LotListItem = {
+  code: string; partNumber: string; productName: string; status: LotStatus; plannedQty: number | null
+  unitsTested: number; createdAt: string
+}
+export type LotList = { lots: LotListItem[] }

@@ -3,8 +3,9 @@ import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import {
-  createStation, revokeStationTokens, rotateStationToken, stationDetail, stationList, StationRuleError,
+  createStation, revokeStationTokens, rotateStationToken, stationDetail, stationList,
 } from '../../server/services/stations'
+import { RuleError } from '../../server/services/rule-error'
 
 let db: Knex
 let actorId: number
@@ -80,8 +81,8 @@ describe('station tokens at rest', () => {
     const { station } = await createStation(db, actorId, { name: name('dup') })
     created.push(station.id)
     const err = await createStation(db, actorId, { name: `  ${station.name} ` }).catch((e) => e)
-    expect(err).toBeInstanceOf(StationRuleError)
-    expect(err).toMatchObject({ status: 409, pointer: '/name' })
+    expect(err).toBeInstanceOf(RuleError)
+    expect(err).toMatchObject({ status: 409, errors: [{ pointer: '/name' }] })
     expect(await db('stations').where({ name: station.name }).count({ n: '*' })).toEqual([{ n: 1 }])
     const creates = await db('audit_log').where({ entity: 'station', action: 'create' }).whereRaw("JSON_VALUE(`after`, '$.name') = ?", [station.name])
     expect(creates).toHaveLength(1)

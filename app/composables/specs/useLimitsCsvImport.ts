@@ -1,13 +1,11 @@
 // Limits from a CSV file: the server previews it first, and only a file without errors is applied.
 import type { Ref } from 'vue'
-import type { SpecLimitRow } from '#shared/utils/spec-limits'
-
-export type LimitsPreview = { rows: { row: number; limit: SpecLimitRow }[]; errors: { row: number; column: string | null; message: string }[] }
+import type { LimitsImportApplied, LimitsImportPreview } from '#shared/types/spec'
 
 export function useLimitsCsvImport(revisionId: Ref<number>, refresh: () => Promise<unknown>) {
   const csvText = ref<string | null>(null)
   const csvName = ref('')
-  const preview = ref<LimitsPreview | null>(null)
+  const preview = ref<LimitsImportPreview | null>(null)
   const csvMessage = ref<string | null>(null)
   async function pickCsv(ev: Event) {
     const file = (ev.target as HTMLInputElement).files?.[0]
@@ -17,14 +15,14 @@ export function useLimitsCsvImport(revisionId: Ref<number>, refresh: () => Promi
     csvName.value = file.name
     csvText.value = await file.text()
     try {
-      preview.value = await $fetch<LimitsPreview>(`/api/revisions/${revisionId.value}/limits/import?preview=1`, { method: 'POST', body: csvText.value, headers: { 'content-type': 'text/csv' } })
+      preview.value = await $fetch<LimitsImportPreview>(`/api/revisions/${revisionId.value}/limits/import?preview=1`, { method: 'POST', body: csvText.value, headers: { 'content-type': 'text/csv' } })
     } catch (e: any) {
       csvMessage.value = e?.data?.detail ?? 'The file could not be read.'
     }
   }
   async function applyCsv() {
     try {
-      const r = await $fetch<{ count: number }>(`/api/revisions/${revisionId.value}/limits/import`, { method: 'POST', body: csvText.value!, headers: { 'content-type': 'text/csv' } })
+      const r = await $fetch<LimitsImportApplied>(`/api/revisions/${revisionId.value}/limits/import`, { method: 'POST', body: csvText.value!, headers: { 'content-type': 'text/csv' } })
       csvMessage.value = `Imported ${r.count} limits from ${csvName.value}.`
       preview.value = null
       await refresh()

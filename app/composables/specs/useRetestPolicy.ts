@@ -1,10 +1,10 @@
-type Policy = { step: string; maxAttempts: number | null; updatedAt: string | null; updatedBy: string | null }
+import type { RetestPolicy } from '#shared/types/spec'
 
 export function useRetestPolicy(partNumber: () => string) {
   const url = () => `/api/products/${encodeURIComponent(partNumber())}/retest-policy`
-  const fetched = useFetch<{ partNumber: string; policies: Policy[] }>(url, { default: () => ({ partNumber: '', policies: [] }) })
+  const fetched = useFetch<RetestPolicy>(url, { default: () => ({ partNumber: '', policies: [] }) })
   async function save(policies: { step: string; maxAttempts: number | null }[]) {
-    fetched.data.value = await $fetch(url(), { method: 'PUT', body: { policies } })
+    fetched.data.value = await $fetch<RetestPolicy>(url(), { method: 'PUT', body: { policies } })
   }
   return { ...fetched, save }
 }

@@ -2,7 +2,6 @@ import schema from '../../../shared/schemas/alert-rule-update.schema.json'
 import type { AlertRuleChange } from '../../../shared/types/alert'
 import { compileSchema } from '../../utils/run-validator'
 import { changeRule } from '../../services/alerts/rules'
-import { underRules } from '../../services/rule-error'
 
 const validate = compileSchema<AlertRuleChange>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'alert rule')
   const body = await readValidBody(event, validate)
-  return { rule: await underRules(() => changeRule(useDb(), actor.id, id, body)) }
+  return { rule: await changeRule(useDb(), actor.id, id, body) }
 })

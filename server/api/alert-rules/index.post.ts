@@ -2,14 +2,13 @@ import schema from '../../../shared/schemas/alert-rule-create.schema.json'
 import type { AlertRuleInput } from '../../../shared/types/alert'
 import { compileSchema } from '../../utils/run-validator'
 import { createRule } from '../../services/alerts/rules'
-import { underRules } from '../../services/rule-error'
 
 const validate = compileSchema<AlertRuleInput>(schema)
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const body = await readValidBody(event, validate)
-  const rule = await underRules(() => createRule(useDb(), actor.id, body))
+  const rule = await createRule(useDb(), actor.id, body)
   setResponseStatus(event, 201)
   return { rule }
 })

@@ -1,4 +1,4 @@
 import { auditPage } from '../../services/audit-views'
-import { underRules } from '../../services/rule-error'
+import { parseAuditQuery } from '../../utils/audit-query'
 
-export default defineEventHandler(async (event) => underRules(() => auditPage(useDb(), getQuery(event))))
+export default defineEventHandler(async (event) => auditPage(useDb(), parseAuditQuery(getQuery(event))))

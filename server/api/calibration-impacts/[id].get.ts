@@ -1,8 +1,8 @@
 import { impactDetail } from '../../services/calibration/impact-views'
-import { underRules } from '../../services/rule-error'
+import { parseImpactUnitsPage } from '../../utils/impact-query'
 
 export default defineEventHandler(async (event) => {
   requireUser(event)
   const id = idParam(event, 'id', 'calibration impact review')
-  return underRules(() => impactDetail(useDb(), id, getQuery(event)))
+  return impactDetail(useDb(), id, parseImpactUnitsPage(getQuery(event)))
 })

@@ -1,7 +1,6 @@
 import schema from '../../../shared/schemas/customer-update.schema.json'
 import { compileSchema } from '../../utils/run-validator'
 import { changeCustomer, type CustomerChange } from '../../services/customers'
-import { underRules } from '../../services/rule-error'
 
 const validate = compileSchema<CustomerChange>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'customer')
   const body = await readValidBody(event, validate)
-  return { customer: await underRules(() => changeCustomer(useDb(), actor.id, id, body)) }
+  return { customer: await changeCustomer(useDb(), actor.id, id, body) }
 })

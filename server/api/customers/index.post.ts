@@ -1,14 +1,13 @@
 import schema from '../../../shared/schemas/customer-create.schema.json'
 import { compileSchema } from '../../utils/run-validator'
 import { createCustomer, type CustomerFields } from '../../services/customers'
-import { underRules } from '../../services/rule-error'
 
 const validate = compileSchema<CustomerFields>(schema)
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const body = await readValidBody(event, validate)
-  const customer = await underRules(() => createCustomer(useDb(), actor.id, body))
+  const customer = await createCustomer(useDb(), actor.id, body)
   setResponseStatus(event, 201)
   return { customer }
 })

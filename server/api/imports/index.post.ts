@@ -1,5 +1,5 @@
 import { findStationByName, type ImportFormat } from '../../database/repositories/imports'
-import { ImportRefused, importJobView, startImport } from '../../services/imports'
+import { importJobView, startImport } from '../../services/imports'
 import type { ImportStarted } from '../../../shared/types/imports'
 
 const FORMATS: ImportFormat[] = ['jsonl', 'csv']
@@ -28,13 +28,7 @@ export default defineEventHandler(async (event): Promise<ImportStarted> => {
 
   // eslint-disable-next-line no-control-regex -- control characters are exactly what a stored file name must lose
   const fileName = (queryText(q.fileName).replace(/[\u0000-\u001f\\/]/g, '_').slice(0, 255)) || `upload.${format}`
-  let job
-  try {
-    job = await startImport(db, { userId: user.id, station, fileName, format }, event.node.req)
-  } catch (e) {
-    if (e instanceof ImportRefused) throw problem(e.status, e.message, { errors: e.messages.map((message) => ({ pointer: '', message })), ...e.extra })
-    throw e
-  }
+  const job = await startImport(db, { userId: user.id, station, fileName, format }, event.node.req)
   setResponseStatus(event, 202)
   setResponseHeader(event, 'Location', `/api/imports/${job.id}`)
   setResponseHeader(event, 'Cache-Control', 'no-store')

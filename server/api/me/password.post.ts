@@ -1,6 +1,6 @@
 import schema from '../../../shared/schemas/password-change.schema.json'
 import { compileSchema } from '../../utils/run-validator'
-import { changeOwnPassword, PasswordRuleError } from '../../services/accounts/set-password'
+import { changeOwnPassword } from '../../services/accounts/set-password'
 
 const validate = compileSchema<{ currentPassword: string; newPassword: string }>(schema)
 
@@ -8,12 +8,7 @@ export default defineEventHandler(async (event) => {
   const user = requireUser(event)
   const body = await readValidBody(event, validate)
   await requireCurrentPassword(event, user, body.currentPassword, '/currentPassword')
-  try {
-    await changeOwnPassword(useDb(), user.id, body.newPassword, hashPassword)
-  } catch (e) {
-    if (e instanceof PasswordRuleError) throw problem(422, e.message, { errors: [{ pointer: e.pointer, message: e.message }] })
-    throw e
-  }
+  await changeOwnPassword(useDb(), user.id, body.newPassword, hashPassword)
   forgetSessionUser(user.id)
   return { changed: true }
 })

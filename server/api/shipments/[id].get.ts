@@ -1,10 +1,10 @@
 import { shipmentDetail } from '../../services/shipments/views'
-import { underRules } from '../../services/rule-error'
+import { parseShipmentUnitsPage } from '../../utils/shipment-query'
 
 export default defineEventHandler(async (event) => {
   const user = requireUser(event)
   const id = idParam(event, 'id', 'shipment')
-  const detail = await underRules(() => shipmentDetail(useDb(), { customerId: customerScope(user) }, id, getQuery(event)))
+  const detail = await shipmentDetail(useDb(), { customerId: customerScope(user) }, id, parseShipmentUnitsPage(getQuery(event)))
   if (!detail) throw problem(404, 'No such shipment.')
   return detail
 })

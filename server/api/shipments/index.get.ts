@@ -1,7 +1,8 @@
 import { shipmentList } from '../../services/shipments/views'
-import { underRules } from '../../services/rule-error'
+import { parseShipmentListQuery } from '../../utils/shipment-query'
 
 export default defineEventHandler(async (event) => {
   const user = requireUser(event)
-  return underRules(() => shipmentList(useDb(), { customerId: customerScope(user) }, getQuery(event)))
+  const customerId = customerScope(user)
+  return shipmentList(useDb(), { customerId }, parseShipmentListQuery(getQuery(event), customerId === null))
 })

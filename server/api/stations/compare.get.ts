@@ -1,3 +1,4 @@
 import { stationComparison } from '../../services/analytics/station-compare'
+import { parseStationCompareQuery } from '../../utils/series-query'
 
-export default defineEventHandler((event) => stationComparison(useDb(), getQuery(event)))
+export default defineEventHandler((event) => stationComparison(useDb(), parseStationCompareQuery(getQuery(event))))

@@ -1,19 +1,14 @@
 import schema from '../../../shared/schemas/station-create.schema.json'
 import { compileSchema } from '../../utils/run-validator'
-import { createStation, StationRuleError, type NewStation } from '../../services/stations'
+import { createStation, type NewStation } from '../../services/stations'
 
 const validate = compileSchema<NewStation>(schema)
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const body = await readValidBody(event, validate)
-  try {
-    const created = await createStation(useDb(), actor.id, body)
-    setResponseStatus(event, 201)
-    setResponseHeader(event, 'Cache-Control', 'no-store')
-    return created
-  } catch (e) {
-    if (e instanceof StationRuleError) throw problem(e.status, e.message, { errors: [{ pointer: e.pointer, message: e.message }] })
-    throw e
-  }
+  const created = await createStation(useDb(), actor.id, body)
+  setResponseStatus(event, 201)
+  setResponseHeader(event, 'Cache-Control', 'no-store')
+  return created
 })

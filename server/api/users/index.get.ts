@@ -1,3 +1,4 @@
-import { listUsers } from '../../database/repositories/users'
+import { userList } from '../../services/users'
+import type { UserView } from '../../../shared/types/user'
 
-export default defineEventHandler(async () => ({ users: await listUsers(useDb()) }))
+export default defineEventHandler(async (): Promise<{ users: UserView[] }> => ({ users: await userList(useDb()) }))

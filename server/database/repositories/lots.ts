@@ -1,9 +1,5 @@
 import type { Knex } from 'knex'
-
-export type LotListItem = {
-  code: string; partNumber: string; productName: string; status: string; plannedQty: number | null
-  unitsTested: number; createdAt: Date
-}
+import type { LotListItem } from '../../../shared/types/lot'
 
 export async function listLots(db: Knex): Promise<LotListItem[]> {
   const rows = await db('lots as l').join('products as p', 'p.id', 'l.product_id')
@@ -12,7 +8,7 @@ export async function listLots(db: Knex): Promise<LotListItem[]> {
     .orderBy('l.created_at', 'desc').orderBy('l.code')
   return rows.map((r: any) => ({
     code: r.code, partNumber: r.part_number, productName: r.product_name, status: r.status,
-    plannedQty: r.planned_qty, unitsTested: Number(r.units_tested), createdAt: r.created_at,
+    plannedQty: r.planned_qty, unitsTested: Number(r.units_tested), createdAt: new Date(r.created_at).toISOString(),
   }))
 }
 

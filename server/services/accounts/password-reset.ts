@@ -3,12 +3,14 @@ import { findUserById, findUserForSignIn, type UserRecord } from '../../database
 import { closeOpenResets, findReset, insertReset } from '../../database/repositories/password-resets'
 import { checkNewPassword, writePassword, type Hasher } from './set-password'
 import { hashResetToken, newResetToken, resetLink, RESET_LIFETIME_MS } from './reset-token'
+import { RuleError } from '../rule-error'
 
 /** Sends the link inside the transaction that stores its token (the mail outbox). */
 export type LinkSender = (trx: Knex, user: UserRecord, link: string, expiresInMinutes: number) => Promise<void>
 
-export class ResetLinkError extends Error {
-  constructor() { super('This link to set a password is not valid: it may have been used already or have expired. Ask for a new one.') }
+/** An unknown, used or expired link: the same 410 whichever it is, so a link's state is not told. */
+function linkNotValid(): RuleError {
+  return new RuleError(410, 'This link to set a password is not valid: it may have been used already or have expired. Ask for a new one.', [{ pointer: '/token', message: 'not valid' }])
 }
 
 /**
@@ -39,14 +41,14 @@ export async function confirmPasswordReset(db: Knex, o: { token: string; newPass
   const now = o.now ?? new Date()
   const tokenHash = hashResetToken(o.token)
   const first = await findReset(db, tokenHash)
-  if (!usable(first, now)) throw new ResetLinkError()
+  if (!usable(first, now)) throw linkNotValid()
   const user = await findUserById(db, first!.userId)
-  if (!user || user.disabled) throw new ResetLinkError()
+  if (!user || user.disabled) throw linkNotValid()
   checkNewPassword(o.newPassword, user, '/newPassword')
   const passwordHash = await hash(o.newPassword)
   await db.transaction(async (trx) => {
     const row = await findReset(trx, tokenHash, true)
-    if (!usable(row, now)) throw new ResetLinkError()
+    if (!usable(row, now)) throw linkNotValid()
     const closed = await closeOpenResets(trx, user.id, now)
     await writePassword(trx, user.id, passwordHash, { actorId: user.id, action: 'password_reset', after: { passwordChanged: true, by: 'e-mailed link', from: o.address, linksClosed: closed } })
   })

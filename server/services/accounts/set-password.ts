@@ -2,17 +2,19 @@ import type { Knex } from 'knex'
 import { findUserById, updateUser } from '../../database/repositories/users'
 import { writeAudit } from '../../database/repositories/audit'
 import { passwordProblem } from '../../../shared/utils/password-rule'
+import { RuleError } from '../rule-error'
 
 export type Hasher = (plain: string) => Promise<string>
 
-export class PasswordRuleError extends Error {
-  constructor(message: string, public pointer: string) { super(message) }
+/** The password rule refused it: 422 pointing at the body field that carried it. */
+function refused(message: string, pointer: string): RuleError {
+  return new RuleError(422, message, [{ pointer, message }])
 }
 
 /** Refuses a password the rule does not allow for this user, pointing at the body field that carried it. */
 export function checkNewPassword(password: string, owner: { email: string; name: string }, pointer: string): void {
   const why = passwordProblem(password, owner)
-  if (why) throw new PasswordRuleError(why, pointer)
+  if (why) throw refused(why, pointer)
 }
 
 /** Writes the new hash and its audit row inside the caller's transaction. */
@@ -24,7 +26,7 @@ export async function writePassword(trx: Knex, userId: number, passwordHash: str
 /** A signed-in user's own change (the current password is checked by the route before this). */
 export async function changeOwnPassword(db: Knex, userId: number, newPassword: string, hash: Hasher): Promise<void> {
   const user = await findUserById(db, userId)
-  if (!user) throw new PasswordRuleError('No such user.', '/newPassword')
+  if (!user) throw refused('No such user.', '/newPassword')
   checkNewPassword(newPassword, user, '/newPassword')
   const passwordHash = await hash(newPassword)
   await db.transaction((trx) => writePassword(trx, userId, passwordHash, { actorId: userId, action: 'password_change' }))

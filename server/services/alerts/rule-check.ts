@@ -1,7 +1,7 @@
 // The checks of a rule's fields that need no database: which fields its kind needs or refuses, and their ranges.
 import type { AlertRuleInput } from '../../../shared/types/alert'
 import { ALERT_KIND_INFO, type AlertKind, type AlertRuleField } from '../../../shared/utils/alert-kinds'
-import type { FieldError } from '../../utils/problem'
+import type { FieldError } from '../../../shared/types/problem'
 
 type Key = Exclude<keyof AlertRuleInput, 'name' | 'kind' | 'enabled'>
 

@@ -8,7 +8,7 @@ import {
 } from '../../database/repositories/alert-rules'
 import { findProductByPartNumber } from '../../database/repositories/products'
 import { findSourceRevision, listLimitsOf } from '../../database/repositories/spec-revisions'
-import type { FieldError } from '../../utils/problem'
+import type { FieldError } from '../../../shared/types/problem'
 import { RuleError } from '../rule-error'
 import { checkRuleFields, clearUnused } from './rule-check'
 

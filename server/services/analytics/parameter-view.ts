@@ -5,7 +5,7 @@ import { MIN_DRIFT_UNITS, slopeFromCentredSums } from '../../../shared/utils/reg
 import { findLotHeader } from '../../database/repositories/lot-stats'
 import { findBaseline, parameterHistogram, parameterMomentsByRevision, parameterPoints, parameterTrendSums, type ParamKey, type RevisionMoments } from '../../database/repositories/parameter-values'
 import type { ParameterView, RevisionCount } from '../../../shared/types/capability'
-import { problem } from '../../utils/problem'
+import { RuleError } from '../rule-error'
 import { parameterLabel } from '../../../shared/utils/value-format'
 import { revisionBook, type RevisionBook } from './revision-limits'
 
@@ -25,7 +25,7 @@ function chooseRevision(q: ParameterQuery, partNumber: string, book: RevisionBoo
     return groups.find((g) => g.revisionId === latest?.revisionId) ?? EMPTY
   }
   const id = book.idOf(q.revision)
-  if (id === undefined) throw problem(400, `${partNumber} has no approved revision ${q.revision}.`, { errors: [{ pointer: '/revision', message: 'not an approved revision of this part' }] })
+  if (id === undefined) throw new RuleError(400, `${partNumber} has no approved revision ${q.revision}.`, [{ pointer: '/revision', message: 'not an approved revision of this part' }])
   return groups.find((g) => g.revisionId === id) ?? { ...EMPTY, revisionId: id }
 }
 

@@ -4,7 +4,7 @@ import { histogram, quantileSorted } from '../../../shared/utils/percentiles'
 import { firstAttemptValues, lotRef, sampleCounts, type SampleCount } from '../../database/repositories/analytics-params'
 import { listEffectiveRevisions, revisionAt } from '../../database/repositories/spec-lookup'
 import type { PhaseNoiseView, RevisionCount } from '../../../shared/types/capability'
-import { problem } from '../../utils/problem'
+import { RuleError } from '../rule-error'
 import { freshenLotStats } from '../ingest/fold-param-stats'
 import { bookOf } from './revision-limits'
 
@@ -24,14 +24,6 @@ export function bandOf(values: number[]) {
   }
 }
 
-function parseRevision(query: Record<string, unknown>): number | null {
-  const raw = query.revision
-  if (raw === undefined || raw === '') return null
-  const n = Number(raw)
-  if (!Number.isInteger(n) || n < 1) throw problem(400, 'The revision is not valid.', { errors: [{ pointer: '/revision', message: 'must be a revision number (1, 2, …)' }] })
-  return n
-}
-
 /** Revisions with phase-noise or jitter values at the step, oldest first; n is the count at the most-measured offset. */
 function revisionsPresent(counts: SampleCount[], judged: (ids: number[]) => { revisionId: number; revision: number | null; approvedAt: string | null }[]): RevisionCount[] {
   const most = new Map<number, number>()
@@ -43,13 +35,10 @@ function revisionsPresent(counts: SampleCount[], judged: (ids: number[]) => { re
  * Percentiles of L(f) per offset and the spread of integrated jitter, over the first attempts judged by one revision
  * (asked for, or the latest present) and against that revision's mask: values judged by other masks are not mixed in.
  */
-export async function lotPhaseNoise(db: Knex, code: string, query: Record<string, unknown>, now = new Date()): Promise<PhaseNoiseView> {
-  const step = typeof query.step === 'string' && query.step !== '' ? query.step : 'final'
-  if (!/^[a-z][a-z0-9-]{0,23}$/.test(step)) throw problem(400, 'The step is not valid.', { errors: [{ pointer: '/step', message: 'not a step name' }] })
-  const asked = parseRevision(query)
+export async function lotPhaseNoise(db: Knex, code: string, { step, revision: asked }: { step: string; revision: number | null }, now = new Date()): Promise<PhaseNoiseView> {
   const lot = await lotRef(db, code)
-  if (!lot) throw problem(404, `No lot ${code}.`)
-  if (!lot.steps.includes(step)) throw problem(400, `${lot.partNumber} has no step ${step}.`, { errors: [{ pointer: '/step', message: `one of ${lot.steps.join(', ')}` }] })
+  if (!lot) throw new RuleError(404, `No lot ${code}.`)
+  if (!lot.steps.includes(step)) throw new RuleError(400, `${lot.partNumber} has no step ${step}.`, [{ pointer: '/step', message: `one of ${lot.steps.join(', ')}` }])
   const effective = await listEffectiveRevisions(db, lot.productId)
   const book = bookOf(effective)
   await freshenLotStats(db, [lot.id])
@@ -58,7 +47,7 @@ export async function lotPhaseNoise(db: Knex, code: string, query: Record<string
   let revisionId: number
   if (asked !== null) {
     const id = book.idOf(asked)
-    if (id === undefined) throw problem(400, `${lot.partNumber} has no approved revision ${asked}.`, { errors: [{ pointer: '/revision', message: 'not an approved revision of this part' }] })
+    if (id === undefined) throw new RuleError(400, `${lot.partNumber} has no approved revision ${asked}.`, [{ pointer: '/revision', message: 'not an approved revision of this part' }])
     revisionId = id
   } else {
     // without values yet, the mask in force now is drawn with empty bands

@@ -2,15 +2,14 @@
 import type { Knex } from 'knex'
 import { summaryFromMoments, welchTTest } from '../../../shared/utils/welch'
 import { lotIdsOfProduct, lotRef } from '../../database/repositories/analytics-params'
-import { problem, type FieldError } from '../../utils/problem'
-import { parseSeriesQuery, resolveSeries } from './series-query'
+import { RuleError } from '../rule-error'
+import { resolveSeries, type SeriesQuery } from './series-query'
 import { freshParamRows } from './trends'
 import { emptyPooled, poolBy, poolMerge, poolRows, summarise, type PooledStats } from './station-rows'
 
-export type StationComparison = {
-  station: string; n: number; mean: number | null; sigma: number | null; sigmaWithin: number | null; min: number | null; max: number | null
-  bias: number | null; welch: { t: number; df: number; p: number } | null; largestBias: boolean
-}
+import type { StationComparisonRow, StationComparisonView } from '../../../shared/types/capability'
+
+export type StationComparison = StationComparisonRow
 
 /**
  * Bias against the pooled mean and Welch's test against all other stations pooled. The largest |bias| among the
@@ -38,17 +37,13 @@ export function compareStations(byStation: { station: string; stats: PooledStats
   return { pooled, stations }
 }
 
-export async function stationComparison(db: Knex, query: Record<string, unknown>, now = new Date()) {
-  const errors: FieldError[] = []
-  const lotCode = typeof query.lot === 'string' && query.lot !== '' ? query.lot : null
-  if (lotCode !== null && lotCode.length > 32) errors.push({ pointer: '/lot', message: 'not a lot code' })
-  const q = parseSeriesQuery(query, errors)
+export async function stationComparison(db: Knex, { series: q, lotCode }: { series: SeriesQuery; lotCode: string | null }, now = new Date()): Promise<StationComparisonView> {
   const series = await resolveSeries(db, q, now)
   let lotIds: number[]
   if (lotCode !== null) {
     const lot = await lotRef(db, lotCode)
-    if (!lot) throw problem(404, `No lot ${lotCode}.`)
-    if (lot.productId !== series.product.id) throw problem(400, `Lot ${lotCode} is not a lot of ${series.product.partNumber}.`, { errors: [{ pointer: '/lot', message: 'belongs to another part' }] })
+    if (!lot) throw new RuleError(404, `No lot ${lotCode}.`)
+    if (lot.productId !== series.product.id) throw new RuleError(400, `Lot ${lotCode} is not a lot of ${series.product.partNumber}.`, [{ pointer: '/lot', message: 'belongs to another part' }])
     lotIds = [lot.id]
   } else {
     lotIds = await lotIdsOfProduct(db, series.product.id)

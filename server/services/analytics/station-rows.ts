@@ -1,10 +1,11 @@
 // Pooling of lot_param_stats rows (one per lot × station) into one sample, without reading measurements.
 import type { StatRow } from '../../../shared/types/param-stats'
+import type { PooledSummary } from '../../../shared/types/capability'
 import { sigmaFromMovingRange } from '../../../shared/utils/capability'
 import { emptyMoments, mergeMoments, momentsFromShiftedSums, stdDev, type Moments } from '../../../shared/utils/moments'
 
 /** The aggregate columns of one lot_param_stats row. */
-export type { StatRow }
+export type { StatRow, PooledSummary }
 
 export type PooledStats = { moments: Moments; mrSum: number; mrN: number; outOfSpec: number; failAll: number }
 
@@ -49,7 +50,6 @@ export function poolBy<R extends StatRow, K>(rows: readonly R[], key: (r: R) => 
   return out
 }
 
-export type PooledSummary = { n: number; mean: number | null; sigmaOverall: number | null; sigmaWithin: number | null; min: number | null; max: number | null }
 
 export function summarise(p: PooledStats): PooledSummary {
   const m = p.moments

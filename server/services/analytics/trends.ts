@@ -4,9 +4,8 @@ import { capabilityBand, capabilityIndices, capabilityIntervals } from '../../..
 import { individualsLimits, westernElectricHits } from '../../../shared/utils/control'
 import { linearRegression } from '../../../shared/utils/regression'
 import { lotsOfProduct, paramRowsForLots, type ParamKey, type StationStatRow } from '../../database/repositories/analytics-params'
-import type { FieldError } from '../../utils/problem'
 import { freshenLotStats } from '../ingest/fold-param-stats'
-import { parseInstant, parseSeriesQuery, resolveSeries } from './series-query'
+import { resolveSeries, type SeriesQuery } from './series-query'
 import type { TrendCapability, TrendLot, TrendsView } from '../../../shared/types/capability'
 import { byRevision, revisionBook, type RevisionBook } from './revision-limits'
 import { poolBy, poolRows, summarise } from './station-rows'
@@ -15,10 +14,6 @@ import { poolBy, poolRows, summarise } from './station-rows'
 export async function freshParamRows(db: Knex, lotIds: number[], key: ParamKey): Promise<StationStatRow[]> {
   await freshenLotStats(db, lotIds)
   return paramRowsForLots(db, lotIds, key)
-}
-
-function endOfDayIfDate(raw: unknown, d: Date | undefined): Date | undefined {
-  return d && typeof raw === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(raw) ? new Date(d.getTime() + 86_400_000 - 1) : d
 }
 
 /** A lot's capability under each revision its values were judged by, against that revision's limits. */
@@ -41,11 +36,7 @@ function capabilityByRevision(rows: StationStatRow[], book: RevisionBook, key: P
  * One parameter of a part lot by lot. Each lot's location and spread pool all its values (they do not depend on the
  * limits) and feed the across-lot chart; its capability is given per revision judged, each against its own limits.
  */
-export async function lotTrends(db: Knex, query: Record<string, unknown>, now = new Date()): Promise<TrendsView> {
-  const errors: FieldError[] = []
-  const from = parseInstant(query, 'from', errors)
-  const to = endOfDayIfDate(query.to, parseInstant(query, 'to', errors))
-  const q = parseSeriesQuery(query, errors)
+export async function lotTrends(db: Knex, { series: q, from, to }: { series: SeriesQuery; from?: Date; to?: Date }, now = new Date()): Promise<TrendsView> {
   const series = await resolveSeries(db, q, now)
   const key = { step: series.step, name: q.name, qualifier: q.qualifier }
 

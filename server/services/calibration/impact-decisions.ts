@@ -5,7 +5,7 @@ import type { ImpactDecisionsResult } from '../../../shared/types/calibration-im
 import { decisionNeedsReason, type ImpactDecision } from '../../../shared/utils/calibration-impact'
 import { writeAudit } from '../../database/repositories/audit'
 import { closeImpactRow, countWindow, decisionsOf, setImpactCounts, unitsOfWindow, upsertDecisions } from '../../database/repositories/calibration-impacts'
-import type { FieldError } from '../../utils/problem'
+import type { FieldError } from '../../../shared/types/problem'
 import { RuleError } from '../rule-error'
 import { lockedImpact } from './impact-review'
 

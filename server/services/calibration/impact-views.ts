@@ -6,7 +6,6 @@ import {
   noticeContactCounts, noticesOf, recordAndInstrument, unitsOfWindowPage, type ImpactRow,
 } from '../../database/repositories/calibration-impacts'
 import { productSteps, stepStatesOf } from '../../database/repositories/shipment-units'
-import { RuleError } from '../rule-error'
 import { overallVerdict } from '../shipments/unit-verdict'
 import { openMissingReviews } from './impact-open'
 import { noticePlan } from './impact-notice-plan'
@@ -14,13 +13,8 @@ import { existingImpact } from './impact-review'
 
 const iso = (d: Date) => new Date(d).toISOString()
 
-function positive(raw: Record<string, unknown>, name: string, dflt: number, max: number): number {
-  const v = Array.isArray(raw[name]) ? (raw[name] as unknown[])[0] : raw[name]
-  if (v === undefined || v === '') return dflt
-  const s = String(v)
-  if (!/^\d{1,6}$/.test(s) || Number(s) < 1 || Number(s) > max) throw new RuleError(400, 'Some query parameters are not valid.', [{ pointer: `/query/${name}`, message: `must be a whole number from 1 to ${max}` }])
-  return Number(s)
-}
+/** One page of the review's units, optionally of one lot. */
+export type ImpactUnitsPage = { page: number; pageSize: number; lot?: string }
 
 export async function impactList(db: Knex, viewerId: number): Promise<ImpactList> {
   // records entered before reviews existed get theirs on first view
@@ -52,11 +46,7 @@ async function customersOf(db: Knex, impact: ImpactRow): Promise<ImpactCustomer[
   }))
 }
 
-export async function impactDetail(db: Knex, id: number, raw: Record<string, unknown>): Promise<ImpactDetail> {
-  const page = positive(raw, 'page', 1, 100_000)
-  const pageSize = positive(raw, 'pageSize', 50, 500)
-  const lotValue = Array.isArray(raw.lot) ? raw.lot[0] : raw.lot
-  const lot = typeof lotValue === 'string' && lotValue ? lotValue.slice(0, 32) : undefined
+export async function impactDetail(db: Knex, id: number, { page, pageSize, lot }: ImpactUnitsPage): Promise<ImpactDetail> {
   const impact = await existingImpact(db, id)
   const w = impact
   const [ri, basisNumber, lots, unitPage, tallies, customers, notices] = await Promise.all([

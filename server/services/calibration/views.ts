@@ -1,5 +1,6 @@
 // Read models of the calibration history: a station's instruments with their holdings, records and the runs taken
 // under each record; the registry; the instruments each run recorded.
+import type { StationInstrument } from '../../../shared/types/station'
 import type { Knex } from 'knex'
 import type {
   CalibrationRecordView, InstrumentHistoryView, InstrumentListItem, RecordRunsView, RunInstrumentView, StationCalibrationView,
@@ -17,7 +18,8 @@ const LATEST_RUNS = 3
 const iso = (d: Date) => new Date(d).toISOString()
 
 /** An instrument as the station pages list it: its state now, from the record in force now. */
-export type CurrentInstrument = { id: number; assetNumber: string; kind: string; model: string; serial: string; calibrationDue: string | null; state: CalibrationState }
+/** An instrument a station holds now (the station page's StationInstrument). */
+export type CurrentInstrument = StationInstrument
 
 function stateNow(records: Parameters<typeof recordInForce>[0], instrumentId: number, now: Date, dueSoonDays: number): { dueAt: Date | null; state: CalibrationState } {
   const r = recordInForce(records, instrumentId, now)

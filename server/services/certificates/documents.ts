@@ -2,10 +2,9 @@
 import type { Knex } from 'knex'
 import type { CertificateVerification } from '../../../shared/types/certificate'
 import { certificateWithDocument, verificationByCode } from '../../database/repositories/certificate-documents'
-import { problem } from '../../utils/problem'
-import { RuleError } from '../rule-error'
+import { RetryLater, RuleError } from '../rule-error'
 import type { CertificateFonts } from './fonts'
-import { ensureRendered, RenderUnavailable } from './render-job'
+import { ensureRendered } from './render-job'
 import { normaliseVerifyCode } from './verify-code'
 
 export type CertificateFile = { number: string; sha256: string; pdf: Buffer }
@@ -18,16 +17,12 @@ export async function certificateDocument(db: Knex, fonts: () => Promise<Certifi
   const cert = number.length <= 40 ? await certificateWithDocument(db, number) : undefined
   if (!cert || (customerId !== null && cert.customerId !== customerId)) throw new RuleError(404, 'No certificate with this number.')
   if (cert.pdf && cert.sha256) return { number: cert.number, sha256: cert.sha256, pdf: cert.pdf }
-  try {
-    const mine = await ensureRendered(db, cert.id, await fonts())
-    if (mine) return { number: cert.number, ...mine }
-  } catch (e) {
-    if (e instanceof RenderUnavailable) throw problem(503, e.message, { headers: { 'Retry-After': '2' } })
-    throw e
-  }
+  // a render held elsewhere too long throws RenderUnavailable, answered 503 with Retry-After
+  const mine = await ensureRendered(db, cert.id, await fonts())
+  if (mine) return { number: cert.number, ...mine }
   // stored by another render meanwhile
   const stored = await certificateWithDocument(db, number)
-  if (!stored?.pdf || !stored.sha256) throw problem(503, 'The certificate document is being prepared; retry shortly.', { headers: { 'Retry-After': '2' } })
+  if (!stored?.pdf || !stored.sha256) throw new RetryLater('The certificate document is being prepared; retry shortly.')
   return { number: stored.number, sha256: stored.sha256, pdf: stored.pdf }
 }
 

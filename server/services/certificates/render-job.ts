@@ -8,6 +8,7 @@ import type { CertificateSnapshot } from '../../../shared/types/certificate'
 import { leaseOne, leaseUnrendered, recordRenderError, snapshotsOf, storeDocument } from '../../database/repositories/certificate-documents'
 import type { CertificateFonts } from './fonts'
 import { renderCertificate } from './render-pdf'
+import { RetryLater } from '../rule-error'
 
 const LEASE_MS = 30_000
 // an on-demand request waits this long for another process's render before answering 503
@@ -56,7 +57,7 @@ export async function renderPending(db: Knex, fonts: CertificateFonts, limit = 8
   return stored
 }
 
-export class RenderUnavailable extends Error {}
+export class RenderUnavailable extends RetryLater {}
 
 /**
  * Makes sure the certificate's document is stored: renders it now unless it is stored already, or waits for the

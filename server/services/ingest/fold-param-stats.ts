@@ -11,7 +11,7 @@ import {
   anyRebuildMarks, anyStaleParamRows, foldedSampleValues, staleParamRows, forgetQueuedRuns, forgetRebuildMark, newestQueuedRun, paramRowsOfLot, queuedRunsOfLot,
   rebuildMarksOfLot, rebuildParamRows, valuesOfRuns, writeMovingRange, writeParamRows,
 } from '../../database/repositories/param-stats'
-import { problem } from '../../utils/problem'
+import { RetryLater } from '../rule-error'
 import { addValue, emptyParamRow, inTimeOrder, type ParamRow, type ParamRowKey } from './param-stats-merge'
 
 const RUNS_PER_FOLD = 500
@@ -124,7 +124,7 @@ export async function freshenLotStats(db: Knex, lotIds: number[]): Promise<void>
     try {
       await foldLot(db, lotId, false)
     } catch (e: any) {
-      if (e?.code === 'ER_LOCK_WAIT_TIMEOUT') throw problem(503, 'The lot statistics are being updated; retry in a moment.', { headers: { 'Retry-After': '2' } })
+      if (e?.code === 'ER_LOCK_WAIT_TIMEOUT') throw new RetryLater('The lot statistics are being updated; retry in a moment.')
       throw e
     }
   }

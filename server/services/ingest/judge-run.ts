@@ -9,12 +9,15 @@ import { frequencyTolerancePpm, referenceFrequencyCheck } from '../../../shared/
 import { ppmError } from '../../../shared/utils/rf'
 import type { ProductInfo, RevisionInForce, SpecLimit } from '../../database/repositories/spec-lookup'
 import type { StationRun } from '../../utils/run-validator'
+import type { FieldError } from '../../../shared/types/problem'
+import { RuleError } from '../rule-error'
 import type { AppliedLimit, JudgedMeasurement, RunJudgement } from '../../../shared/types/judgement'
 
 export type { AppliedLimit, JudgedMeasurement, RunJudgement }
 
-export class RunRejected extends Error {
-  constructor(message: string, public errors: { pointer: string; message: string }[] = []) { super(message) }
+/** A station run refused by the rules (422); the ingest paths also answer it per run in a batch. */
+export class RunRejected extends RuleError {
+  constructor(message: string, errors: FieldError[] = []) { super(422, message, errors) }
 }
 
 const key = (name: string, q: number) => `${name}@${q}`

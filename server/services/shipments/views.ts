@@ -2,45 +2,27 @@ import type { Knex } from 'knex'
 import type { ShipmentDetail, ShipmentList, ShipmentStatus } from '../../../shared/types/shipment'
 import { findShipment, listItem, listShipments } from '../../database/repositories/shipments'
 import { certificatesInShipment, countShipmentUnits, shipmentUnitsPage, stepStatesOf } from '../../database/repositories/shipment-units'
-import { RuleError } from '../rule-error'
 import { overallVerdict } from './unit-verdict'
 
 /** Who is reading: staff see every shipment; a customer only its own, once released. */
 export type Reader = { customerId: number | null }
 
-const STATUSES: ShipmentStatus[] = ['draft', 'released', 'dispatched']
+export const SHIPMENT_STATUSES: ShipmentStatus[] = ['draft', 'released', 'dispatched']
 const VISIBLE_TO_CUSTOMER: ShipmentStatus[] = ['released', 'dispatched']
 export const MAX_UNITS_PAGE = 10_000
 
-function one(v: unknown): string | undefined {
-  const s = Array.isArray(v) ? v[0] : v
-  return s == null || s === '' ? undefined : String(s)
-}
+export type ShipmentListQuery = { page: number; pageSize: number; statuses: ShipmentStatus[]; search?: string; customerId?: number }
+export type UnitsPage = { page: number; pageSize: number }
 
-function positive(raw: Record<string, unknown>, name: string, dflt: number, max: number): number {
-  const s = one(raw[name])
-  if (s === undefined) return dflt
-  if (!/^\d{1,6}$/.test(s) || Number(s) < 1 || Number(s) > max) throw new RuleError(400, 'Some query parameters are not valid.', [{ pointer: `/query/${name}`, message: `must be a whole number from 1 to ${max}` }])
-  return Number(s)
-}
-
-export async function shipmentList(db: Knex, reader: Reader, raw: Record<string, unknown>): Promise<ShipmentList> {
-  const page = positive(raw, 'page', 1, 100_000)
-  const pageSize = positive(raw, 'pageSize', 50, 200)
-  let statuses = (one(raw.status)?.split(',').map((s) => s.trim()).filter(Boolean) ?? []) as ShipmentStatus[]
-  const bad = statuses.find((s) => !STATUSES.includes(s))
-  if (bad) throw new RuleError(400, 'Some query parameters are not valid.', [{ pointer: '/query/status', message: `must be among ${STATUSES.join(', ')}` }])
-  const search = one(raw.q)?.slice(0, 64)
-  const customerFilter = one(raw.customer)
-  let customerId: number | undefined
+export async function shipmentList(db: Knex, reader: Reader, q: ShipmentListQuery): Promise<ShipmentList> {
+  const { page, pageSize, search } = q
+  let statuses = q.statuses
+  let customerId = q.customerId
   if (reader.customerId !== null) {
     // the account decides the customer, never the query
     customerId = reader.customerId
     statuses = statuses.length ? statuses.filter((s) => VISIBLE_TO_CUSTOMER.includes(s)) : VISIBLE_TO_CUSTOMER
     if (!statuses.length) return { shipments: [], total: 0, page, pageSize }
-  } else if (customerFilter !== undefined) {
-    if (!/^\d{1,10}$/.test(customerFilter)) throw new RuleError(400, 'Some query parameters are not valid.', [{ pointer: '/query/customer', message: 'must be a customer id' }])
-    customerId = Number(customerFilter)
   }
   const { total, rows } = await listShipments(db, { customerId, statuses, search, limit: pageSize, offset: (page - 1) * pageSize })
   return { shipments: rows.map(listItem), total, page, pageSize }
@@ -54,11 +36,9 @@ export async function readableShipment(db: Knex, reader: Reader, id: number) {
   return s
 }
 
-export async function shipmentDetail(db: Knex, reader: Reader, id: number, raw: Record<string, unknown> = {}): Promise<ShipmentDetail | undefined> {
+export async function shipmentDetail(db: Knex, reader: Reader, id: number, { page, pageSize }: UnitsPage = { page: 1, pageSize: MAX_UNITS_PAGE }): Promise<ShipmentDetail | undefined> {
   const s = await readableShipment(db, reader, id)
   if (!s) return undefined
-  const page = positive(raw, 'page', 1, 100_000)
-  const pageSize = positive(raw, 'pageSize', MAX_UNITS_PAGE, MAX_UNITS_PAGE)
   const [members, counts] = await Promise.all([shipmentUnitsPage(db, id, pageSize, (page - 1) * pageSize), countShipmentUnits(db, id)])
   const ids = members.map((m) => m.unitId)
   const [states, certs] = await Promise.all([stepStatesOf(db, ids), certificatesInShipment(db, id, ids)])

@@ -3,7 +3,8 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { Readable } from 'node:stream'
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
-import { ImportRefused, spoolUpload } from '../../../server/services/imports'
+import { spoolUpload } from '../../../server/services/imports'
+import { RuleError } from '../../../server/services/rule-error'
 
 let dir: string
 let saved: string | undefined
@@ -22,11 +23,11 @@ afterEach(() => {
 
 const body = (...chunks: (string | Buffer)[]) => Readable.from(chunks.map((c) => (Buffer.isBuffer(c) ? c : Buffer.from(c))))
 
-async function refusal(p: Promise<unknown>): Promise<ImportRefused> {
+async function refusal(p: Promise<unknown>): Promise<RuleError> {
   try {
     await p
   } catch (e) {
-    if (e instanceof ImportRefused) return e
+    if (e instanceof RuleError) return e
     throw e
   }
   throw new Error('the upload was accepted')

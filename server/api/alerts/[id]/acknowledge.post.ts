@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/alert-acknowledge.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { acknowledgeAlert } from '../../../services/alerts/firings'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ comment?: string }>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const user = requireUser(event)
   const id = idParam(event, 'id', 'alert')
   const body = await readValidBody(event, validate)
-  return { alert: await underRules(() => acknowledgeAlert(useDb(), user.id, id, body.comment)) }
+  return { alert: await acknowledgeAlert(useDb(), user.id, id, body.comment) }
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/alert-comment.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { commentOnAlert } from '../../../services/alerts/firings'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ body: string }>(schema)
 
@@ -9,7 +8,7 @@ export default defineEventHandler(async (event) => {
   const user = requireUser(event)
   const id = idParam(event, 'id', 'alert')
   const body = await readValidBody(event, validate)
-  const alert = await underRules(() => commentOnAlert(useDb(), user.id, id, body.body))
+  const alert = await commentOnAlert(useDb(), user.id, id, body.body)
   setResponseStatus(event, 201)
   return { alert }
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/calibration-impact-close.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { closeReview } from '../../../services/calibration/impact-decisions'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<Record<string, never>>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'calibration impact review')
   await readValidBody(event, validate)
-  return underRules(() => closeReview(useDb(), actor.id, id))
+  return closeReview(useDb(), actor.id, id)
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/calibration-impact-decisions.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { recordDecisions, type DecisionsInput } from '../../../services/calibration/impact-decisions'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<DecisionsInput>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'calibration impact review')
   const body = await readValidBody(event, validate)
-  return underRules(() => recordDecisions(useDb(), actor.id, id, body))
+  return recordDecisions(useDb(), actor.id, id, body)
 })

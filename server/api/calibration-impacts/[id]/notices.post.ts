@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/calibration-impact-notices.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { sendNotices } from '../../../services/calibration/impact-notices'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ password?: string; resend?: boolean }>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const id = idParam(event, 'id', 'calibration impact review')
   const body = await readValidBody(event, validate)
   const signed = await requireSignature(event, actor, body.password)
-  return underRules(() => sendNotices(useDb(), actor.id, id, { resend: body.resend === true, signed }))
+  return sendNotices(useDb(), actor.id, id, { resend: body.resend === true, signed })
 })

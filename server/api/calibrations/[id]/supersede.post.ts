@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/calibration-supersede.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { supersedeCalibration, type Supersession } from '../../../services/calibration/history'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<Supersession>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'calibration record')
   const body = await readValidBody(event, validate)
-  return { record: await underRules(() => supersedeCalibration(useDb(), actor.id, id, body)) }
+  return { record: await supersedeCalibration(useDb(), actor.id, id, body) }
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/certificate-reissue.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { reissueCertificate } from '../../../services/shipments/certificate-actions'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ password?: string }>(schema)
 
@@ -10,7 +9,7 @@ export default defineEventHandler(async (event) => {
   const number = getRouterParam(event, 'number', { decode: true }) ?? ''
   const body = await readValidBody(event, validate)
   const signed = await requireSignature(event, actor, body.password)
-  const r = await underRules(() => reissueCertificate(useDb(), actor.id, number, signed))
+  const r = await reissueCertificate(useDb(), actor.id, number, signed)
   setResponseStatus(event, 201)
   return r
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/certificate-revoke.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { revokeCertificate } from '../../../services/shipments/certificate-actions'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ password?: string; reason: string }>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const number = getRouterParam(event, 'number', { decode: true }) ?? ''
   const body = await readValidBody(event, validate)
   const signed = await requireSignature(event, actor, body.password)
-  return underRules(() => revokeCertificate(useDb(), actor.id, number, body.reason, signed))
+  return revokeCertificate(useDb(), actor.id, number, body.reason, signed)
 })

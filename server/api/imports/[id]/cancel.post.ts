@@ -1,10 +1,9 @@
 import { cancelImport } from '../../../services/imports'
-import { underRules } from '../../../services/rule-error'
 import { importJobId } from '../../../utils/import-params'
 
 /** Asks a running import to stop; the runs stored before it stops stay stored. */
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = importJobId(event)
-  return underRules(() => cancelImport(useDb(), actor.id, id))
+  return cancelImport(useDb(), actor.id, id)
 })

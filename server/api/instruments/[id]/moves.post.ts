@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/instrument-move.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { moveInstrument, type InstrumentMove } from '../../../services/calibration/history'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<InstrumentMove>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'instrument')
   const body = await readValidBody(event, validate)
-  return { move: await underRules(() => moveInstrument(useDb(), actor.id, id, body)) }
+  return { move: await moveInstrument(useDb(), actor.id, id, body) }
 })

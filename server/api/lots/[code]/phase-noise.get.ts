@@ -1,3 +1,4 @@
 import { lotPhaseNoise } from '../../../services/analytics/phase-noise'
+import { parsePhaseNoiseQuery } from '../../../utils/series-query'
 
-export default defineEventHandler((event) => lotPhaseNoise(useDb(), decodeURIComponent(getRouterParam(event, 'code') ?? ''), getQuery(event)))
+export default defineEventHandler((event) => lotPhaseNoise(useDb(), decodeURIComponent(getRouterParam(event, 'code') ?? ''), parsePhaseNoiseQuery(getQuery(event))))

@@ -1,11 +1,12 @@
 import { lotUnitsForCsv } from '../../../services/lot-views'
-import { underRules } from '../../../services/rule-error'
+import { parseUnitQuery } from '../../../utils/unit-query'
 import { toCsvDocument } from '../../../../shared/utils/csv'
 
 /** The same filtered, sorted list as units.get, as CSV, without paging. */
 export default defineEventHandler(async (event) => {
   const code = getRouterParam(event, 'code', { decode: true }) ?? ''
-  const { rows } = await underRules(() => lotUnitsForCsv(useDb(), code, getQuery(event)))
+  const { query } = parseUnitQuery({ ...getQuery(event), page: undefined, pageSize: undefined })
+  const { rows } = await lotUnitsForCsv(useDb(), code, query)
   const csv = toCsvDocument(
     ['serial', 'verdict', 'first_pass', 'steps_tested', 'last_step', 'max_attempts', 'runs', 'station', 'last_tested_at'],
     rows.map((u) => [u.serial, u.verdict, u.firstPass == null ? '' : u.firstPass ? 'yes' : 'no', u.stepsTested, u.lastStep, u.maxAttempts, u.runs, u.station, u.lastTestedAt ? new Date(u.lastTestedAt).toISOString() : '']),

@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/retest-policy.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { setRetestPolicy, type PolicyInput } from '../../../services/retest'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<PolicyInput>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const partNumber = getRouterParam(event, 'partNumber', { decode: true }) ?? ''
   const body = await readValidBody(event, validate)
-  return underRules(() => setRetestPolicy(useDb(), actor.id, partNumber, body))
+  return setRetestPolicy(useDb(), actor.id, partNumber, body)
 })

@@ -2,7 +2,6 @@ import schema from '../../../../shared/schemas/revision-approve.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { idParam } from '../../../utils/route-params'
 import { approveRevision } from '../../../services/spec-revisions'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ effectiveAt?: string; note?: string; password?: string }>(schema)
 
@@ -12,6 +11,6 @@ export default defineEventHandler(async (event) => {
   const body = await readValidBody(event, validate)
   const signed = await requireSignature(event, actor, body.password)
   const effectiveAt = body.effectiveAt ? new Date(body.effectiveAt) : undefined
-  const approved = await underRules(() => approveRevision(useDb(), actor, id, { effectiveAt, note: body.note, signed }))
+  const approved = await approveRevision(useDb(), actor, id, { effectiveAt, note: body.note, signed })
   return { id, revision: approved.revision, status: 'approved', effectiveAt: approved.effectiveAt, superseded: approved.superseded }
 })

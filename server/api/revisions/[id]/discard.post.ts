@@ -2,7 +2,6 @@ import schema from '../../../../shared/schemas/revision-discard.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { idParam } from '../../../utils/route-params'
 import { discardRevision } from '../../../services/spec-workflow'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ note?: string }>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'revision')
   const body = await readValidBody(event, validate)
-  return underRules(() => discardRevision(useDb(), actor, id, body))
+  return discardRevision(useDb(), actor, id, body)
 })

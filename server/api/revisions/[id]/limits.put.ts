@@ -2,7 +2,6 @@ import schema from '../../../../shared/schemas/spec-limits.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { idParam } from '../../../utils/route-params'
 import { replaceDraftLimits, type LimitInput } from '../../../services/spec-revisions'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ limits: LimitInput[] }>(schema)
 
@@ -10,6 +9,6 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'revision')
   const body = await readValidBody(event, validate)
-  const limits = await underRules(() => replaceDraftLimits(useDb(), actor.id, id, body.limits))
+  const limits = await replaceDraftLimits(useDb(), actor.id, id, body.limits)
   return { limits }
 })

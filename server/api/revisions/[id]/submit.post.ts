@@ -2,7 +2,6 @@ import schema from '../../../../shared/schemas/revision-submit.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { idParam } from '../../../utils/route-params'
 import { submitRevision } from '../../../services/spec-workflow'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ note?: string; reviewerId?: number }>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'revision')
   const body = await readValidBody(event, validate)
-  return underRules(() => submitRevision(useDb(), actor, id, body))
+  return submitRevision(useDb(), actor, id, body)
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/shipment-dispatch.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { dispatchShipment, type DispatchInput } from '../../../services/shipments/dispatch'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<DispatchInput>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'shipment')
   const body = await readValidBody(event, validate)
-  return underRules(() => dispatchShipment(useDb(), actor.id, id, body))
+  return dispatchShipment(useDb(), actor.id, id, body)
 })

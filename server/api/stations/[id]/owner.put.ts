@@ -1,7 +1,6 @@
 import schema from '../../../../shared/schemas/station-owner.schema.json'
 import { compileSchema } from '../../../utils/run-validator'
 import { setStationOwner } from '../../../services/station-owner'
-import { underRules } from '../../../services/rule-error'
 
 const validate = compileSchema<{ ownerUserId: number | null }>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const id = Number(getRouterParam(event, 'id'))
   if (!Number.isInteger(id) || id <= 0) throw problem(404, 'No such station.')
   const body = await readValidBody(event, validate)
-  return underRules(() => setStationOwner(useDb(), actor.id, id, body.ownerUserId))
+  return setStationOwner(useDb(), actor.id, id, body.ownerUserId)
 })

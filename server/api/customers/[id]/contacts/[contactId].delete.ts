@@ -1,10 +1,9 @@
 import { removeContact } from '../../../../services/customers'
-import { underRules } from '../../../../services/rule-error'
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'customer')
   const contactId = idParam(event, 'contactId', 'contact')
-  await underRules(() => removeContact(useDb(), actor.id, id, contactId))
+  await removeContact(useDb(), actor.id, id, contactId)
   return { removed: true }
 })

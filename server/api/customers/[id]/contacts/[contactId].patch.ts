@@ -1,7 +1,6 @@
 import schema from '../../../../../shared/schemas/customer-contact-update.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
 import { changeContact, type ContactInput } from '../../../../services/customers'
-import { underRules } from '../../../../services/rule-error'
 
 const validate = compileSchema<Partial<ContactInput>>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const id = idParam(event, 'id', 'customer')
   const contactId = idParam(event, 'contactId', 'contact')
   const body = await readValidBody(event, validate)
-  return { contact: await underRules(() => changeContact(useDb(), actor.id, id, contactId, body)) }
+  return { contact: await changeContact(useDb(), actor.id, id, contactId, body) }
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../../shared/schemas/customer-contact.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
 import { addContact, type ContactInput } from '../../../../services/customers'
-import { underRules } from '../../../../services/rule-error'
 
 const validate = compileSchema<ContactInput>(schema)
 
@@ -9,7 +8,7 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'customer')
   const body = await readValidBody(event, validate)
-  const contact = await underRules(() => addContact(useDb(), actor.id, id, body))
+  const contact = await addContact(useDb(), actor.id, id, body)
   setResponseStatus(event, 201)
   return { contact }
 })

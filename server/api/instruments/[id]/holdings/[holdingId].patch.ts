@@ -1,7 +1,6 @@
 import schema from '../../../../../shared/schemas/instrument-holding.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
 import { correctHolding, type HoldingDates } from '../../../../services/calibration/history'
-import { underRules } from '../../../../services/rule-error'
 
 const validate = compileSchema<HoldingDates>(schema)
 
@@ -10,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const id = idParam(event, 'id', 'instrument')
   const holdingId = idParam(event, 'holdingId', 'holding')
   const body = await readValidBody(event, validate)
-  return { holding: await underRules(() => correctHolding(useDb(), actor.id, id, holdingId, body)) }
+  return { holding: await correctHolding(useDb(), actor.id, id, holdingId, body) }
 })

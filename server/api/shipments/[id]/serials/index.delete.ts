@@ -1,7 +1,6 @@
 import schema from '../../../../../shared/schemas/shipment-serials-remove.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
 import { removeSerials, type RemoveRequest } from '../../../../services/shipments/serials'
-import { underRules } from '../../../../services/rule-error'
 
 const validate = compileSchema<RemoveRequest>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'shipment')
   const body = await readValidBody(event, validate)
-  return underRules(() => removeSerials(useDb(), actor.id, id, body))
+  return removeSerials(useDb(), actor.id, id, body)
 })

@@ -1,7 +1,6 @@
 import schema from '../../../../../shared/schemas/shipment-serials.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
 import { addSerials, type SerialRequest } from '../../../../services/shipments/serials'
-import { underRules } from '../../../../services/rule-error'
 
 const validate = compileSchema<SerialRequest>(schema)
 
@@ -9,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'shipment')
   const body = await readValidBody(event, validate)
-  return underRules(() => addSerials(useDb(), actor.id, id, body))
+  return addSerials(useDb(), actor.id, id, body)
 })

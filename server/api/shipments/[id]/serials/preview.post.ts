@@ -1,12 +1,11 @@
 import schema from '../../../../../shared/schemas/shipment-serials.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
 import { previewSerials, type SerialRequest } from '../../../../services/shipments/serials'
-import { underRules } from '../../../../services/rule-error'
 
 const validate = compileSchema<SerialRequest>(schema)
 
 export default defineEventHandler(async (event) => {
   const id = idParam(event, 'id', 'shipment')
   const body = await readValidBody(event, validate)
-  return underRules(() => previewSerials(useDb(), id, body))
+  return previewSerials(useDb(), id, body)
 })

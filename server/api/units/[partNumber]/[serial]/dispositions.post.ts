@@ -1,7 +1,6 @@
 import schema from '../../../../../shared/schemas/unit-disposition.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
 import { addDisposition, type DispositionInput } from '../../../../services/retest'
-import { underRules } from '../../../../services/rule-error'
 
 const validate = compileSchema<DispositionInput>(schema)
 
@@ -10,7 +9,7 @@ export default defineEventHandler(async (event) => {
   const partNumber = getRouterParam(event, 'partNumber', { decode: true }) ?? ''
   const serial = getRouterParam(event, 'serial', { decode: true }) ?? ''
   const body = await readValidBody(event, validate)
-  const r = await underRules(() => addDisposition(useDb(), actor.id, partNumber, serial, body))
+  const r = await addDisposition(useDb(), actor.id, partNumber, serial, body)
   setResponseStatus(event, 201)
   return { disposition: r }
 })

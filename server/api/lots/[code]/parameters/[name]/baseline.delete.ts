@@ -1,14 +1,9 @@
-import { BaselineError, releaseBaseline } from '../../../../../services/analytics/baseline'
+import { releaseBaseline } from '../../../../../services/analytics/baseline'
 import { parseParameterQuery } from '../../../../../utils/parameter-query'
 
 export default defineEventHandler(async (event) => {
   const user = requireUser(event)
   const q = parseParameterQuery(event)
-  try {
-    await releaseBaseline(useDb(), { code: q.code, name: q.name, step: q.step, qualifier: q.qualifier, userId: user.id })
-    return { released: true }
-  } catch (e) {
-    if (e instanceof BaselineError) throw problem(e.status, e.message)
-    throw e
-  }
+  await releaseBaseline(useDb(), { code: q.code, name: q.name, step: q.step, qualifier: q.qualifier, userId: user.id })
+  return { released: true }
 })

@@ -1,6 +1,6 @@
 import schema from '../../../../../../shared/schemas/control-baseline.schema.json'
 import { compileSchema } from '../../../../../utils/run-validator'
-import { BaselineError, freezeBaseline, BASELINE_DEFAULT } from '../../../../../services/analytics/baseline'
+import { freezeBaseline, BASELINE_DEFAULT } from '../../../../../services/analytics/baseline'
 
 const validate = compileSchema<{ step?: string; qualifier?: number; points?: number }>(schema)
 
@@ -9,10 +9,5 @@ export default defineEventHandler(async (event) => {
   const body = await readValidBody(event, validate)
   const code = decodeURIComponent(getRouterParam(event, 'code') ?? '')
   const name = decodeURIComponent(getRouterParam(event, 'name') ?? '')
-  try {
-    return await freezeBaseline(useDb(), { code, name, step: body.step ?? 'final', qualifier: body.qualifier ?? 0, points: body.points ?? BASELINE_DEFAULT, userId: user.id })
-  } catch (e) {
-    if (e instanceof BaselineError) throw problem(e.status, e.message)
-    throw e
-  }
+  return freezeBaseline(useDb(), { code, name, step: body.step ?? 'final', qualifier: body.qualifier ?? 0, points: body.points ?? BASELINE_DEFAULT, userId: user.id })
 })
