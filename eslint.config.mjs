@@ -26,44 +26,17 @@ const serverFromShared = {
   message: 'shared/ is pure code both sides load: it never imports server/ code.',
 }
 
-// Services throw RuleError (server/services/rule-error.ts) and routes turn it into problem+json with underRules;
-// problem() and createError belong to routes and server utils.
+// Services throw RuleError (server/services/rule-error.ts) and server/error-handler.ts alone turns it into
+// problem+json; problem() and createError belong to routes and server utils.
 const problemBan = {
   group: ['**/utils/problem', '~~/server/utils/problem'],
   importNames: ['problem', 'problemTitle'],
-  message: 'Services throw RuleError; the route turns it into problem+json (underRules).',
+  message: 'Services throw RuleError (or RetryLater); the error handler turns it into problem+json.',
 }
 const h3ErrorBan = { name: 'h3', importNames: ['createError'], message: 'Services throw RuleError, not H3 errors.' }
 const problemCalls = [
   { selector: 'CallExpression[callee.name="createError"]', message: 'Services throw RuleError; routes answer problem+json.' },
   { selector: 'CallExpression[callee.name="problem"]', message: 'Services throw RuleError; routes answer problem+json.' },
-]
-// Services that still throw problem() themselves (503 with Retry-After while a document or a lot's statistics are
-// being prepared, 400/404 from query checks written before RuleError existed). rule-error.ts is the bridge itself.
-// Move a service to RuleError (and off this list) when you touch it.
-const SERVICES_THROWING_PROBLEMS = [
-  'server/services/rule-error.ts',
-  'server/services/certificates/documents.ts',
-  'server/services/ingest/fold-param-stats.ts',
-  'server/services/analytics/phase-noise.ts',
-  'server/services/analytics/parameter-view.ts',
-  'server/services/analytics/station-compare.ts',
-  'server/services/analytics/series-query.ts',
-]
-
-// Pages that still call useFetch/$fetch themselves rather than through composables/<domain>/use….ts.
-// Move their fetching into a composable (and off this list) when you touch the page.
-const PAGES_FETCHING_DIRECTLY = [
-  'app/pages/admin/users.vue',
-  'app/pages/specs/index.vue',
-  'app/pages/specs/[[]partNumber].vue',
-  'app/pages/stations/compare.vue',
-  'app/pages/stations/[[]id].vue',
-  'app/pages/stations/index.vue',
-  'app/pages/lots/[[]code]/index.vue',
-  'app/pages/lots/index.vue',
-  'app/pages/login.vue',
-  'app/pages/audit.vue',
 ]
 const fetchCall = (name) => ({
   selector: `CallExpression[callee.name="${name}"]`,
@@ -104,7 +77,6 @@ export default withNuxt(
       'no-restricted-syntax': ['error', ...['useFetch', 'useLazyFetch', 'useAsyncData', 'useLazyAsyncData', '$fetch'].map(fetchCall)],
     },
   },
-  { name: 'tercet/pages-fetching-directly', files: PAGES_FETCHING_DIRECTLY, rules: { 'no-restricted-syntax': 'off' } },
   {
     name: 'tercet/app-imports',
     files: ['app/**'],
@@ -125,7 +97,6 @@ export default withNuxt(
   {
     name: 'tercet/services',
     files: ['server/services/**'],
-    ignores: SERVICES_THROWING_PROBLEMS,
     rules: {
       'no-restricted-imports': ['error', { paths: [h3ErrorBan], patterns: [problemBan] }],
       'no-restricted-syntax': ['error', ...problemCalls],
