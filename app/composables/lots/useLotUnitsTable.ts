@@ -5,6 +5,8 @@ import {
 } from '@tanstack/vue-table'
 import type { LotUnitRow } from '#shared/types/lot'
 import VerdictChip from '~/components/ui/VerdictChip.vue'
+// imported, not resolved by name: the page calls this after an await, where resolveComponent finds no instance
+import { NuxtLink } from '#components'
 import { utcMinute } from '~/utils/utc-time'
 import type { LotUnitsHandle } from './useLotUnits'
 
@@ -16,7 +18,6 @@ const resolve = <T>(next: Updater<T>, prev: T): T => (typeof next === 'function'
 /** The units table over the list's state: sorting and paging change the request, not the rows in hand. */
 export function useLotUnitsTable(units: LotUnitsHandle) {
   const { data, sorting, pagination, columnVisibility } = units
-  const NuxtLink = resolveComponent('NuxtLink')
   const features = tableFeatures({ rowSortingFeature, rowPaginationFeature, columnVisibilityFeature })
   const col = createColumnHelper<typeof features, LotUnitRow>()
   const columns = col.columns([
