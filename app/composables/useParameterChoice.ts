@@ -18,11 +18,17 @@ export async function useParameterChoice() {
   }))
   watch(choice, (c) => { if (c.part) filters.choose({ part: c.part, ...(c.name ? { name: c.name, qualifier: c.qualifier, step: c.step ?? undefined } : {}) }) }, { immediate: true })
 
+  // engineering and trial lots are left out unless the address takes them in
+  const includeEngineering = computed(() => route.query.engineering === 'include')
+  const engineeringQuery = computed(() => (includeEngineering.value ? { engineering: 'include' } : {}))
+
   function setQuery(change: Record<string, string | null | undefined>) {
     const query: Record<string, any> = { ...route.query, ...change }
     for (const k of Object.keys(query)) if (query[k] === null || query[k] === undefined || query[k] === '') delete query[k]
     router.replace({ query })
   }
 
-  return { route, choice, text, setQuery }
+  function setEngineering(include: boolean) { setQuery({ engineering: include ? 'include' : null }) }
+
+  return { route, choice, text, setQuery, includeEngineering, engineeringQuery, setEngineering }
 }

@@ -60,10 +60,16 @@ export const API_POLICY: Rule[] = [
   { method: 'POST', path: '/api/certificates/:number/reissue', allow: ['quality'] },
   { method: 'GET', path: '/api/products/:partNumber/retest-policy', allow: ENGINEERING },
   { method: 'PUT', path: '/api/products/:partNumber/retest-policy', allow: ENGINEERING },
+  // engineering and trial lots: the product's code patterns and a lot's mark by hand
+  { method: 'GET', path: '/api/products/:partNumber/engineering-pattern', allow: ENGINEERING },
+  { method: 'PUT', path: '/api/products/:partNumber/engineering-pattern', allow: ENGINEERING },
+  { method: 'PUT', path: '/api/lots/:code/engineering', allow: ENGINEERING },
   { method: 'POST', path: '/api/units/:partNumber/:serial/dispositions', allow: ['quality'] },
 
   { method: 'GET', path: '/api/lots', allow: STAFF },
   { method: 'GET', path: '/api/units/:serial', allow: STAFF },
+  // the header's type-ahead over serials, lots and parts: internal records, so staff only
+  { method: 'GET', path: '/api/search', allow: STAFF },
 
   { method: 'GET', path: '/api/stations', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/stations', allow: ['admin', 'engineer'] },

@@ -36,25 +36,39 @@ function parseInstant(query: Record<string, unknown>, key: string, errors: Field
   return d
 }
 
+/**
+ * Whether a cross-lot view takes engineering and trial lots in: `engineering=include` does, absent or
+ * `engineering=exclude` leaves them out.
+ */
+function parseEngineeringScope(query: Record<string, unknown>, errors: FieldError[]): boolean {
+  const v = text(query.engineering)
+  if (v === undefined || v === 'exclude') return false
+  if (v === 'include') return true
+  errors.push({ pointer: '/engineering', message: 'must be include or exclude' })
+  return false
+}
+
 /** A bare date as `to` means the whole of that day. */
 function endOfDayIfDate(raw: unknown, d: Date | undefined): Date | undefined {
   return d && typeof raw === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(raw) ? new Date(d.getTime() + 86_400_000 - 1) : d
 }
 
-/** /api/trends: the series and an optional window of lots by their run times. */
-export function parseTrendsQuery(query: Record<string, unknown>): { series: SeriesQuery; from?: Date; to?: Date } {
+/** /api/trends: the series, an optional window of lots by their run times, and whether engineering lots are in. */
+export function parseTrendsQuery(query: Record<string, unknown>): { series: SeriesQuery; from?: Date; to?: Date; includeEngineering: boolean } {
   const errors: FieldError[] = []
   const from = parseInstant(query, 'from', errors)
   const to = endOfDayIfDate(query.to, parseInstant(query, 'to', errors))
-  return { series: parseSeriesQuery(query, errors), from, to }
+  const includeEngineering = parseEngineeringScope(query, errors)
+  return { series: parseSeriesQuery(query, errors), from, to, includeEngineering }
 }
 
-/** /api/stations/compare: the series and optionally one lot of its part. */
-export function parseStationCompareQuery(query: Record<string, unknown>): { series: SeriesQuery; lotCode: string | null } {
+/** /api/stations/compare: the series, optionally one lot of its part, and whether engineering lots are in. */
+export function parseStationCompareQuery(query: Record<string, unknown>): { series: SeriesQuery; lotCode: string | null; includeEngineering: boolean } {
   const errors: FieldError[] = []
   const lotCode = typeof query.lot === 'string' && query.lot !== '' ? query.lot : null
   if (lotCode !== null && lotCode.length > 32) errors.push({ pointer: '/lot', message: 'not a lot code' })
-  return { series: parseSeriesQuery(query, errors), lotCode }
+  const includeEngineering = parseEngineeringScope(query, errors)
+  return { series: parseSeriesQuery(query, errors), lotCode, includeEngineering }
 }
 
 /** /api/lots/:code/phase-noise: the step (default final) and the revision asked for, if any. */

@@ -107,7 +107,8 @@ export type TrendCapability = RevisionTag & {
  * and the across-lot chart reads them. Capability is given per revision in `capability`.
  */
 export type TrendLot = {
-  code: string; status: string; createdAt: string; firstRunAt: string; lastRunAt: string
+  /** engineering: an engineering or trial lot, present only when the view includes them */
+  code: string; status: string; engineering: boolean; createdAt: string; firstRunAt: string; lastRunAt: string
   n: number; mean: number; sigma: number | null; sigmaWithin: number | null; min: number; max: number
   capability: TrendCapability[]
   beyondLimits: boolean; rules: number[]
@@ -125,6 +126,8 @@ export type TrendsView = {
   /** the parameter with the limits of the revision in force now (drawn on the spread chart) */
   parameter: SeriesParameter
   from: string | null; to: string | null
+  /** whether engineering and trial lots are among the lots (`?engineering=include`) or left out (the default) */
+  engineering: 'include' | 'exclude'
   lots: TrendLot[]
   acrossLots: { n: number; centre: number; sigma: number; ucl: number; lcl: number } | null
   drift: { slopePerLot: number; interval: [number, number] | null; n: number; r2: number | null } | null
@@ -144,6 +147,8 @@ export type StationComparisonView = {
   part: SeriesPart
   parameter: SeriesParameter
   lot: string | null
+  /** whether engineering and trial lots are pooled (`?engineering=include`); a lot named is compared whatever its kind */
+  engineering: 'include' | 'exclude'
   pooled: PooledSummary & { outOfSpec: number }
   stations: StationComparisonRow[]
 }

@@ -1,9 +1,12 @@
 // A lot as GET /api/lots/:code answers it, and its units list (GET /api/lots/:code/units).
 import type { LotStatus } from '../utils/lot-status'
+import type { EngineeringSource } from './lot-kind'
 
 export type LotView = {
   code: string; status: LotStatus; plannedQty: number | null; holdReason: string | null
   createdAt: string; releasedAt: string | null; releasedBy: { id: number; name: string } | null; shippedAt: string | null
+  /** an engineering or trial lot: kept and judged, left out of the cross-lot views unless asked for */
+  engineering: boolean; engineeringSource: EngineeringSource | null
   /** runs received after the release, for quality to review; null before a release */
   runsSinceRelease: number | null
   /** of the units that passed every step, how many are in a dispatched shipment */
@@ -35,5 +38,7 @@ export type LotUnitsPage = {
 export type LotListItem = {
   code: string; partNumber: string; productName: string; status: LotStatus; plannedQty: number | null
   unitsTested: number; createdAt: string
+  /** an engineering or trial lot (shown with a badge; left out of the cross-lot views) */
+  engineering: boolean
 }
 export type LotList = { lots: LotListItem[] }

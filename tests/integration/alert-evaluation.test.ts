@@ -17,6 +17,7 @@ import { addCalibration, addInstrument } from '../../server/services/calibration
 import { foldPendingStats } from '../../server/services/ingest/fold-param-stats'
 import { ingestRun, type StationRef } from '../../server/services/ingest/ingest-run'
 import { sendDueMail, type SenderPolicy } from '../../server/services/mail/sender'
+import { setLotKind } from '../../server/services/lot-kind'
 import { smtpDeliver } from '../../server/services/mail/transport'
 import { validateRun } from '../../server/utils/run-validator'
 import { controlRulesMask } from '../../shared/utils/alert-kinds'
@@ -124,6 +125,21 @@ describe('each kind of rule', () => {
     expect(f.summary).toContain('80 %')
     expect(f.link).toBe('/lots/ALR-YLD-1')
     expect(await firings(quiet)).toHaveLength(0)
+  })
+
+  it('an engineering lot stays out of a rule\'s window: its 4 failures of 20 fire nothing until it is marked a production lot', async () => {
+    const productId = await newProduct('ALR-ENG')
+    await db('products').where({ id: productId }).update({ engineering_lot_pattern: 'ALR-ENG-T*' })
+    const r = await rule({ name: 'Tune yield under 90 %', kind: 'yield_low', product_id: productId, step: 'tune', threshold: 90, window_units: 20 })
+    await post('ALR-ENG', 'ALR-ENG-T1', Array.from({ length: 20 }, (_, i) => (i % 5 === 2 ? 7.2 : 10)), () => stations['ATE-A1']!)
+    expect((await db('lots').where({ code: 'ALR-ENG-T1' }).first()).engineering).toBeTruthy()
+    await evaluate()
+    expect(await firings(r)).toHaveLength(0)
+    await setLotKind(db, engineerId, 'ALR-ENG-T1', { engineering: false, reason: 'built to the production drawing after all' })
+    await post('ALR-ENG', 'ALR-ENG-2', [10], () => stations['ATE-A1']!)
+    await evaluate()
+    const [f] = await firings(r)
+    expect(f.summary).toMatch(/8[01] %/)
   })
 
   it('Cpk: a repeating spread about 10 against 8…12 (Cpk near 0.9): fires below 1.5, quiet below 0.5', async () => {

@@ -39,8 +39,9 @@ export async function enabledRules(db: Knex, q: { productId?: number; kinds: rea
   return (await sel.orderBy('r.id').select(ruleColumns)).map(toRule)
 }
 
+/** The product's newest production lots: engineering and trial lots never feed a rule's window. */
 export async function newestLots(db: Knex, productId: number): Promise<{ id: number; code: string }[]> {
-  return db('lots').where({ product_id: productId }).orderBy([{ column: 'created_at', order: 'desc' }, { column: 'id', order: 'desc' }]).limit(LOTS_PER_WINDOW).select('id', 'code')
+  return db('lots').where({ product_id: productId, engineering: false }).orderBy([{ column: 'created_at', order: 'desc' }, { column: 'id', order: 'desc' }]).limit(LOTS_PER_WINDOW).select('id', 'code')
 }
 
 /**

@@ -2,16 +2,19 @@
 import type { Knex } from 'knex'
 import type { StatRow } from '../../../shared/types/param-stats'
 
-export type LotOfPart = { id: number; code: string; status: string; createdAt: Date; firstRunAt: Date | null; lastRunAt: Date | null }
+export type LotOfPart = { id: number; code: string; status: string; engineering: boolean; createdAt: Date; firstRunAt: Date | null; lastRunAt: Date | null }
 
-/** The part's lots with the span of their runs at one step (min/max from the (lot, step, started_at) index). */
-export async function lotsOfProduct(db: Knex, productId: number, step: string): Promise<LotOfPart[]> {
-  const rows = await db('lots as l').where('l.product_id', productId)
-    .select('l.id', 'l.code', 'l.status', 'l.created_at',
+/**
+ * The part's lots with the span of their runs at one step (min/max from the (lot, step, started_at) index);
+ * engineering lots only when asked for.
+ */
+export async function lotsOfProduct(db: Knex, productId: number, step: string, includeEngineering = false): Promise<LotOfPart[]> {
+  const rows = await db('lots as l').where('l.product_id', productId).modify((q) => { if (!includeEngineering) q.where('l.engineering', false) })
+    .select('l.id', 'l.code', 'l.status', 'l.engineering', 'l.created_at',
       db('test_runs as r').min('r.started_at').whereRaw('r.lot_id = l.id').andWhere('r.step', step).as('first_run'),
       db('test_runs as r').max('r.started_at').whereRaw('r.lot_id = l.id').andWhere('r.step', step).as('last_run'))
   return rows.map((r: any) => ({
-    id: r.id, code: r.code, status: r.status, createdAt: new Date(r.created_at),
+    id: r.id, code: r.code, status: r.status, engineering: !!r.engineering, createdAt: new Date(r.created_at),
     firstRunAt: r.first_run ? new Date(r.first_run) : null, lastRunAt: r.last_run ? new Date(r.last_run) : null,
   }))
 }
@@ -65,6 +68,7 @@ export async function firstAttemptValues(db: Knex, lotId: number, key: ParamKey 
   return rows.map((r: any) => Number(r.value))
 }
 
-export async function lotIdsOfProduct(db: Knex, productId: number): Promise<number[]> {
-  return (await db('lots').where({ product_id: productId }).select('id')).map((r: any) => r.id)
+/** The part's lot ids; engineering lots only when asked for. */
+export async function lotIdsOfProduct(db: Knex, productId: number, includeEngineering = false): Promise<number[]> {
+  return (await db('lots').where({ product_id: productId }).modify((q) => { if (!includeEngineering) q.where('engineering', false) }).select('id')).map((r: any) => r.id)
 }

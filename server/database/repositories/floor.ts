@@ -36,9 +36,9 @@ export type FloorLotRow = {
   stepStats: { step: string; units: number; firstPass: number; runs: number }[]
 }
 
-/** Lots still on the floor (open or on hold) with their per-step first-pass counts summed over stations. */
+/** Production lots still on the floor (open or on hold; engineering lots left out) with their per-step first-pass counts summed over stations. */
 export async function floorLots(db: Knex): Promise<FloorLotRow[]> {
-  const lots = await db('lots as l').join('products as p', 'p.id', 'l.product_id').whereIn('l.status', ['open', 'on_hold'])
+  const lots = await db('lots as l').join('products as p', 'p.id', 'l.product_id').whereIn('l.status', ['open', 'on_hold']).where('l.engineering', false)
     .orderBy('l.created_at', 'desc').orderBy('l.code')
     .select('l.id', 'l.code', 'l.status', 'l.planned_qty', 'p.part_number', 'p.name as product_name', 'p.steps')
   if (!lots.length) return []

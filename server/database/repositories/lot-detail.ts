@@ -6,13 +6,14 @@ export type LotStatus = 'open' | 'on_hold' | 'released' | 'shipped'
 export type LotRow = {
   id: number; code: string; productId: number; status: LotStatus; plannedQty: number | null; holdReason: string | null
   createdAt: Date; releasedAt: Date | null; releasedBy: { id: number; name: string } | null; shippedAt: Date | null
+  engineering: boolean; engineeringSource: 'pattern' | 'hand' | null
 }
 
 function toLot(r: any): LotRow {
   return {
     id: r.id, code: r.code, productId: r.product_id, status: r.status, plannedQty: r.planned_qty ?? null, holdReason: r.hold_reason ?? null,
     createdAt: r.created_at, releasedAt: r.released_at ?? null, releasedBy: r.released_by ? { id: r.released_by, name: r.released_by_name ?? '' } : null,
-    shippedAt: r.shipped_at ?? null,
+    shippedAt: r.shipped_at ?? null, engineering: !!r.engineering, engineeringSource: r.engineering_source ?? null,
   }
 }
 
@@ -33,6 +34,11 @@ export async function updateLotStatus(trx: Knex, id: number, change: { status: L
   if (change.releasedBy !== undefined) row.released_by = change.releasedBy
   if (change.shippedAt !== undefined) row.shipped_at = change.shippedAt
   await trx('lots').where({ id }).update(row)
+}
+
+/** Marks a lot engineering or production by hand (the caller holds its lock and writes the audit row). */
+export async function updateLotKind(trx: Knex, id: number, engineering: boolean): Promise<void> {
+  await trx('lots').where({ id }).update({ engineering, engineering_source: 'hand' })
 }
 
 export type LotCounts = {

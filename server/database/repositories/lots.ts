@@ -1,23 +1,29 @@
 import type { Knex } from 'knex'
 import type { LotListItem } from '../../../shared/types/lot'
+import { matchesLotPattern, parseLotPatterns } from '../../../shared/utils/lot-kind'
 
 export async function listLots(db: Knex): Promise<LotListItem[]> {
   const rows = await db('lots as l').join('products as p', 'p.id', 'l.product_id')
-    .select('l.id', 'l.code', 'p.part_number', 'p.name as product_name', 'l.status', 'l.planned_qty', 'l.created_at',
+    .select('l.id', 'l.code', 'p.part_number', 'p.name as product_name', 'l.status', 'l.planned_qty', 'l.created_at', 'l.engineering',
       db('units as u').count('*').whereRaw('u.lot_id = l.id').as('units_tested'))
     .orderBy('l.created_at', 'desc').orderBy('l.code')
   return rows.map((r: any) => ({
     code: r.code, partNumber: r.part_number, productName: r.product_name, status: r.status,
-    plannedQty: r.planned_qty, unitsTested: Number(r.units_tested), createdAt: new Date(r.created_at).toISOString(),
+    plannedQty: r.planned_qty, unitsTested: Number(r.units_tested), createdAt: new Date(r.created_at).toISOString(), engineering: !!r.engineering,
   }))
 }
 
-/** The lot of the code, created for the part on first sight (a concurrent creator wins, and its row is read). */
+/**
+ * The lot of the code, created for the part on first sight (a concurrent creator wins, and its row is read). A new
+ * lot whose code matches the product's engineering pattern is marked engineering from its first run.
+ */
 export async function findOrCreateLot(db: Knex, code: string, productId: number): Promise<{ id: number; productId: number; created: boolean }> {
   let row = await db('lots').where({ code }).first('id', 'product_id')
   let created = false
   if (!row) {
-    await db.raw('INSERT IGNORE INTO lots (product_id, code) VALUES (?, ?)', [productId, code])
+    const product = await db('products').where({ id: productId }).first('engineering_lot_pattern')
+    const engineering = matchesLotPattern(code, parseLotPatterns(product?.engineering_lot_pattern).patterns)
+    await db.raw('INSERT IGNORE INTO lots (product_id, code, engineering, engineering_source) VALUES (?, ?, ?, ?)', [productId, code, engineering, engineering ? 'pattern' : null])
     row = await db('lots').where({ code }).first('id', 'product_id')
     created = true
   }

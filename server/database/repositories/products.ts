@@ -45,3 +45,14 @@ export async function updateProduct(db: Knex, id: number, p: Omit<ProductFields,
     steps: JSON.stringify(p.steps), jitter_band_lo_hz: p.jitterBandLoHz, jitter_band_hi_hz: p.jitterBandHiHz, updated_at: db.fn.now(3),
   })
 }
+
+/** The product's engineering lot patterns as stored, and how many of its lots are engineering lots now. */
+export async function engineeringPatternOf(db: Knex, productId: number): Promise<{ pattern: string | null; engineeringLots: number }> {
+  const r = await db('products').where({ id: productId }).first('engineering_lot_pattern',
+    db('lots').count('*').where({ product_id: productId, engineering: true }).as('engineering_lots'))
+  return { pattern: r?.engineering_lot_pattern ?? null, engineeringLots: Number(r?.engineering_lots ?? 0) }
+}
+
+export async function updateEngineeringPattern(trx: Knex, productId: number, pattern: string | null): Promise<void> {
+  await trx('products').where({ id: productId }).update({ engineering_lot_pattern: pattern })
+}

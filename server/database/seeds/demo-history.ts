@@ -29,6 +29,7 @@ const TEST_WINDOW_DAYS: Record<string, [number, number]> = {
   'T3-2611-A': [18, 3],
   'T3-2612-B': [10, 0.25],
   'X8-2611-A': [14, 0.5],
+  'X8-2612-E': [6, 1],
 }
 // a station's upload reaches Tercet a little after the run finishes
 const UPLOAD_DELAY_MS = 90_000

@@ -7,6 +7,7 @@ import { addCalibration, addInstrument, moveInstrument, supersedeCalibration } f
 import { hashPasswordOffline } from '../../utils/password-hash'
 import { generateStationToken } from '../../utils/station-token'
 import { writeAudit } from '../repositories/audit'
+import { matchesLotPattern, parseLotPatterns } from '../../../shared/utils/lot-kind'
 
 export type SeedResult = { stationTokens: Record<string, string> }
 
@@ -34,6 +35,7 @@ export async function seedDemoCatalogue(db: Knex, now = new Date()): Promise<See
       const [productId] = await trx('products').insert({
         part_number: p.partNumber, name: p.name, multiplier: p.multiplier, input_hz: p.inputHz, output_hz: p.inputHz * p.multiplier,
         steps: JSON.stringify(p.steps), jitter_band_lo_hz: p.jitterBand[0], jitter_band_hi_hz: p.jitterBand[1],
+        engineering_lot_pattern: p.engineeringLotPattern ?? null,
       })
       const [revisionId] = await trx('spec_revisions').insert({
         product_id: productId, revision: 1, status: 'approved', effective_at: effective,
@@ -56,8 +58,13 @@ export async function seedDemoCatalogue(db: Knex, now = new Date()): Promise<See
     }
     await seedDemoInstruments(trx, userIds.engineer!, now)
     for (const l of DEMO_LOTS) {
-      const product = await trx('products').where({ part_number: l.partNumber }).first('id')
-      await trx('lots').insert({ product_id: product.id, code: l.code, planned_qty: l.planned, created_at: new Date(now.getTime() - 20 * DAY) })
+      const product = await trx('products').where({ part_number: l.partNumber }).first('id', 'engineering_lot_pattern')
+      // marked as a station's first run would mark it: by the product's pattern
+      const engineering = matchesLotPattern(l.code, parseLotPatterns(product.engineering_lot_pattern).patterns)
+      await trx('lots').insert({
+        product_id: product.id, code: l.code, planned_qty: l.planned, created_at: new Date(now.getTime() - 20 * DAY),
+        engineering, engineering_source: engineering ? 'pattern' : null,
+      })
     }
   })
   return { stationTokens }

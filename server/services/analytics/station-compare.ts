@@ -37,7 +37,7 @@ export function compareStations(byStation: { station: string; stats: PooledStats
   return { pooled, stations }
 }
 
-export async function stationComparison(db: Knex, { series: q, lotCode }: { series: SeriesQuery; lotCode: string | null }, now = new Date()): Promise<StationComparisonView> {
+export async function stationComparison(db: Knex, { series: q, lotCode, includeEngineering = false }: { series: SeriesQuery; lotCode: string | null; includeEngineering?: boolean }, now = new Date()): Promise<StationComparisonView> {
   const series = await resolveSeries(db, q, now)
   let lotIds: number[]
   if (lotCode !== null) {
@@ -46,7 +46,8 @@ export async function stationComparison(db: Knex, { series: q, lotCode }: { seri
     if (lot.productId !== series.product.id) throw new RuleError(400, `Lot ${lotCode} is not a lot of ${series.product.partNumber}.`, [{ pointer: '/lot', message: 'belongs to another part' }])
     lotIds = [lot.id]
   } else {
-    lotIds = await lotIdsOfProduct(db, series.product.id)
+    // a lot named is compared whatever its kind; across lots, engineering lots only when asked for
+    lotIds = await lotIdsOfProduct(db, series.product.id, includeEngineering)
   }
   const rows = await freshParamRows(db, lotIds, { step: series.step, name: q.name, qualifier: q.qualifier })
   const names = new Map(rows.map((r) => [r.stationId, r.stationName]))
@@ -59,6 +60,7 @@ export async function stationComparison(db: Knex, { series: q, lotCode }: { seri
     part: { partNumber: series.product.partNumber, name: series.product.name, steps: series.product.steps },
     parameter: series.parameter,
     lot: lotCode,
+    engineering: includeEngineering ? 'include' as const : 'exclude' as const,
     pooled: { ...pooled, outOfSpec: poolRows(rows).outOfSpec },
     stations,
   }

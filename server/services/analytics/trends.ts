@@ -36,11 +36,11 @@ function capabilityByRevision(rows: StationStatRow[], book: RevisionBook, key: P
  * One parameter of a part lot by lot. Each lot's location and spread pool all its values (they do not depend on the
  * limits) and feed the across-lot chart; its capability is given per revision judged, each against its own limits.
  */
-export async function lotTrends(db: Knex, { series: q, from, to }: { series: SeriesQuery; from?: Date; to?: Date }, now = new Date()): Promise<TrendsView> {
+export async function lotTrends(db: Knex, { series: q, from, to, includeEngineering = false }: { series: SeriesQuery; from?: Date; to?: Date; includeEngineering?: boolean }, now = new Date()): Promise<TrendsView> {
   const series = await resolveSeries(db, q, now)
   const key = { step: series.step, name: q.name, qualifier: q.qualifier }
 
-  const lots = (await lotsOfProduct(db, series.product.id, series.step))
+  const lots = (await lotsOfProduct(db, series.product.id, series.step, includeEngineering))
     .filter((l) => l.firstRunAt && l.lastRunAt && (!from || l.lastRunAt >= from) && (!to || l.firstRunAt <= to))
     .sort((a, b) => a.createdAt.getTime() - b.createdAt.getTime() || a.firstRunAt!.getTime() - b.firstRunAt!.getTime() || a.code.localeCompare(b.code))
   const [paramRows, book] = await Promise.all([freshParamRows(db, lots.map((l) => l.id), key), revisionBook(db, series.product.id)])
@@ -53,7 +53,7 @@ export async function lotTrends(db: Knex, { series: q, from, to }: { series: Ser
     if (p.moments.n === 0) return []
     const s = summarise(p)
     return [{
-      code: l.code, status: l.status, createdAt: l.createdAt.toISOString(), firstRunAt: l.firstRunAt!.toISOString(), lastRunAt: l.lastRunAt!.toISOString(),
+      code: l.code, status: l.status, engineering: l.engineering, createdAt: l.createdAt.toISOString(), firstRunAt: l.firstRunAt!.toISOString(), lastRunAt: l.lastRunAt!.toISOString(),
       n: s.n, mean: s.mean!, sigma: s.sigmaOverall, sigmaWithin: s.sigmaWithin, min: s.min!, max: s.max!,
       capability: capabilityByRevision(own, book, key),
     }]
@@ -71,6 +71,7 @@ export async function lotTrends(db: Knex, { series: q, from, to }: { series: Ser
     parameter: series.parameter,
     from: from?.toISOString() ?? null,
     to: to?.toISOString() ?? null,
+    engineering: includeEngineering ? 'include' : 'exclude',
     lots: rows.map((r, i) => ({
       ...r,
       beyondLimits: usable ? r.mean > limits.ucl || r.mean < limits.lcl : false,

@@ -1,0 +1,4 @@
+import { search } from '../services/search'
+import { parseSearchQuery } from '../utils/search-query'
+
+export default defineEventHandler((event) => search(useDb(), parseSearchQuery(getQuery(event))))
