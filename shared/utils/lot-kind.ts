@@ -22,7 +22,8 @@ export function parseLotPatterns(text: string | null | undefined): PatternCheck 
 }
 
 function toRegExp(pattern: string): RegExp {
-  const body = pattern.replace(/[.\-]/g, (c) => `\\${c}`).replace(/\*/g, '.*').replace(/\?/g, '.')
+  // only . is special among the characters a pattern may hold (- means itself outside brackets)
+  const body = pattern.replace(/\./g, '\\.').replace(/\*/g, '.*').replace(/\?/g, '.')
   return new RegExp(`^${body}$`, 'i')
 }
 
