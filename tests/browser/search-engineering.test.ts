@@ -46,6 +46,8 @@ describe('header search', () => {
     await box.press('Enter')
     await page.waitForURL(/\/specs\/VFW-X8-12G$/)
     await expect.poll(() => page.locator('#eng-pattern').inputValue(), SLOW).toBe('*-E')
+    await page.locator('[data-test=engineering-pattern]').scrollIntoViewIfNeeded()
+    await shot(page, 'spec-engineering-pattern')
 
     await box.fill('zz-nothing-here')
     await expect.poll(() => list.textContent(), SLOW).toContain('No serial, lot or part starts with')
@@ -89,6 +91,14 @@ describe('engineering lots on the pages', () => {
     await hydrated(page)
     expect(await page.locator('[data-test=engineering-switch] input').isChecked()).toBe(true)
     await expect.poll(async () => (await lotCells()).some((t) => t.includes('X8-2612-E')), SLOW).toBe(true)
+
+    // station comparison keeps the switch from the trends link
+    await page.getByRole('link', { name: 'Compare stations →' }).click()
+    await page.waitForURL(/\/stations\/compare\?.*engineering=include/)
+    await hydrated(page)
+    expect(await page.locator('[data-test=engineering-switch] input').isChecked()).toBe(true)
+    await expect.poll(() => page.locator('#cmp-lot option').allTextContents(), SLOW).toContain('X8-2612-E (engineering)')
+    await shot(page, 'compare-engineering-included')
     await page.context().close()
   })
 })
