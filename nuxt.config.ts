@@ -8,7 +8,7 @@ export default defineNuxtConfig({
   devtools: { enabled: false },
   telemetry: false,
   modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils', '@nuxt/eslint'], // @nuxt/eslint only writes the lint config (eslint.config.mjs)
-  css: ['~/assets/css/main.css'],
+  css: ['~/assets/css/main.css', '~/assets/css/charts.css'],
   tailwindcss: { cssPath: false, configPath: 'tailwind.config.ts', viewer: false },
   app: {
     head: {

@@ -30,11 +30,13 @@ describe('the lot page of a lot judged under two revisions', () => {
     const texts = await powerRows.allTextContents()
     expect(texts[0]).toContain('rev. 1')
     expect(texts[1]).toContain('rev. 2')
-    // each row carries its own revision's USL (12 and 13 dBm), shown to 0.01 dB as every dBm value is
-    const uslColumn = (await table.locator('thead th').allTextContents()).findIndex((h) => h.trim().startsWith('USL'))
-    expect(uslColumn).toBeGreaterThan(0)
-    expect((await powerRows.nth(0).locator('td').nth(uslColumn).textContent())?.trim()).toBe('12.00')
-    expect((await powerRows.nth(1).locator('td').nth(uslColumn).textContent())?.trim()).toBe('13.00')
+    // each row carries its own revision's USL (12 and 13 dBm), shown to 0.01 dB as every dBm value is; the limits
+    // cell holds LSL over USL
+    const limitsColumn = (await table.locator('thead th').allTextContents()).findIndex((h) => /^LSL\s*USL/.test(h.trim()))
+    expect(limitsColumn).toBeGreaterThan(0)
+    const usl = (row: number) => powerRows.nth(row).locator('td').nth(limitsColumn).locator('span > span').last().textContent()
+    expect((await usl(0))?.trim()).toBe('12.00')
+    expect((await usl(1))?.trim()).toBe('13.00')
     expect(await page.locator('[data-test="interval-legend"]').first().textContent()).toContain('approximate')
 
     // the charts follow the chosen revision (a drawn chart says the page has hydrated and listens to clicks)
