@@ -1,12 +1,7 @@
-// Words and times of the analytics views; every number is formatted by shared/utils/value-format.ts.
+// Words of the analytics views; every number is formatted by shared/utils/value-format.ts, every time by plant-time.ts.
 import { DASH } from '#shared/utils/value-format'
-import { utcMinute, utcSeconds } from './utc-time'
 
 export const BAND_WORDS: Record<string, string> = { capable: 'CAPABLE', marginal: 'MARGINAL', not_capable: 'NOT CAPABLE', too_few: 'FEW VALUES', unknown: 'NO INDEX' }
-
-export function utcStamp(iso: string | null | undefined, withSeconds = false): string {
-  return withSeconds ? utcSeconds(iso) : utcMinute(iso)
-}
 
 
 /** "4 s", "3 min 12 s", "2 h 5 min", "3 d" since a moment. */

@@ -23,6 +23,7 @@ import * as m023 from './migrations/20261202_023_certificate_retest_index'
 import * as m024 from './migrations/20261202_024_alerts'
 import * as m025 from './migrations/20261202_025_calibration_impacts'
 import * as m026 from './migrations/20261202_026_spec_draft_workflow'
+import * as m027 from './migrations/20261202_027_plant_time_zone'
 import * as m028 from './migrations/20261202_028_engineering_lots'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
@@ -53,6 +54,7 @@ const migrations: Record<string, Migration> = {
   '20261202_024_alerts': m024,
   '20261202_025_calibration_impacts': m025,
   '20261202_026_spec_draft_workflow': m026,
+  '20261202_027_plant_time_zone': m027,
   '20261202_028_engineering_lots': m028,
 }
 

@@ -9,6 +9,7 @@ import {
   activeTokenHints, findStation, insertStation, listStations, listTokens, lockStation, type StationRow, type TokenRow,
 } from '../database/repositories/stations'
 import { generateStationToken } from '../utils/station-token'
+import { plantToday } from './plant-day'
 import { currentInstrumentsOfStations, type CurrentInstrument } from './calibration/views'
 import { RuleError } from './rule-error'
 
@@ -38,13 +39,13 @@ function blankToNull(v: string | null | undefined): string | null {
 }
 
 export async function stationList(db: Knex, now = new Date()): Promise<StationSummary[]> {
-  const stations = await listStations(db, now)
+  const stations = await listStations(db, (await plantToday(db, now)).start)
   const instruments = await currentInstrumentsOfStations(db, stations.map((s) => s.id), now)
   return stations.map((s) => view(s, instruments))
 }
 
 async function stationView(db: Knex, id: number, now = new Date()): Promise<StationSummary | undefined> {
-  const s = await findStation(db, id, now)
+  const s = await findStation(db, id, (await plantToday(db, now)).start)
   return s && view(s, await currentInstrumentsOfStations(db, [id], now))
 }
 

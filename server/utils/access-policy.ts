@@ -79,6 +79,9 @@ export const API_POLICY: Rule[] = [
   // run-time settings: every staff role reads them (the due-soon period behind the calibration badges); admins change them
   { method: 'GET', path: '/api/settings', allow: STAFF },
   { method: 'PUT', path: '/api/settings/calibration-due-soon-days', allow: ['admin'] },
+  { method: 'PUT', path: '/api/settings/plant-time-zone', allow: ['admin'] },
+  // the plant's time zone, which every page (the sign-in and public verification pages too) shows times in
+  { method: 'GET', path: '/api/plant-time', allow: 'public' },
   { method: 'POST', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'DELETE', path: '/api/stations/:id/token', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/stations/:id/calibration', allow: ['admin', 'engineer'] },
@@ -106,6 +109,7 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/stations/compare', allow: STAFF },
   { method: 'GET', path: '/api/floor/snapshot', allow: STAFF },
   { method: 'GET', path: '/api/floor/stream', allow: STAFF },
+  { method: 'GET', path: '/api/floor/runs/:id', allow: STAFF },
 
   { method: 'POST', path: '/api/v1/runs', allow: ['station'] },
   { method: 'POST', path: '/api/v1/runs/batch', allow: ['station'] },

@@ -90,10 +90,11 @@ describe('station tokens at rest', () => {
 })
 
 describe('station activity', () => {
-  it('counts runs finished since UTC midnight and reports the latest verdict', async () => {
+  it('counts runs finished since midnight plant time (Europe/Berlin: CEST, UTC+2, in May) and reports the latest verdict', async () => {
     const now = new Date('2031-05-06T10:00:00Z')
     const trx = await db.transaction()
     try {
+      await trx('app_settings').where({ name: 'plant_time_zone' }).update({ value: 'Europe/Berlin' })
       const { station } = await createStation(trx, actorId, { name: name('runs') })
       const lot = await trx('lots').first('id', 'product_id')
       const [unitId] = await trx('units').insert({ product_id: lot.product_id, lot_id: lot.id, serial: name('unit') })
@@ -105,15 +106,22 @@ describe('station activity', () => {
       })
       // inserted out of time order: the latest verdict goes by finish time, not by row order
       await trx('test_runs').insert(run('2031-05-06T09:00:00.000Z', 'fail'))
-      await trx('test_runs').insert(run('2031-05-06T00:00:00.000Z', 'pass'))
-      await trx('test_runs').insert(run('2031-05-05T23:59:59.999Z', 'pass'))
+      // 00:00 CEST on the 6th is 22:00 UTC on the 5th: the plant day's first run, on the UTC date before
+      await trx('test_runs').insert(run('2031-05-05T22:00:00.000Z', 'pass'))
+      // 23:59:59.999 CEST on the 5th: the plant's yesterday
+      await trx('test_runs').insert(run('2031-05-05T21:59:59.999Z', 'pass'))
 
       const listed = (await stationList(trx, now)).find((s) => s.id === station.id)!
       expect(listed.runsToday).toBe(2)
       expect(listed.lastVerdict).toBe('fail')
-      const detail = (await stationDetail(trx, station.id, new Date('2031-05-07T00:00:00Z')))!
+      // 22:00 UTC on the 6th is midnight of the 7th in Berlin: a new plant day with no runs yet
+      const detail = (await stationDetail(trx, station.id, new Date('2031-05-06T22:00:00Z')))!
       expect(detail.runsToday).toBe(0)
       expect(detail.lastVerdict).toBe('fail')
+
+      // the same runs counted by a plant on UTC: midnight is 00:00 UTC, so only the 09:00 run is today
+      await trx('app_settings').where({ name: 'plant_time_zone' }).update({ value: 'UTC' })
+      expect((await stationList(trx, now)).find((s) => s.id === station.id)!.runsToday).toBe(1)
     } finally {
       await trx.rollback()
     }

@@ -1,7 +1,12 @@
 import type { FloorLotsEvent, FloorLotView, FloorRunEvent, FloorSnapshot, FloorStationView, FloorStationsEvent } from '#shared/types/floor'
 
-// what fits a 1080-line wall monitor without scrolling
-const FEED_LENGTH = 12
+// more than a 1080-line wall monitor shows: the list is cut by the screen, not by the count
+const FEED_LENGTH = 16
+
+/** Newest arrival first: by the time Tercet took each run, then by id (the order it was stored). */
+function byArrival(a: FloorRunEvent, b: FloorRunEvent): number {
+  return a.receivedAt < b.receivedAt ? 1 : a.receivedAt > b.receivedAt ? -1 : b.id - a.id
+}
 
 /**
  * The floor: a snapshot for first paint, then the server's event stream (new runs, lots and stations after them),
@@ -22,17 +27,17 @@ export async function useFloorStream() {
     stations.value = s.stations
     lots.value = s.lots
     const known = new Set(s.recent.map((r) => r.id))
-    feed.value = [...s.recent, ...feed.value.filter((r) => !known.has(r.id))].sort((a, b) => b.id - a.id).slice(0, FEED_LENGTH)
+    feed.value = [...s.recent, ...feed.value.filter((r) => !known.has(r.id))].sort(byArrival).slice(0, FEED_LENGTH)
   }
 
   function addRun(r: FloorRunEvent) {
     if (feed.value.some((x) => x.id === r.id)) return
-    feed.value = [r, ...feed.value].sort((a, b) => b.id - a.id).slice(0, FEED_LENGTH)
+    feed.value = [r, ...feed.value].sort(byArrival).slice(0, FEED_LENGTH)
     fresh.value = new Set([...fresh.value, r.id])
     setTimeout(() => { const next = new Set(fresh.value); next.delete(r.id); fresh.value = next }, 4000)
     const s = stations.value.find((x) => x.name === r.station)
     if (s && (!s.lastRun || s.lastRun.finishedAt <= r.finishedAt)) {
-      s.lastRun = { verdict: r.verdict, finishedAt: r.finishedAt, serial: r.serial, lot: r.lot, step: r.step }
+      s.lastRun = { id: r.id, verdict: r.verdict, finishedAt: r.finishedAt, serial: r.serial, lot: r.lot, step: r.step }
     }
   }
 
@@ -75,7 +80,7 @@ export async function useFloorStream() {
   if (first.value) {
     stations.value = first.value.stations
     lots.value = first.value.lots
-    feed.value = first.value.recent.slice(0, FEED_LENGTH)
+    feed.value = [...first.value.recent].sort(byArrival).slice(0, FEED_LENGTH)
     skewMs.value = new Date(first.value.serverTime).getTime() - Date.now()
     now.value = Date.now() + skewMs.value
   }

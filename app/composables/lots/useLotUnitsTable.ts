@@ -7,8 +7,8 @@ import type { LotUnitRow } from '#shared/types/lot'
 import VerdictChip from '~/components/ui/VerdictChip.vue'
 // imported, not resolved by name: the page calls this after an await, where resolveComponent finds no instance
 import { NuxtLink } from '#components'
-import { utcMinute } from '~/utils/utc-time'
 import type { LotUnitsHandle } from './useLotUnits'
+import PlantTime from '~/components/ui/PlantTime.vue'
 
 /** Columns whose cells are numbers, right-aligned. */
 export const NUMERIC_COLUMNS = new Set(['maxAttempts', 'runs', 'stepsTested'])
@@ -29,7 +29,7 @@ export function useLotUnitsTable(units: LotUnitsHandle) {
     col.accessor('maxAttempts', { header: 'Attempts', cell: (c) => h('span', { class: c.getValue() > 1 ? 'font-bold text-verdict-marginal' : '' }, String(c.getValue())) }),
     col.accessor('runs', { header: 'Runs' }),
     col.accessor('station', { header: 'Station', cell: (c) => c.getValue() ?? '—' }),
-    col.accessor('lastTestedAt', { header: 'Last tested (UTC)', cell: (c) => utcMinute(c.getValue()) }),
+    col.accessor('lastTestedAt', { header: 'Last tested', cell: (c) => h(PlantTime, { at: c.getValue() }) }),
   ])
   return useTable({
     features, columns,

@@ -3,17 +3,13 @@ import type { Knex } from 'knex'
 
 export type FloorStation = {
   id: number; name: string; location: string | null; lastSeenAt: Date | null; runsToday: number
-  lastRun: { verdict: 'pass' | 'fail'; finishedAt: Date; serial: string; lot: string; step: string } | null
+  lastRun: { id: number; verdict: 'pass' | 'fail'; finishedAt: Date; serial: string; lot: string; step: string } | null
 }
 
-function utcMidnight(now: Date): Date {
-  return new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate()))
-}
-
-/** Every station with its run count since 00:00 UTC and its latest run (both from the (station, finished_at) index). */
-export async function floorStations(db: Knex, now: Date): Promise<FloorStation[]> {
+/** Every station with its run count since `todayFrom` (the plant day's start) and its latest run (both from the (station, finished_at) index). */
+export async function floorStations(db: Knex, todayFrom: Date): Promise<FloorStation[]> {
   const stations = await db('stations as s').orderBy('s.name').select('s.id', 's.name', 's.location', 's.last_seen_at',
-    db('test_runs as r').count('*').whereRaw('r.station_id = s.id').where('r.finished_at', '>=', utcMidnight(now)).as('runs_today'),
+    db('test_runs as r').count('*').whereRaw('r.station_id = s.id').where('r.finished_at', '>=', todayFrom).as('runs_today'),
     db('test_runs as r').select('r.id').whereRaw('r.station_id = s.id').orderBy('r.finished_at', 'desc').orderBy('r.id', 'desc').limit(1).as('last_run_id'))
   const lastIds = stations.map((s: any) => s.last_run_id).filter((id: unknown) => id != null)
   const last = lastIds.length
@@ -26,7 +22,7 @@ export async function floorStations(db: Knex, now: Date): Promise<FloorStation[]
     return {
       id: s.id, name: s.name, location: s.location ?? null, lastSeenAt: s.last_seen_at ? new Date(s.last_seen_at) : null,
       runsToday: Number(s.runs_today ?? 0),
-      lastRun: r ? { verdict: r.server_verdict, finishedAt: new Date(r.finished_at), serial: r.serial, lot: r.code, step: r.step } : null,
+      lastRun: r ? { id: Number(r.id), verdict: r.server_verdict, finishedAt: new Date(r.finished_at), serial: r.serial, lot: r.code, step: r.step } : null,
     }
   })
 }
@@ -36,10 +32,15 @@ export type FloorLotRow = {
   stepStats: { step: string; units: number; firstPass: number; runs: number }[]
 }
 
-/** Production lots still on the floor (open or on hold; engineering lots left out) with their per-step first-pass counts summed over stations. */
+/** Which lots the floor shows: production lots still in production (open or on hold; engineering lots left out). The one place that decides it. */
+export function onTheFloor(q: Knex.QueryBuilder): Knex.QueryBuilder {
+  return q.whereIn('l.status', ['open', 'on_hold']).where('l.engineering', false)
+}
+
+/** Lots on the floor with their per-step first-pass counts summed over stations; open ones before those on hold, newest first. */
 export async function floorLots(db: Knex): Promise<FloorLotRow[]> {
-  const lots = await db('lots as l').join('products as p', 'p.id', 'l.product_id').whereIn('l.status', ['open', 'on_hold']).where('l.engineering', false)
-    .orderBy('l.created_at', 'desc').orderBy('l.code')
+  const lots = await onTheFloor(db('lots as l').join('products as p', 'p.id', 'l.product_id'))
+    .orderByRaw("l.status = 'open' DESC").orderBy('l.created_at', 'desc').orderBy('l.code')
     .select('l.id', 'l.code', 'l.status', 'l.planned_qty', 'p.part_number', 'p.name as product_name', 'p.steps')
   if (!lots.length) return []
   const stats = await db('lot_step_stats').whereIn('lot_id', lots.map((l: any) => l.id)).groupBy('lot_id', 'step')
@@ -53,19 +54,21 @@ export async function floorLots(db: Knex): Promise<FloorLotRow[]> {
 
 export type FloorRunRow = {
   id: number; serial: string; part: string; lot: string; station: string; step: string; attempt: number
-  verdict: 'pass' | 'fail'; finishedAt: Date; receivedAt: Date
+  verdict: 'pass' | 'fail'; startedAt: Date; finishedAt: Date; receivedAt: Date; failed: number
 }
 
 function runsQuery(db: Knex) {
   return db('test_runs as r').join('units as u', 'u.id', 'r.unit_id').join('lots as l', 'l.id', 'r.lot_id')
     .join('products as p', 'p.id', 'l.product_id').join('stations as s', 's.id', 'r.station_id')
-    .select('r.id', 'u.serial', 'p.part_number', 'l.code', 's.name as station_name', 'r.step', 'r.attempt', 'r.server_verdict', 'r.finished_at', 'r.received_at')
+    .select('r.id', 'u.serial', 'p.part_number', 'l.code', 's.name as station_name', 'r.step', 'r.attempt', 'r.server_verdict', 'r.started_at', 'r.finished_at', 'r.received_at',
+      db('measurements as m').count('*').whereRaw('m.run_id = r.id').where('m.verdict', 'fail').as('failed'))
 }
 
 function toRun(r: any): FloorRunRow {
   return {
     id: Number(r.id), serial: r.serial, part: r.part_number, lot: r.code, station: r.station_name, step: r.step, attempt: r.attempt,
-    verdict: r.server_verdict, finishedAt: new Date(r.finished_at), receivedAt: new Date(r.received_at),
+    verdict: r.server_verdict, startedAt: new Date(r.started_at), finishedAt: new Date(r.finished_at), receivedAt: new Date(r.received_at),
+    failed: Number(r.failed ?? 0),
   }
 }
 

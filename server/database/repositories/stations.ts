@@ -15,16 +15,12 @@ export type StationRow = {
 
 export type TokenRow = { id: number; hint: string; createdAt: Date; createdBy: string | null; revokedAt: Date | null; lastUsedAt: Date | null }
 
-/** UTC midnight of the day `now` falls in: the start of "today" for run counts. */
-export function utcMidnight(now: Date): Date {
-  return new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate()))
-}
-
-function base(db: Knex, now: Date) {
+/** `todayFrom`: the instant the plant day began (services/plant-day.ts); runs finished since then are "today". */
+function base(db: Knex, todayFrom: Date) {
   return db('stations as s').select(
     's.id', 's.name', 's.location', 's.description', 's.last_seen_at', 's.created_at', 's.owner_user_id',
     db('users as o').select('o.name').whereRaw('o.id = s.owner_user_id').as('owner_name'),
-    db('test_runs as r').count('*').whereRaw('r.station_id = s.id').where('r.finished_at', '>=', utcMidnight(now)).as('runs_today'),
+    db('test_runs as r').count('*').whereRaw('r.station_id = s.id').where('r.finished_at', '>=', todayFrom).as('runs_today'),
     db('test_runs as r').select('r.server_verdict').whereRaw('r.station_id = s.id')
       .orderBy('r.finished_at', 'desc').orderBy('r.id', 'desc').limit(1).as('last_verdict'),
     db('station_tokens as t').select('t.hint').whereRaw('t.station_id = s.id').whereNull('t.revoked_at')
@@ -41,12 +37,12 @@ function toStation(r: any): StationRow {
   }
 }
 
-export async function listStations(db: Knex, now: Date): Promise<StationRow[]> {
-  return (await base(db, now).orderBy('s.name')).map(toStation)
+export async function listStations(db: Knex, todayFrom: Date): Promise<StationRow[]> {
+  return (await base(db, todayFrom).orderBy('s.name')).map(toStation)
 }
 
-export async function findStation(db: Knex, id: number, now: Date): Promise<StationRow | undefined> {
-  const r = await base(db, now).where('s.id', id).first()
+export async function findStation(db: Knex, id: number, todayFrom: Date): Promise<StationRow | undefined> {
+  const r = await base(db, todayFrom).where('s.id', id).first()
   return r ? toStation(r) : undefined
 }
 

@@ -3,13 +3,17 @@ import type { Knex } from 'knex'
 import type { FloorLotView, FloorRunEvent, FloorSnapshot, FloorStationView } from '../../../shared/types/floor'
 import { wilsonInterval } from '../../../shared/utils/yield'
 import { floorLots, floorStations, latestRuns, runsAfter, type FloorRunRow } from '../../database/repositories/floor'
+import { plantToday } from '../plant-day'
 import { advanceCursor, startCursor, type FeedCursor } from './floor-cursor'
 
 export const RECENT_RUNS = 25
 const BATCH = 200
 
 export function runEvent(r: FloorRunRow): FloorRunEvent {
-  return { id: r.id, serial: r.serial, part: r.part, lot: r.lot, station: r.station, step: r.step, attempt: r.attempt, verdict: r.verdict, finishedAt: r.finishedAt.toISOString() }
+  return {
+    id: r.id, serial: r.serial, part: r.part, lot: r.lot, station: r.station, step: r.step, attempt: r.attempt, verdict: r.verdict,
+    startedAt: r.startedAt.toISOString(), finishedAt: r.finishedAt.toISOString(), receivedAt: r.receivedAt.toISOString(), failed: r.failed,
+  }
 }
 
 export async function floorLotYields(db: Knex): Promise<FloorLotView[]> {
@@ -29,8 +33,9 @@ export async function floorLotYields(db: Knex): Promise<FloorLotView[]> {
   })
 }
 
+/** Stations with their runs since the plant day began (midnight in the plant's time zone, services/plant-day.ts). */
 export async function floorStationView(db: Knex, now: Date): Promise<FloorStationView[]> {
-  return (await floorStations(db, now)).map((s) => ({
+  return (await floorStations(db, (await plantToday(db, now)).start)).map((s) => ({
     name: s.name, location: s.location, lastSeenAt: s.lastSeenAt?.toISOString() ?? null, runsToday: s.runsToday,
     lastRun: s.lastRun ? { ...s.lastRun, finishedAt: s.lastRun.finishedAt.toISOString() } : null,
   }))
