@@ -81,7 +81,9 @@ describe('an administrator', () => {
     // the example as the page shows it, with an id and serial of its own, is accepted from the new station
     const example = JSON.parse(request.slice(request.indexOf('{'), request.lastIndexOf('}') + 1))
     const serial = `J-${randomUUID().slice(0, 8)}`
-    const posted = await call('POST', '/api/runs', { token, body: { ...example, id: randomUUID(), serial } })
+    const [verb, path] = request.trim().split(/\s+/)
+    expect(verb).toBe('POST')
+    const posted = await call('POST', path!, { token, body: { ...example, id: randomUUID(), serial } })
     expect(posted.status).toBe(201)
     expect(posted.body.station).toBe(name)
 
