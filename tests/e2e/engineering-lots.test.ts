@@ -95,11 +95,14 @@ describe('engineering lots by pattern', () => {
     expect(named.body.pooled.n).toBe(UNITS)
   })
 
-  it('the floor shows the production lot and not the engineering lot', async () => {
+  it('the floor shows the production lot and not the engineering lot, nor its runs among the arriving ones', async () => {
     const floor = await call('GET', '/api/floor/snapshot', { cookie: operator })
     const codes = floor.body.lots.map((l: any) => l.code)
     expect(codes).toContain(PRODUCTION)
     expect(codes).not.toContain(ENGINEERING)
+    const arriving = floor.body.recent.map((r: any) => r.lot)
+    expect(arriving).not.toContain(ENGINEERING)
+    expect(floor.body.recent.length).toBeGreaterThan(0)
   })
 })
 

@@ -54,13 +54,13 @@ export async function floorLots(db: Knex): Promise<FloorLotRow[]> {
 
 export type FloorRunRow = {
   id: number; serial: string; part: string; lot: string; station: string; step: string; attempt: number
-  verdict: 'pass' | 'fail'; startedAt: Date; finishedAt: Date; receivedAt: Date; failed: number
+  verdict: 'pass' | 'fail'; startedAt: Date; finishedAt: Date; receivedAt: Date; failed: number; engineering: boolean
 }
 
 function runsQuery(db: Knex) {
   return db('test_runs as r').join('units as u', 'u.id', 'r.unit_id').join('lots as l', 'l.id', 'r.lot_id')
     .join('products as p', 'p.id', 'l.product_id').join('stations as s', 's.id', 'r.station_id')
-    .select('r.id', 'u.serial', 'p.part_number', 'l.code', 's.name as station_name', 'r.step', 'r.attempt', 'r.server_verdict', 'r.started_at', 'r.finished_at', 'r.received_at',
+    .select('r.id', 'u.serial', 'p.part_number', 'l.code', 's.name as station_name', 'r.step', 'r.attempt', 'r.server_verdict', 'r.started_at', 'r.finished_at', 'r.received_at', 'l.engineering',
       db('measurements as m').count('*').whereRaw('m.run_id = r.id').where('m.verdict', 'fail').as('failed'))
 }
 
@@ -68,7 +68,7 @@ function toRun(r: any): FloorRunRow {
   return {
     id: Number(r.id), serial: r.serial, part: r.part_number, lot: r.code, station: r.station_name, step: r.step, attempt: r.attempt,
     verdict: r.server_verdict, startedAt: new Date(r.started_at), finishedAt: new Date(r.finished_at), receivedAt: new Date(r.received_at),
-    failed: Number(r.failed ?? 0),
+    failed: Number(r.failed ?? 0), engineering: Boolean(r.engineering),
   }
 }
 

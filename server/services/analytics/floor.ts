@@ -41,6 +41,10 @@ export async function floorStationView(db: Knex, now: Date): Promise<FloorStatio
   }))
 }
 
+// Runs of engineering lots stay off the floor like their lots; the cursor still steps over their ids, so they
+// are never mistaken for gaps still to come.
+const onFloor = (r: FloorRunRow) => !r.engineering
+
 /** The snapshot and the feed cursor that continues from it (recent ids it did not see are kept as gaps). */
 export async function floorSnapshot(db: Knex, now = new Date()): Promise<{ cursor: FeedCursor; snapshot: FloorSnapshot }> {
   const recent = await latestRuns(db, RECENT_RUNS)
@@ -49,12 +53,12 @@ export async function floorSnapshot(db: Knex, now = new Date()): Promise<{ curso
   const [stations, lots] = await Promise.all([floorStationView(db, now), floorLotYields(db)])
   return {
     cursor,
-    snapshot: { serverTime: now.toISOString(), lastRunId: cursor.lastId, stations, lots, recent: recent.map(runEvent) },
+    snapshot: { serverTime: now.toISOString(), lastRunId: cursor.lastId, stations, lots, recent: recent.filter(onFloor).map(runEvent) },
   }
 }
 
 /** Runs that became visible since the cursor, and the cursor after them. */
 export async function pollRuns(db: Knex, cursor: FeedCursor, now = Date.now()): Promise<{ runs: FloorRunEvent[]; cursor: FeedCursor }> {
   const rows = await runsAfter(db, cursor.lastId, cursor.gaps.map((g) => g.id), BATCH)
-  return { runs: rows.map(runEvent), cursor: advanceCursor(cursor, rows.map((r) => r.id), now) }
+  return { runs: rows.filter(onFloor).map(runEvent), cursor: advanceCursor(cursor, rows.map((r) => r.id), now) }
 }
