@@ -47,3 +47,17 @@ export function plantFieldToIso(value: string, zone: string): string {
 export function isoToPlantField(value: string | Date, zone: string): string {
   return plantStamp(value, zone, 'minute').replace(' ', 'T')
 }
+
+/**
+ * Date filters ("from" and "to" days, both included) as the instants the API takes: from the plant's midnight that
+ * starts `from` to the one that ends `to`, so a day is the plant's day, 23 or 25 hours long on clock-change days.
+ */
+export function plantDayRange(from: string, to: string, zone: string): { from?: string; to?: string } {
+  const out: { from?: string; to?: string } = {}
+  if (from) out.from = plantFieldToIso(from, zone)
+  if (to) {
+    const [y, m, d] = to.split('-').map(Number) as [number, number, number]
+    out.to = plantFieldToIso(new Date(Date.UTC(y, m - 1, d + 1)).toISOString().slice(0, 10), zone)
+  }
+  return out
+}

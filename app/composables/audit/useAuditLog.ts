@@ -1,8 +1,9 @@
 import type { AuditPage } from '#shared/types/audit'
+import { plantDayRange } from '~/utils/plant-time'
+import { usePlantTime } from '~/composables/settings/usePlantTime'
 
 export type AuditFilters = { entity: string; entityId: string; action: string; user: string; from: string; to: string }
 
-const dayAfter = (d: string) => new Date(new Date(d).getTime() + 86_400_000).toISOString().slice(0, 10)
 const EMPTY: AuditPage = { page: 1, pageSize: 50, total: 0, pageCount: 1, entries: [], facets: { entities: [], actions: [], users: [] } }
 
 /**
@@ -12,13 +13,15 @@ const EMPTY: AuditPage = { page: 1, pageSize: 50, total: 0, pageCount: 1, entrie
 export function useAuditLog() {
   const route = useRoute()
   const router = useRouter()
+  const { zone } = usePlantTime()
   const q = (k: string) => (typeof route.query[k] === 'string' ? (route.query[k] as string) : '')
   const filters = reactive<AuditFilters>({ entity: q('entity'), entityId: q('entityId'), action: q('action'), user: q('user'), from: q('from'), to: q('to') })
   const page = ref(Number(q('page')) || 1)
 
   const query = computed(() => {
     const out: Record<string, string | number> = { page: page.value, pageSize: 50 }
-    for (const [k, v] of Object.entries(filters)) if (v) out[k] = k === 'to' ? dayAfter(v) : v
+    for (const [k, v] of Object.entries(filters)) if (v && k !== 'from' && k !== 'to') out[k] = v
+    Object.assign(out, plantDayRange(filters.from, filters.to, zone.value))
     return out
   })
   watch(filters, () => { page.value = 1 })

@@ -1,6 +1,8 @@
 import type { PaginationState, SortingState, ColumnVisibilityState } from '@tanstack/vue-table'
 import type { LocationQuery } from 'vue-router'
 import type { LotUnitsPage } from '#shared/types/lot'
+import { plantDayRange } from '~/utils/plant-time'
+import { usePlantTime } from '~/composables/settings/usePlantTime'
 
 export type UnitFilters = { serial: string; verdict: string; minAttempts: string; station: string; from: string; to: string }
 const NO_FILTERS: UnitFilters = { serial: '', verdict: '', minAttempts: '', station: '', from: '', to: '' }
@@ -8,7 +10,6 @@ const FILTER_KEYS = Object.keys(NO_FILTERS) as (keyof UnitFilters)[]
 const SORT_KEY: Record<string, string> = { serial: 'serial', verdict: 'verdict', lastStep: 'step', maxAttempts: 'attempts', runs: 'runs', station: 'station', lastTestedAt: 'date' }
 const SORT_COLUMN = Object.fromEntries(Object.entries(SORT_KEY).map(([col, key]) => [key, col]))
 const PAGE_SIZES = [25, 50, 100, 200]
-const dayAfter = (d: string) => new Date(new Date(d).getTime() + 86_400_000).toISOString().slice(0, 10)
 const one = (v: unknown) => (typeof v === 'string' ? v : Array.isArray(v) && typeof v[0] === 'string' ? v[0] : '')
 
 /** The list's state as the address holds it: filters as typed (`to` is the last day included), sort, page and size. */
@@ -28,6 +29,7 @@ function fromAddress(q: LocationQuery) {
 export function useLotUnits(code: Ref<string>) {
   const route = useRoute()
   const router = useRouter()
+  const { zone } = usePlantTime()
   // the route object follows navigation away too: only this page's addresses are read or written
   const page = route.name
   const onPage = () => route.name === page
@@ -80,8 +82,7 @@ export function useLotUnits(code: Ref<string>) {
     if (f.verdict) q.verdict = f.verdict
     if (f.minAttempts) q.minAttempts = f.minAttempts
     if (f.station) q.station = f.station
-    if (f.from) q.from = f.from
-    if (f.to) q.to = dayAfter(f.to)
+    Object.assign(q, plantDayRange(f.from, f.to, zone.value))
     return q
   })
   const query = computed(() => ({ ...filterQuery.value, page: pagination.value.pageIndex + 1, pageSize: pagination.value.pageSize }))
