@@ -16,6 +16,17 @@ export default defineConfig({
           globalSetup: ['tests/support/server-setup.ts'], testTimeout: 60_000, hookTimeout: 120_000, fileParallelism: false,
         },
       },
+      // hostile input and other fast reliability checks, against the same test server as tests/e2e
+      {
+        test: {
+          name: 'reliability', include: ['tests/reliability/*.test.ts'], environment: 'node',
+          globalSetup: ['tests/support/server-setup.ts'], testTimeout: 300_000, hookTimeout: 120_000, fileParallelism: false,
+        },
+      },
+      // load and fault tests with their own MariaDB and servers: only `npm run test:reliability` runs them
+      ...(process.env.TERCET_FAULTS === '1'
+        ? [{ test: { name: 'faults', include: ['tests/reliability/faults/**/*.test.ts'], environment: 'node', testTimeout: 900_000, hookTimeout: 600_000, fileParallelism: false } }]
+        : []),
       // components, composables and pages of app/, mounted in a Nuxt runtime over happy-dom: no server, no database
       await defineVitestProject({
         // Vite refuses the public-file import Nuxt makes of <img src="/favicon.svg"> ("Denied ID virtual:public?…svg")
