@@ -1,8 +1,7 @@
 // npm run db:backup [-- --database NAME]: a consistent, compressed dump of the database into .data/backups/.
 import { relative } from 'node:path'
-import { loadEnv, root } from './lib/env.mjs'
+import { dbSettings, loadEnv, root } from './lib/env.mjs'
 import { startMariadb } from './lib/mariadb.mjs'
-import { dbSettings } from './lib/env.mjs'
 import { backupDatabase } from './lib/backup.mjs'
 import { fail, log } from './lib/run.mjs'
 
