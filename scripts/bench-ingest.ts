@@ -10,15 +10,13 @@
 // TERCET_BENCH_SECONDS sets the length of each HTTP stage (default 20); TERCET_BENCH_PROFILE=<dir>
 // starts the server with --cpu-prof into that folder; TERCET_WRITE_LANES and TERCET_WRITE_GROUP override the server's
 // number of write groups in flight and their largest size.
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
+import type { ChildProcess } from 'node:child_process'
 import { randomUUID } from 'node:crypto'
-import { existsSync, readFileSync } from 'node:fs'
 import { loadavg } from 'node:os'
-import net from 'node:net'
-import { resolve } from 'node:path'
 import autocannon from 'autocannon'
 import mysql from 'mysql2/promise'
-import { dbSettings, loadEnv, root, serverEnv } from './lib/env.mjs'
+import { dbSettings, loadEnv, serverEnv } from './lib/env.mjs'
+import { HOST, builtEntry, cpuTimes, databasePid, freePort, prepareBenchDatabase, startBuiltServer, stopChild, waitHealthy } from './lib/bench-server'
 import { createKnex } from '../server/database/connection'
 import { generateStationToken } from '../server/utils/station-token'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../server/database/repositories/spec-lookup'
@@ -32,7 +30,6 @@ import { DEMO_PRODUCTS } from '../fixtures/demo-catalogue'
 import { gaussian, generateRun, mulberry32 } from '../fixtures/run-generator'
 
 const DATABASE = 'tercet_bench_ingest'
-const HOST = '127.0.0.1'
 const CONNECTIONS = 32
 const SECONDS = Number(process.env.TERCET_BENCH_SECONDS || 20)
 const RAW_SECONDS = Math.max(6, 2 * Math.round(SECONDS / 4))
@@ -52,24 +49,10 @@ let server: ChildProcess | undefined
 function stopServer(): Promise<void> {
   const child = server
   server = undefined
-  if (!child || child.exitCode !== null) return Promise.resolve()
-  return new Promise((done) => {
-    const hard = setTimeout(() => child.kill('SIGKILL'), 10_000)
-    child.once('exit', () => { clearTimeout(hard); done() })
-    child.kill('SIGTERM')
-  })
+  return stopChild(child)
 }
 for (const sig of ['SIGINT', 'SIGTERM'] as const) process.on(sig, () => { void stopServer().finally(() => process.exit(130)) })
 process.on('exit', () => { server?.kill('SIGKILL') })
-
-function freePort(): Promise<number> {
-  return new Promise((done, fail) => {
-    const s = net.createServer().once('error', fail).listen(0, HOST, () => {
-      const port = (s.address() as net.AddressInfo).port
-      s.close(() => done(port))
-    })
-  })
-}
 
 // ---- bodies ------------------------------------------------------------------------------------
 
@@ -144,16 +127,6 @@ function cannon(port: number, path: string, bodies: Buffer[], tokens: string[], 
       else done({ ...r, used: next })
     })
   })
-}
-
-async function waitHealthy(base: string): Promise<void> {
-  const deadline = Date.now() + 60_000
-  for (;;) {
-    try { if ((await fetch(`${base}/api/health`)).ok) return } catch { /* not listening yet */ }
-    if (!server || server.exitCode !== null) throw new Error('the bench server exited before becoming healthy')
-    if (Date.now() > deadline) throw new Error('the bench server did not become healthy within 60 s')
-    await new Promise((r) => setTimeout(r, 200))
-  }
 }
 
 // ---- yardsticks ----------------------------------------------------------------------------------
@@ -294,33 +267,17 @@ async function questions(pool: mysql.Pool): Promise<number> {
 
 const round = (x: number, d = 1) => Math.round(x * 10 ** d) / 10 ** d
 
-/** User + system CPU seconds a process has used so far (Linux /proc, 100 ticks per second). */
+/** User + system CPU seconds a process has used so far. */
 function cpuSeconds(pid: number): number {
   const t = cpuTimes(pid)
   return t.user + t.system
 }
 
-function cpuTimes(pid: number): { user: number; system: number } {
-  try {
-    const f = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]!.split(' ')
-    return { user: Number(f[11]) / 100, system: Number(f[12]) / 100 }
-  } catch { return { user: Number.NaN, system: Number.NaN } }
-}
-
-/** The project's MariaDB server process, for its CPU use. */
-function databasePid(): number {
-  try { return Number(readFileSync(resolve(root, '.data/mariadb/mysqld.pid'), 'utf8').trim()) } catch { return -1 }
-}
-
 async function main() {
-  const outputDir = resolve(root, process.env.TERCET_OUTPUT_DIR || '.output')
   say('preparing the build and a fresh bench database…')
   // --no-build benchmarks the build already in the output folder, as it is
-  const noBuild = process.argv.includes('--no-build')
-  const prep = spawnSync(process.execPath, [resolve(root, 'scripts/lib/bench-prepare.mjs'), DATABASE, ...(noBuild ? ['--no-build'] : [])], { cwd: root, stdio: ['ignore', 2, 2], env: process.env })
-  if (prep.status !== 0) throw new Error('preparing the build or the bench database failed (see above)')
-  const entry = resolve(outputDir, 'server/index.mjs')
-  if (!existsSync(entry)) throw new Error(`no build at ${entry}`)
+  prepareBenchDatabase(DATABASE, process.argv.includes('--no-build'))
+  const entry = builtEntry()
 
   const env = loadEnv()
   const settings = dbSettings(env, DATABASE)
@@ -372,11 +329,9 @@ async function main() {
     const port = await freePort()
     const base = `http://${HOST}:${port}`
     const profileDir = process.env.TERCET_BENCH_PROFILE
-    server = spawn(process.execPath, [...(profileDir ? ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] : []), entry], {
-      env: { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD, ...(process.env.TERCET_WRITE_LANES ? { TERCET_WRITE_LANES: process.env.TERCET_WRITE_LANES } : {}), ...(process.env.TERCET_WRITE_GROUP ? { TERCET_WRITE_GROUP: process.env.TERCET_WRITE_GROUP } : {}) },
-      stdio: ['ignore', 2, 2],
-    })
-    await waitHealthy(base)
+    server = startBuiltServer(entry, { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD, ...(process.env.TERCET_WRITE_LANES ? { TERCET_WRITE_LANES: process.env.TERCET_WRITE_LANES } : {}), ...(process.env.TERCET_WRITE_GROUP ? { TERCET_WRITE_GROUP: process.env.TERCET_WRITE_GROUP } : {}) },
+      profileDir ? ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] : [])
+    await waitHealthy(base, server)
     const load = loadavg()[0]!
     if (load > 1.5) say(`WARNING: load average ${load.toFixed(1)} before the run: other work on this machine will lower every figure`)
 

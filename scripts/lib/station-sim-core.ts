@@ -92,3 +92,15 @@ export function summaryLine(t: Tally): string {
   const f = [...t.failures].sort(([a], [b]) => a.localeCompare(b)).map(([k, n]) => `${k}×${n}`).join(', ')
   return `station-sim: posted ${t.posted} runs · 201 stored ${t.created} · 200 replayed ${t.replayed} · retests ${t.retests} · failures ${f || 'none'}`
 }
+
+export type SpecLimit = { step: string; name: string; offsetHz?: number; harmonic?: number; lsl: number | null; usl: number | null }
+
+/** The station sequencer's own verdict: plain acceptance against the limits it downloaded. */
+export function stationVerdict(limits: SpecLimit[], run: { step: string; measurements: { name: string; value: number; offsetHz?: number; harmonic?: number }[] }): 'pass' | 'fail' {
+  for (const m of run.measurements) {
+    const q = m.offsetHz ?? m.harmonic ?? 0
+    const l = limits.find((x) => x.step === run.step && x.name === m.name && (x.offsetHz ?? x.harmonic ?? 0) === q)
+    if (l && ((l.lsl != null && m.value < l.lsl) || (l.usl != null && m.value > l.usl))) return 'fail'
+  }
+  return 'pass'
+}

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { DEFAULT_BACKOFF, UsageError, loopbackBase, newTally, parseSimArgs, record, retryDelay, summaryLine } from '../../../scripts/lib/station-sim-core'
+import { DEFAULT_BACKOFF, UsageError, loopbackBase, newTally, parseSimArgs, record, retryDelay, stationVerdict, summaryLine } from '../../../scripts/lib/station-sim-core'
 
 const BASE = ['--url', 'http://127.0.0.1:3000', '--token', 'tst_abc', '--part', 'VFW-T3-375', '--lot', 'T3-SIM-01', '--units', '12']
 
@@ -67,5 +67,23 @@ describe('summaryLine', () => {
     expect(line).toBe('station-sim: posted 7 runs · 201 stored 2 · 200 replayed 1 · retests 1 · failures 422×2, 503×1, network×1')
     expect(line.includes('\n')).toBe(false)
     expect(summaryLine(newTally())).toContain('failures none')
+  })
+})
+
+describe('stationVerdict', () => {
+  const limits = [
+    { step: 'final', name: 'output_power', lsl: 6, usl: 8 },
+    { step: 'final', name: 'phase_noise', offsetHz: 10_000, lsl: null, usl: -140 },
+    { step: 'tune', name: 'output_power', lsl: 7.5, usl: null },
+  ]
+  const run = (step: string, power: number, noise: number) => ({ step, measurements: [{ name: 'output_power', value: power }, { name: 'phase_noise', offsetHz: 10_000, value: noise }, { name: 'phase_noise', offsetHz: 100, value: 0 }] })
+
+  it('fails a value outside the limits of its own step and qualifier, limits inclusive', () => {
+    expect(stationVerdict(limits, run('final', 8, -140))).toBe('pass')
+    expect(stationVerdict(limits, run('final', 8.01, -150))).toBe('fail')
+    expect(stationVerdict(limits, run('final', 7, -139.9))).toBe('fail')
+    // the tune step's own lower limit, and no limit for the 100 Hz offset at all
+    expect(stationVerdict(limits, run('tune', 7, 0))).toBe('fail')
+    expect(stationVerdict(limits, run('tune', 9, 0))).toBe('pass')
   })
 })
