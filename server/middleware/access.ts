@@ -1,6 +1,7 @@
 import { findRule } from '../utils/access-policy'
-import { authenticateStation, loadSessionUser } from '../utils/auth'
+import { authenticateStation } from '../utils/auth'
 import { problem } from '../utils/problem'
+import { checkSession, endSession } from '../utils/session'
 
 /** Deny by default: every /api request must match a rule in API_POLICY and satisfy it. */
 export default defineEventHandler(async (event) => {
@@ -14,15 +15,15 @@ export default defineEventHandler(async (event) => {
     const station = await authenticateStation(event)
     if (station) { event.context.station = station; return }
   }
-  const session = await getUserSession(event)
-  if (!session.user) {
+  const check = await checkSession(event)
+  if (!check.user) {
+    if (check.reason === 'ended') {
+      await endSession(event)
+      throw problem(401, 'This session has ended (signed out elsewhere, password changed or account disabled); sign in again.')
+    }
     throw problem(401, rule.allow.includes('station') ? 'A station token or a signed-in user is required.' : 'Sign in to use this resource.')
   }
-  const user = await loadSessionUser(session.user.id)
-  if (!user || user.disabled) {
-    await clearUserSession(event)
-    throw problem(401, 'This account is disabled or no longer exists.')
-  }
+  const user = check.user
   if (!(rule.allow as string[]).includes(user.role)) throw problem(403, 'Your role does not allow this request.')
   event.context.user = user
 })

@@ -77,7 +77,9 @@ export async function changeUser(db: Knex, actorId: number, id: number, change: 
     if (id === actorId && (change.disabled === true || (change.role && change.role !== 'admin'))) {
       throw refused('You cannot disable your own account or remove your own admin role.', change.disabled ? '/disabled' : '/role')
     }
-    await updateUser(trx, id, { name: change.name, role: change.role, customerId, disabled: change.disabled, passwordHash })
+    // a new password or disabling ends the user's sessions everywhere (enabling again does not revive them)
+    const endSessions = !!passwordHash || change.disabled === true
+    await updateUser(trx, id, { name: change.name, role: change.role, customerId, disabled: change.disabled, passwordHash, endSessions })
     const after = await findUserById(trx, id)
     const action = change.role && change.role !== before.role ? 'role_change' : change.disabled !== undefined && change.disabled !== before.disabled ? (change.disabled ? 'disable' : 'enable') : 'update'
     await writeAudit(trx, { userId: actorId, action, entity: 'user', entityId: id, before: publicView(before), after: { ...publicView(after), passwordChanged: !!passwordHash } })

@@ -15,10 +15,12 @@ const SHIPPING: Caller[] = ['admin', 'quality']
 export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/health', allow: 'public' },
   { method: 'POST', path: '/api/auth/login', allow: 'public' },
+  // the session as the app reads it; signing out goes through /api/auth/sign-out, which sets the cookie's flags
   { method: 'GET', path: '/api/_auth/session', allow: 'public' },
-  { method: 'DELETE', path: '/api/_auth/session', allow: 'public' },
+  { method: 'POST', path: '/api/auth/sign-out', allow: 'public' },
   { method: 'GET', path: '/api/me', allow: [...STAFF, 'customer'] },
   { method: 'POST', path: '/api/me/password', allow: [...STAFF, 'customer'] },
+  { method: 'POST', path: '/api/me/sign-out-everywhere', allow: [...STAFF, 'customer'] },
   // a forgotten password: the same answer for any address, limited per client and per address
   { method: 'POST', path: '/api/auth/password-reset', allow: 'public' },
   { method: 'POST', path: '/api/auth/password-reset/confirm', allow: 'public' },

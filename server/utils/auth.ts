@@ -1,7 +1,7 @@
 import type { H3Event } from 'h3'
 import type { Role } from '../../shared/utils/roles'
 import { findActiveTokensByHint } from '../database/repositories/station-tokens'
-import { findUserById, type UserRecord } from '../database/repositories/users'
+import type { UserRecord } from '../database/repositories/users'
 import { hashToken, hashesEqual, tokenHint, tokenLooksValid } from './station-token'
 import { problem } from './problem'
 
@@ -71,19 +71,4 @@ function noteTokenUse(tokenId: number): void {
   if (now - (tokenTouched.get(tokenId) ?? 0) < 60_000) return
   tokenTouched.set(tokenId, now)
   useDb()('station_tokens').where({ id: tokenId }).update({ last_used_at: new Date(now) }).catch(() => tokenTouched.delete(tokenId))
-}
-
-const userCache = new Map<number, { at: number; user: UserRecord | undefined }>()
-
-/** Reads the session's user from the database, so disabling or re-roling takes effect at once (2 s cache). */
-export async function loadSessionUser(id: number): Promise<UserRecord | undefined> {
-  const hit = userCache.get(id)
-  if (hit && Date.now() - hit.at < 2000) return hit.user
-  const user = await findUserById(useDb(), id)
-  userCache.set(id, { at: Date.now(), user })
-  return user
-}
-
-export function forgetSessionUser(id: number): void {
-  userCache.delete(id)
 }

@@ -16,6 +16,8 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'POST /api/auth/login', allow: 'public' },
   { route: 'GET /api/me', allow: ALL },
   { route: 'POST /api/me/password', allow: ALL },
+  { route: 'POST /api/auth/sign-out', allow: 'public' },
+  { route: 'POST /api/me/sign-out-everywhere', allow: ALL },
   { route: 'POST /api/auth/password-reset', allow: 'public' },
   { route: 'POST /api/auth/password-reset/confirm', allow: 'public' },
   { route: 'GET /api/portal/units', allow: ALL },

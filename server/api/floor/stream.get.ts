@@ -3,7 +3,7 @@ import type { FloorLotsEvent, FloorRunEvent, FloorSnapshot, FloorStationsEvent }
 import { floorLotYields, floorSnapshot, floorStationView, pollRuns } from '../../services/analytics/floor'
 import type { FeedCursor } from '../../services/analytics/floor-cursor'
 import { trackStream } from '../../services/analytics/floor-streams'
-import { loadSessionUser } from '../../utils/auth'
+import { sessionStillValid } from '../../utils/session'
 
 const POLL_MS = 2000
 const HEARTBEAT_MS = 15_000
@@ -18,7 +18,7 @@ function pushComment(stream: EventStream, text: string): void {
 
 export default defineEventHandler((event) => {
   const db = useDb()
-  const userId = event.context.user!.id
+  const user = event.context.user!
   // ?once=1 sends the snapshot and ends the stream, for tools that cannot hold a connection open.
   const once = getQuery(event).once === '1'
   const stream = createEventStream(event)
@@ -73,8 +73,8 @@ export default defineEventHandler((event) => {
     }
     if (closed) return
     beat = setInterval(async () => {
-      const user = await loadSessionUser(userId).catch(() => undefined)
-      if (!user || user.disabled) { await stream.close(); return }
+      // a session ended meanwhile (disabled, password changed, signed out everywhere) ends the stream too
+      if (!(await sessionStillValid(user.id, user.sessionVersion).catch(() => false))) { await stream.close(); return }
       pushComment(stream, 'heartbeat')
     }, HEARTBEAT_MS)
     poll = setTimeout(tick, POLL_MS)

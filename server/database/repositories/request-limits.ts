@@ -21,3 +21,15 @@ export async function countRequest(db: Knex, bucket: string, client: string, now
 export async function dropStaleCounters(db: Knex, before: Date): Promise<void> {
   await db('request_limits').where('window_start', '<', before).delete()
 }
+
+/** The count of `client`'s window in `bucket` as of `now`, without counting anything (0 once the window ended). */
+export async function readWindow(db: Knex, bucket: string, client: string, now: Date, windowMs: number): Promise<{ hits: number; windowStart: Date } | undefined> {
+  const row = await db('request_limits').where({ bucket, client_key: client })
+    .andWhere('window_start', '>', new Date(now.getTime() - windowMs)).first('hits', 'window_start')
+  return row ? { hits: Number(row.hits), windowStart: new Date(row.window_start) } : undefined
+}
+
+/** Forgets `client`'s window in `bucket` (a successful sign-in clears its account's failures). */
+export async function clearWindow(db: Knex, bucket: string, client: string): Promise<void> {
+  await db('request_limits').where({ bucket, client_key: client }).delete()
+}

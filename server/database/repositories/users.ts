@@ -11,14 +11,17 @@ export type UserRecord = {
   disabled: boolean
   lastSignInAt: Date | null
   createdAt: Date
+  /** Sealed into each session at sign-in; a session sealed with another value is ended (see server/utils/session.ts). */
+  sessionVersion: number
 }
 
-const COLUMNS = ['u.id', 'u.email', 'u.name', 'u.role', 'u.customer_id', 'c.name as customer_name', 'u.disabled', 'u.last_sign_in_at', 'u.created_at']
+const COLUMNS = ['u.id', 'u.email', 'u.name', 'u.role', 'u.customer_id', 'c.name as customer_name', 'u.disabled', 'u.last_sign_in_at', 'u.created_at', 'u.session_version']
 
 function toUser(r: any): UserRecord {
   return {
     id: r.id, email: r.email, name: r.name, role: r.role, customerId: r.customer_id ?? null,
     customerName: r.customer_name ?? null, disabled: !!r.disabled, lastSignInAt: r.last_sign_in_at ?? null, createdAt: r.created_at,
+    sessionVersion: Number(r.session_version ?? 0),
   }
 }
 
@@ -48,14 +51,24 @@ export async function insertUser(db: Knex, u: { email: string; name: string; rol
   return id!
 }
 
-export async function updateUser(db: Knex, id: number, patch: Partial<{ name: string; role: Role; customerId: number | null; disabled: boolean; passwordHash: string }>): Promise<void> {
+/**
+ * `endSessions` raises the session version, which ends every session of the user signed in before (the caller
+ * seals the new version into the cookie of a session that should live on).
+ */
+export async function updateUser(db: Knex, id: number, patch: Partial<{ name: string; role: Role; customerId: number | null; disabled: boolean; passwordHash: string; endSessions: boolean }>): Promise<void> {
   const row: Record<string, unknown> = { updated_at: db.fn.now(3) }
+  if (patch.endSessions) row.session_version = db.raw('session_version + 1')
   if (patch.name !== undefined) row.name = patch.name
   if (patch.role !== undefined) row.role = patch.role
   if (patch.customerId !== undefined) row.customer_id = patch.customerId
   if (patch.disabled !== undefined) row.disabled = patch.disabled
   if (patch.passwordHash !== undefined) row.password_hash = patch.passwordHash
   await db('users').where({ id }).update(row)
+}
+
+export async function readSessionVersion(db: Knex, id: number): Promise<number> {
+  const r = await db('users').where({ id }).first('session_version')
+  return Number(r?.session_version ?? 0)
 }
 
 export async function touchSignIn(db: Knex, id: number): Promise<void> {

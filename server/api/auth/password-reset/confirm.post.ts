@@ -6,7 +6,7 @@ const validate = compileSchema<{ token: string; newPassword: string }>(schema)
 
 export default defineEventHandler(async (event) => {
   const body = await readValidBody(event, validate)
-  const { userId } = await confirmPasswordReset(useDb(), { token: body.token, newPassword: body.newPassword, address: clientAddress(event) }, hashPassword)
-  forgetSessionUser(userId)
+  // the new password ends every session of the user (session version raised in the same transaction)
+  await confirmPasswordReset(useDb(), { token: body.token, newPassword: body.newPassword, address: clientAddress(event) }, hashPassword)
   return { changed: true }
 })
