@@ -1,12 +1,15 @@
 import { fileURLToPath } from 'node:url'
 import { defineConfig } from 'vitest/config'
 import { defineVitestProject } from '@nuxt/test-utils/config'
+import AfterAllSequencer from './tests/support/after-all-sequencer'
 
 // app/utils import shared code as the app does; node tests of them resolve the alias the same way
 const alias = { '#shared': fileURLToPath(new URL('./shared', import.meta.url)) }
 
 export default defineConfig({
   test: {
+    // files named *.after-all.test.ts run after the rest of their project (the server log check)
+    sequence: { sequencer: AfterAllSequencer },
     projects: [
       { resolve: { alias }, test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node', testTimeout: 30_000 } },
       { test: { name: 'integration', include: ['tests/integration/**/*.test.ts'], environment: 'node', testTimeout: 60_000, hookTimeout: 120_000, fileParallelism: false } },

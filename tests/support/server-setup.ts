@@ -1,12 +1,13 @@
 // Starts the built server once for the e2e and browser projects, against the test database.
 import { spawn, type ChildProcess } from 'node:child_process'
-import { existsSync } from 'node:fs'
+import { existsSync, rmSync } from 'node:fs'
 import net from 'node:net'
 import { resolve } from 'node:path'
 import type { TestProject } from 'vitest/node'
+import { serverLogDir, teeOutput } from './server-log'
 
 declare module 'vitest' {
-  export interface ProvidedContext { baseUrl: string }
+  export interface ProvidedContext { baseUrl: string; serverLogDir: string }
 }
 
 function freePort(): Promise<number> {
@@ -26,8 +27,12 @@ export async function setup(project: TestProject) {
   const port = await freePort()
   child = spawn(process.execPath, [entry], {
     env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', NODE_ENV: 'production', TERCET_TRUST_PROXY: '1' },
-    stdio: ['ignore', 'inherit', 'inherit'],
+    stdio: ['ignore', 'pipe', 'pipe'],
   })
+  // shown as before, and kept in .data/test-server-logs/<project>/main.log for the log check run after every other file
+  const logDir = serverLogDir(project.name)
+  rmSync(logDir, { recursive: true, force: true })
+  teeOutput(child, resolve(logDir, 'main.log'), { stdout: true, stderr: true })
   let exited: number | null = null
   child.on('exit', (code) => { exited = code ?? -1 })
   const baseUrl = `http://127.0.0.1:${port}`
@@ -42,6 +47,7 @@ export async function setup(project: TestProject) {
     await new Promise((r) => setTimeout(r, 200))
   }
   project.provide('baseUrl', baseUrl)
+  project.provide('serverLogDir', logDir)
 }
 
 export async function teardown() {
