@@ -58,13 +58,19 @@ const round = (x: number, d = 1) => (Number.isFinite(x) ? Math.round(x * 10 ** d
 
 // ---- HTTP ----------------------------------------------------------------------------------------
 
+const networkCauses = new Map<string, number>()
 const agent = new http.Agent({ keepAlive: true, maxSockets: 64 })
 type Reply = { status: number | 'network'; body: string; retryAfter?: number; ms: number; cookies?: string[] }
 
 function request(port: number, method: string, path: string, headers: Record<string, string>, body?: string): Promise<Reply> {
   const t0 = performance.now()
   return new Promise((done) => {
-    const failed = () => done({ status: 'network', body: '', ms: performance.now() - t0 })
+    const failed = (e: NodeJS.ErrnoException) => {
+      // why, for the summary: a connection the server closed while idle, a timeout…
+      const why = e.code ?? e.message
+      networkCauses.set(why, (networkCauses.get(why) ?? 0) + 1)
+      done({ status: 'network', body: '', ms: performance.now() - t0 })
+    }
     const req = http.request({
       host: HOST, port, method, path, agent, timeout: REQUEST_TIMEOUT_MS,
       headers: { accept: 'application/json', ...headers, ...(body !== undefined ? { 'content-type': 'application/json', 'content-length': String(Buffer.byteLength(body)) } : {}) },
@@ -417,7 +423,7 @@ async function main() {
       sent: ledger.sent.size, acknowledged: ledger.acknowledged.size, unacknowledged: ledger.sent.size - ledger.acknowledged.size,
       inDatabase: rec.inDatabase, lost: rec.lost, duplicated: rec.duplicated, unknownInDatabase: rec.unknownInDatabase, runsWithoutMeasurements: Number(bare.n),
       singleRequests: total.single.length, batches: total.batches, p50Ms: pct(total.single, 0.5), p99Ms: pct(total.single, 0.99), batchP99Ms: pct(total.batch, 0.99), ackP99Ms: pct(total.ackDelay, 0.99),
-      errors5xx: total.errors5xx, status503: total.status503, network: total.network, refused: total.refused, refusals,
+      errors5xx: total.errors5xx, status503: total.status503, network: total.network, networkCauses: Object.fromEntries(networkCauses), refused: total.refused, refusals,
       readers: { requests: total.reader.length, p50Ms: pct(total.reader, 0.5), p99Ms: pct(total.reader, 0.99), notOk: total.readerOther },
       rssStartMb: round(rssStartMb), rssFirstMinuteMb: round(firstRss), rssEndMb: round(rssEndMb), rssRiseMb: round(rssRiseMb), maxGrowthMb: args.maxGrowthMb,
       ...flat, flatRule: FLAT_RULE, drainSeconds: round((drainedAt - end) / 1000), serverDied,
