@@ -19,16 +19,19 @@
 // stdout: one JSON line per minute { minute, rssMb, p50Ms, p99Ms, runs, errors5xx, status503, … } where rssMb is the
 // server process's VmRSS at the minute's end, p50/p99 are of station posts' round trips of single runs in that
 // minute, runs are runs acknowledged in it, errors5xx are 5xx answers other than 503 (stations and readers); then
-// one summary line (see `summary` below and FLAT_RULE in lib/soak-core.ts). Progress goes to stderr.
+// one summary line (see `summary` below and FLAT_RULE in lib/soak-core.ts). Progress goes to stderr, the server's
+// own output to .data/soak-server.log (its last lines are shown when the soak fails).
 // Exits 1 on lost or duplicated runs, stored runs no station sent or without measurements, valid runs refused,
 // any 5xx other than 503, the server exiting, or the server's RSS rising more than --max-growth-mb after the first
 // minute; never on a speed figure. --ci marks the summary and calibrates for 20 s (the CI call:
 // `npm run soak -- --minutes 2.5 --ci`).
+import { closeSync, openSync, readFileSync } from 'node:fs'
 import http from 'node:http'
 import { loadavg } from 'node:os'
 import { performance } from 'node:perf_hooks'
 import type { ChildProcess } from 'node:child_process'
-import { dbSettings, loadEnv, serverEnv } from './lib/env.mjs'
+import { resolve } from 'node:path'
+import { dataDir, dbSettings, loadEnv, serverEnv } from './lib/env.mjs'
 import { HOST, builtEntry, databasePid, freePort, prepareBenchDatabase, rssMb, startBuiltServer, stopChild, waitHealthy } from './lib/bench-server'
 import { retryDelay, stationVerdict, type Backoff, type SpecLimit } from './lib/station-sim-core'
 import {
@@ -42,6 +45,7 @@ import { generateRun, mulberry32, type GeneratedRun } from '../fixtures/run-gene
 import signIns from '../fixtures/demo-sign-ins.json'
 
 const DATABASE = 'tercet_soak'
+const SERVER_LOG = resolve(dataDir, 'soak-server.log')
 const STATIONS = 32
 const BATCH_MAX = 50
 const CALIBRATION_WARMUP_S = 5
@@ -292,7 +296,17 @@ async function reader(port: number, what: 'floor' | 'lot', everyMs: number, lots
 
 function pct(xs: number[], p: number) { return round(percentile([...xs].sort((a, b) => a - b), p)) }
 
+/** The end of the server's log, on stderr. */
+function showServerLog() {
+  if (!serverLogged) return
+  try {
+    const lines = readFileSync(SERVER_LOG, 'utf8').trimEnd().split('\n')
+    say(`the server's log ends (all of it in ${SERVER_LOG}):\n${lines.slice(-40).join('\n')}`)
+  } catch { /* no log yet */ }
+}
+
 let server: ChildProcess | undefined
+let serverLogged = false
 let serverDied = false
 for (const sig of ['SIGINT', 'SIGTERM'] as const) process.on(sig, () => { void stopChild(server).finally(() => process.exit(130)) })
 process.on('exit', () => { server?.kill('SIGKILL') })
@@ -318,7 +332,11 @@ async function main() {
       stationIds.push(id!)
       tokens.push(t.token)
     }
-    server = startBuiltServer(entry, { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD })
+    // the server's own log (a line per request) would drown the soak's lines: it goes to a file, shown on failure
+    const logFd = openSync(SERVER_LOG, 'w')
+    serverLogged = true
+    server = startBuiltServer(entry, { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD }, [], logFd)
+    closeSync(logFd)
     server.once('exit', (code, signal) => { if (server) { serverDied = true; say(`the server exited (code ${code}, signal ${signal})`) } })
     await waitHealthy(`http://${HOST}:${port}`, server)
     const pid = server.pid!
@@ -430,6 +448,7 @@ async function main() {
       load1Start: round(load1Start, 2), load1End: round(loadavg()[0]!, 2), lostIds: rec.lostIds, ok: failed.length === 0, failures: failed,
     }
     process.stdout.write(JSON.stringify(summary) + '\n')
+    if (failed.length) showServerLog()
     for (const f of failed) say(`FAILED: ${f}`)
     process.exitCode = failed.length ? 1 : 0
   } finally {
@@ -443,7 +462,7 @@ async function main() {
 
 main().catch(async (e) => {
   if (e instanceof SoakUsageError) process.stderr.write(`soak: ${e.message}\n${SOAK_USAGE}\n`)
-  else process.stderr.write(`[soak] ${e?.stack ?? e}\n`)
+  else { process.stderr.write(`[soak] ${e?.stack ?? e}\n`); showServerLog() }
   const child = server
   server = undefined
   await stopChild(child)

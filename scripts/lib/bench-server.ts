@@ -30,9 +30,9 @@ export function freePort(): Promise<number> {
   })
 }
 
-/** Starts the built server with `env`; its output goes to this process's stderr. */
-export function startBuiltServer(entry: string, env: NodeJS.ProcessEnv, nodeArgs: string[] = []): ChildProcess {
-  return spawn(process.execPath, [...nodeArgs, entry], { env, stdio: ['ignore', 2, 2] })
+/** Starts the built server with `env`; its output goes to `output` (an open file) or else this process's stderr. */
+export function startBuiltServer(entry: string, env: NodeJS.ProcessEnv, nodeArgs: string[] = [], output: number = 2): ChildProcess {
+  return spawn(process.execPath, [...nodeArgs, entry], { env, stdio: ['ignore', output, output] })
 }
 
 export async function waitHealthy(base: string, child: ChildProcess, withinMs = 60_000): Promise<void> {
