@@ -1,6 +1,6 @@
 import type { NitroErrorHandler } from 'nitropack'
 import { getRequestURL, setResponseHeader, setResponseStatus, send } from 'h3'
-import { isDatabaseUnavailable } from './utils/database-unavailable'
+import { databaseFaults } from './utils/database-faults'
 import { problemTitle } from './utils/problem'
 import { RetryLater, RuleError } from './services/rule-error'
 
@@ -19,7 +19,7 @@ function classify(error: any): { status: number; detail: string; data: Record<st
   const cause = error?.cause ?? error
   const code = cause?.code ?? error?.code
   if (code === 'ER_DUP_ENTRY') return { status: 409, detail: 'A record with the same key already exists.', data: {} }
-  if (isDatabaseUnavailable(error)) {
+  if (databaseFaults.fault('request', error)) {
     return { status: 503, detail: 'The database is unavailable; retry later.', data: { headers: { 'Retry-After': '5' } } }
   }
   const status = Number(error?.statusCode ?? error?.status ?? 500)
@@ -31,7 +31,14 @@ function classify(error: any): { status: number; detail: string; data: Record<st
 /** API errors become RFC 9457 problem+json; page errors fall through to Nuxt's own handler. */
 const handler: NitroErrorHandler = async (error, event) => {
   const url = getRequestURL(event)
-  if (!url.pathname.startsWith('/api/')) return
+  if (!url.pathname.startsWith('/api/')) {
+    // a page that met the database away: Nuxt renders app/error.vue with 503 and the browser may try again
+    if (databaseFaults.fault('request', error)) {
+      Object.assign(error, { statusCode: 503, statusMessage: problemTitle(503) })
+      setResponseHeader(event, 'Retry-After', 5)
+    }
+    return
+  }
   const { status, detail, data } = classify(error)
   if (status === 500) console.error(error)
   const { headers, ...rest } = data as { headers?: Record<string, string> }

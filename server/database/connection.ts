@@ -3,6 +3,8 @@ import mysql from 'mysql2'
 
 export type DbConnection = { host: string; port: number; user: string; password: string; database: string }
 
+const CONNECTION_NOISE = /^(Acquire connection error|Connection Error):/
+
 /** One pool per process; UTC throughout, DATETIME(3) read back as Date. */
 export function createKnex(conn: DbConnection, pool = { min: 0, max: 20 }): Knex {
   return knex({
@@ -30,6 +32,11 @@ export function createKnex(conn: DbConnection, pool = { min: 0, max: 20 }): Knex
       },
     },
     acquireConnectionTimeout: 10_000,
+    log: {
+      // knex prints each failed connection attempt with its stack; the error also reaches whoever asked for the
+      // connection, and the server's fault log reports an outage once when it starts and once when it ends
+      warn: (message: string) => { if (!CONNECTION_NOISE.test(String(message))) console.warn(message) },
+    },
   })
 }
 

@@ -26,7 +26,8 @@ export async function setup(project: TestProject) {
   if (!existsSync(entry)) throw new Error('No build found: run the suite with "npm test", which builds first.')
   const port = await freePort()
   child = spawn(process.execPath, [entry], {
-    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', NODE_ENV: 'production', TERCET_TRUST_PROXY: '1' },
+    // the request log (one JSON line per request) would bury the test output
+    env: { TERCET_REQUEST_LOG: 'off', ...process.env, PORT: String(port), HOST: '127.0.0.1', NODE_ENV: 'production', TERCET_TRUST_PROXY: '1' },
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   // shown as before, and kept in .data/test-server-logs/<project>/main.log for the log check run after every other file

@@ -4,6 +4,7 @@ import { floorLotYields, floorSnapshot, floorStationView, pollRuns } from '../..
 import type { FeedCursor } from '../../services/analytics/floor-cursor'
 import { trackStream } from '../../services/analytics/floor-streams'
 import { sessionStillValid } from '../../utils/session'
+import { databaseFaults } from '../../utils/database-faults'
 
 const POLL_MS = 2000
 const HEARTBEAT_MS = 15_000
@@ -54,7 +55,8 @@ export default defineEventHandler((event) => {
         await send('stations', { stations })
       }
     } catch (e) {
-      console.error('floor stream poll failed', e)
+      // the database away: the fault log notes it once and the next poll tries again; the wall keeps its last view
+      if (!databaseFaults.fault('floor stream', e)) console.error('floor stream poll failed', e)
     }
     if (!closed) poll = setTimeout(tick, POLL_MS)
   }
@@ -67,7 +69,8 @@ export default defineEventHandler((event) => {
       await stream.push({ event: 'snapshot', data: JSON.stringify(first.snapshot satisfies FloorSnapshot), retry: RETRY_MS })
       if (once) { await stream.close(); return }
     } catch (e) {
-      console.error('floor stream snapshot failed', e)
+      // the browser's EventSource connects again after the retry delay
+      if (!databaseFaults.fault('floor stream', e)) console.error('floor stream snapshot failed', e)
       await stream.close()
       return
     }

@@ -1,5 +1,5 @@
 import type { Knex } from 'knex'
-import { isDatabaseUnavailable } from '../../utils/database-unavailable'
+import { databaseFaults } from '../../utils/database-faults'
 import { validateRun } from '../../utils/run-validator'
 import { loadRunsWithMeasurements } from '../../database/repositories/runs'
 import { bodyHash } from './canonical'
@@ -18,7 +18,8 @@ const idOf = (item: unknown) => {
 
 /** A run the database could not take: 503 when it was away or busy (the station retries), else 500. */
 export function failedItem(id: string | null, error: unknown): BatchItemResult {
-  const unavailable = isDatabaseUnavailable(error)
+  // a database fault goes to the fault log (once per outage); anything else is a fault of the code, reported in full
+  const unavailable = databaseFaults.fault('batch-run', error)
   if (!unavailable) console.error(error)
   return { id, status: unavailable ? 503 : 500, detail: unavailable ? 'The database is unavailable; retry this run.' : 'This run could not be stored.' }
 }

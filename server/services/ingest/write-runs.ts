@@ -2,6 +2,7 @@
 // transaction of three round trips: lock the units and find replays; insert the runs; write everything that hangs
 // off them and commit. A run placed before runs stored earlier adds one round trip for that unit's history.
 import type { Knex } from 'knex'
+import { isDatabaseUnavailable } from '../../utils/database-unavailable'
 import { sendStatements, withDriverConnection, type SendStatements, type Statement } from '../../database/raw-connection'
 import {
   dropUnitWithoutRuns, firstAttemptFlags, insertedRunIdsCheck, insertedRunRef, lockUnitsWithSteps, rememberFirstRunId, measurementsInsert, pendingStatsInsert, renumberAttempts, runsInsert, statsRebuildMark,
@@ -186,7 +187,8 @@ export async function writeRuns(db: Knex, items: RunToWrite[]): Promise<GroupRes
   try {
     return (await withRetries(() => writeGroup(db, items))).map((outcome) => ({ outcome }))
   } catch (e) {
-    if (items.length === 1) return [{ error: e }]
+    // with the database away, writing each run on its own would only fail again, once per run
+    if (items.length === 1 || isDatabaseUnavailable(e)) return items.map(() => ({ error: e }))
   }
   const out: GroupResult[] = []
   for (const item of items) {

@@ -1,6 +1,7 @@
 import { hostname } from 'node:os'
 import { randomBytes } from 'node:crypto'
 import type { Knex } from 'knex'
+import { isDatabaseUnavailable } from '../../utils/database-unavailable'
 import { leaseDueMail, markMailFailed, markMailSent, type LeasedMail } from '../../database/repositories/mail-outbox'
 
 /** Delivers one message; throws when the relay refuses it or cannot be reached. */
@@ -46,7 +47,23 @@ export async function sendDueMail(db: Knex, deliver: Deliver, owner: string, pol
       await markMailFailed(db, m.id, owner, String(e?.message ?? e), attempts, next)
       continue
     }
-    if (await markMailSent(db, m.id, owner, clock())) sent++
+    if (await markSentOutlastingOutage(() => markMailSent(db, m.id, owner, clock()), policy.leaseMs)) sent++
   }
   return { sent, failed }
+}
+
+/**
+ * The relay took the message; if the database is away just then, marking it sent is tried again for most of the
+ * lease rather than given up, so an outage of a few seconds does not leave it to be sent a second time.
+ */
+async function markSentOutlastingOutage(mark: () => Promise<boolean>, leaseMs: number): Promise<boolean> {
+  const until = Date.now() + leaseMs * 0.8
+  for (let wait = 250; ; wait = Math.min(wait * 2, 4000)) {
+    try {
+      return await mark()
+    } catch (e) {
+      if (!isDatabaseUnavailable(e) || Date.now() + wait > until) throw e
+      await new Promise((r) => setTimeout(r, wait))
+    }
+  }
 }

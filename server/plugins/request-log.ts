@@ -1,0 +1,23 @@
+import { databaseFaults } from '../utils/database-faults'
+import { requestIdFrom, requestLogLine } from '../utils/request-log'
+
+// One JSON line per request on stdout when it ends (TERCET_REQUEST_LOG=off for none), and the probe that tells the
+// fault log when the database answers again after an outage.
+export default defineNitroPlugin((nitro) => {
+  databaseFaults.setProbe(() => useDb().raw('SELECT 1'))
+  nitro.hooks.hook('close', () => { databaseFaults.stop() })
+  if (process.env.TERCET_REQUEST_LOG === 'off') return
+  nitro.hooks.hook('request', (event) => {
+    const req = event.node.req
+    // the renderer's own calls to the API (server-side fetches of a page) are part of the page's request
+    if ('__unenv__' in req) return
+    const id = requestIdFrom(req.headers['x-request-id'])
+    event.context.requestId = id
+    event.node.res.setHeader('X-Request-Id', id)
+    const startedAt = performance.now()
+    event.node.res.once('close', () => {
+      const line = requestLogLine({ method: req.method ?? '', url: req.url ?? '', status: event.node.res.statusCode, startedAt, id })
+      process.stdout.write(JSON.stringify(line) + '\n')
+    })
+  })
+})
