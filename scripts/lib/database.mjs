@@ -3,11 +3,15 @@ import { root, dbSettings, serverEnv } from './env.mjs'
 import { startMariadb, ensureDatabase } from './mariadb.mjs'
 import { runOrFail } from './run.mjs'
 
-/** Starts MariaDB, creates the database and its user, migrates, and seeds the demo when empty. */
-export async function prepareDatabase(env, database, { recreate = false, seed = true, tokenFile } = {}) {
+/**
+ * Starts MariaDB, creates the database and its user, migrates, and seeds the demo when empty. `server` is another
+ * MariaDB than the project's (mariadbInstance() of mariadb.mjs, for tests that stop their own); its port is
+ * env.TERCET_DB_PORT as for the project's.
+ */
+export async function prepareDatabase(env, database, { recreate = false, seed = true, tokenFile, server } = {}) {
   const db = dbSettings(env, database)
-  await startMariadb(db.port)
-  ensureDatabase(db, { recreate })
+  await (server?.startMariadb ?? startMariadb)(db.port)
+  ;(server?.ensureDatabase ?? ensureDatabase)(db, { recreate })
   const args = [resolve(root, 'scripts/db-setup.ts')]
   if (seed) args.push('--seed-demo')
   if (tokenFile) args.push(`--tokens=${tokenFile}`)
