@@ -56,8 +56,13 @@ const BACKOFF: Backoff = { baseMs: 250, capMs: 8000, attempts: Number.MAX_SAFE_I
 const OFFLINE_EVERY_S = 150
 const READERS = [{ what: 'floor', everyMs: 2000 }, { what: 'lot', everyMs: 3000 }, { what: 'lot', everyMs: 3000 }] as const
 
-const say = (m: string) => process.stderr.write(`[soak] ${m}\n`)
+const say = (m: string) => process.stderr.write(`[soak ${new Date().toISOString().slice(11, 19)}] ${m}\n`)
 const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, Math.max(0, ms)))
+let died: () => void = () => {}
+/** Resolves when the server exits during the soak. */
+const death = new Promise<void>((r) => { died = r })
+/** A sleep that ends early when the server exits, so the soak stops at once. */
+const pause = (ms: number) => Promise.race([sleep(ms), death])
 const round = (x: number, d = 1) => (Number.isFinite(x) ? Math.round(x * 10 ** d) / 10 ** d : null)
 
 // ---- HTTP ----------------------------------------------------------------------------------------
@@ -239,9 +244,9 @@ async function uploader(port: number, s: Station, mode: Mode): Promise<void> {
       await s.waitForWork(mode.stopAt() - Date.now())
       continue
     }
-    if (!mode.closed && Date.now() < s.offlineUntil) { await sleep(Math.min(s.offlineUntil, mode.stopAt()) - Date.now()); continue }
+    if (!mode.closed && Date.now() < s.offlineUntil) { await pause(Math.min(s.offlineUntil, mode.stopAt()) - Date.now()); continue }
     const wait = await postOnce(port, s)
-    if (wait > 0) await sleep(Math.min(wait, mode.stopAt() - Date.now()))
+    if (wait > 0) await pause(Math.min(wait, mode.stopAt() - Date.now()))
   }
 }
 
@@ -254,7 +259,8 @@ async function arrivals(s: Station, perSecond: number, until: number, rand: () =
   for (;;) {
     due += (-Math.log(1 - rand()) / perSecond) * 1000
     if (due >= until || serverDied) break
-    await sleep(due - Date.now())
+    await pause(due - Date.now())
+    if (serverDied) break
     if (Date.now() >= s.nextOffline) {
       s.offlineUntil = Date.now() + (10 + rand() * 10) * 1000
       s.nextOffline = s.offlineUntil + (0.5 + rand()) * OFFLINE_EVERY_S * 1000
@@ -264,7 +270,7 @@ async function arrivals(s: Station, perSecond: number, until: number, rand: () =
     s.push(s.make(Math.max(due, s.offlineUntil)))
   }
   // the arrivals are over at `until`, not at the last one before it; an uploader waiting for work learns it then
-  await sleep(until - Date.now())
+  await pause(until - Date.now())
   s.poke()
 }
 
@@ -288,7 +294,7 @@ async function reader(port: number, what: 'floor' | 'lot', everyMs: number, lots
     const r = await request(port, 'GET', path, { cookie })
     both((t) => t.reader.push(r.ms))
     if (r.status !== 200 && !countFailure(r.status)) both((t) => t.readerOther++)
-    await sleep(Math.min(everyMs - r.ms, until() - Date.now()))
+    await pause(Math.min(everyMs - r.ms, until() - Date.now()))
   }
 }
 
@@ -337,7 +343,7 @@ async function main() {
     serverLogged = true
     server = startBuiltServer(entry, { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD }, [], logFd)
     closeSync(logFd)
-    server.once('exit', (code, signal) => { if (server) { serverDied = true; say(`the server exited (code ${code}, signal ${signal})`) } })
+    server.once('exit', (code, signal) => { if (server) { serverDied = true; died(); say(`the server exited (code ${code}, signal ${signal})`) } })
     await waitHealthy(`http://${HOST}:${port}`, server)
     const pid = server.pid!
     const rssStartMb = rssMb(pid)
@@ -399,7 +405,7 @@ async function main() {
     }
     const ticker = (async () => {
       for (let k = 1; start + k * 60_000 <= end; k++) {
-        await sleep(start + k * 60_000 - Date.now())
+        await pause(start + k * 60_000 - Date.now())
         if (serverDied) return
         sample(Date.now())
       }
@@ -460,7 +466,8 @@ async function main() {
   }
 }
 
-main().catch(async (e) => {
+// leftover sleeps (a station's next due run, a retry) would keep the process up until they end
+main().then(() => process.exit(process.exitCode ?? 0), async (e) => {
   if (e instanceof SoakUsageError) process.stderr.write(`soak: ${e.message}\n${SOAK_USAGE}\n`)
   else { process.stderr.write(`[soak] ${e?.stack ?? e}\n`); showServerLog() }
   const child = server
