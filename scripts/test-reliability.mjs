@@ -1,7 +1,8 @@
 // npm run test:reliability: the fault tests (tests/reliability/faults/, vitest project `faults`), each with its own
 // MariaDB on TERCET_FAULTS_DB_PORT (default 3382, data in .data/faults-mariadb) and its own server, never the
-// database npm start and npm test use. Builds first when sources changed, and prints how long each part took.
-// `npm run test:reliability -- tests/reliability/faults/app-kill.test.ts` runs only the named files.
+// database npm start and npm test use; then a 2.5-minute soak (scripts/soak.ts --ci). Builds first when sources
+// changed, and prints how long each part took.
+// `npm run test:reliability -- tests/reliability/faults/app-kill.test.ts` runs only the named files (and no soak).
 import { resolve } from 'node:path'
 import { spawnSync } from 'node:child_process'
 import { ensureNodeModules } from './lib/deps.mjs'
@@ -26,7 +27,15 @@ timed('faults', () => spawnSync(resolve(root, 'node_modules/.bin/vitest'), ['run
   cwd: root, stdio: 'inherit', env,
 }).status ?? 1)
 
-// the soak (scripts/soak.ts) joins here as a further timed part once it lands
+// the soak fails only on correctness (a lost or duplicated run, a 5xx other than 503, the server exiting, RSS beyond
+// a generous bound), never on its speed figures; it has its own database (tercet_soak) on the project's MariaDB,
+// as the benchmarks do
+if (process.argv.length <= 2) {
+  log('running the soak (npm run soak -- --minutes 2.5 --ci)…')
+  timed('soak', () => spawnSync(resolve(root, 'node_modules/.bin/jiti'), [resolve(root, 'scripts/soak.ts'), '--minutes', '2.5', '--ci', '--no-build'], {
+    cwd: root, stdio: 'inherit', env: loadEnv(),
+  }).status ?? 1)
+}
 
 for (const p of parts) process.stdout.write(`${JSON.stringify({ reliability: p.part, seconds: p.seconds, ok: p.ok })}\n`)
 process.exit(parts.every((p) => p.ok) ? 0 : 1)
