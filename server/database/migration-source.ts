@@ -25,6 +25,7 @@ import * as m025 from './migrations/20261202_025_calibration_impacts'
 import * as m026 from './migrations/20261202_026_spec_draft_workflow'
 import * as m027 from './migrations/20261202_027_plant_time_zone'
 import * as m028 from './migrations/20261202_028_engineering_lots'
+import * as m029 from './migrations/20261202_029_import_uploads'
 import * as m030 from './migrations/20261202_030_session_version'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
@@ -57,6 +58,7 @@ const migrations: Record<string, Migration> = {
   '20261202_026_spec_draft_workflow': m026,
   '20261202_027_plant_time_zone': m027,
   '20261202_028_engineering_lots': m028,
+  '20261202_029_import_uploads': m029,
   '20261202_030_session_version': m030,
 }
 

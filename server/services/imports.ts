@@ -1,33 +1,32 @@
-// Historical import of test runs from a file. The upload is first copied to a temporary file while every line
-// is checked (UTF-8 text, and for CSV a known header); a file failing those checks is refused whole before any
-// run is written. The runs are then read back line by line and written in slices through the station batch
-// endpoint's own ingestBatch, so validation, judging, test-time order and idempotency are exactly the station's.
-import { randomUUID } from 'node:crypto'
-import { createReadStream, createWriteStream } from 'node:fs'
-import { unlink } from 'node:fs/promises'
-import { tmpdir } from 'node:os'
-import { join } from 'node:path'
+// Historical import of test runs from a file. The upload is stored in the database in slices as it arrives while
+// every line is checked (import-upload.ts); a file failing those checks is refused whole before any run is written.
+// The runs are then read back from the stored slices and written in slices through the station batch endpoint's own
+// ingestBatch, so validation, judging, test-time order and idempotency are exactly the station's. The instance
+// holding the job's lease does the work; when it dies, another (or the restarted one) carries on after the job's
+// line cursor (import-resume.ts).
+import { createHash, randomUUID } from 'node:crypto'
 import type { Readable } from 'node:stream'
 import type { Knex } from 'knex'
-import {
-  checkRunCsvHeader, CsvRecordJoiner, CsvRunAssembler, describeHeaderProblem, locateCsvPointer, parseCsvRecord,
-  type CsvRun, type CsvRunRow,
-} from '../../shared/utils/run-csv'
 import type { ImportJob } from '../../shared/types/imports'
 import { writeAudit } from '../database/repositories/audit'
 import {
   findImportJob, finishImportJob, insertImportJob, insertRejections, isCancelRequested, lockImportJob, markImportCancelled, requestImportCancel, updateImportProgress,
   type ImportCounts, type ImportFormat, type ImportJobRow, type RejectionRow,
 } from '../database/repositories/imports'
-import { isBlankLine, isUtf8Line, LineSplitter, type RawLine } from '../utils/line-splitter'
+import {
+  deleteUnreceivedImport, deleteUploadChunks, findStoredUpload, importLeaseName, insertUploadChunk, markUploadReceived, readUploadChunk, type StoredUpload,
+} from '../database/repositories/import-uploads'
+import { dropLease, renewHeldLease, takeLease } from '../database/repositories/job-leases'
+import { LineSplitter, type RawLine } from '../utils/line-splitter'
 import { OrderedPipeline } from '../utils/ordered-pipeline'
-import { isStored, type PostResult, type RefusedResult } from './ingest/post-run'
+import { isStored, type PostResult } from './ingest/post-run'
 import { ingestBatch } from './ingest/ingest-batch'
 import type { StationRef } from './ingest/ingest-run'
+import { clip, describeRefusal, importItems, type Item } from './import-items'
+import { IMPORT_WORKER_ID, ImportLeaseLost, importLeaseMs, keepLease } from './import-lease'
+import { MAX_LINE_BYTES, receiveUpload } from './import-upload'
 import { RuleError } from './rule-error'
 
-export const MAX_LINE_BYTES = 2 * 1024 * 1024
-export const MAX_FILE_BYTES = 2 * 1024 ** 3
 const FLUSH_EVERY_RUNS = 200
 // runs are written in slices of the file (at most 100 runs or 256 KiB of lines): attempts follow test time, so slices
 // need no particular order; small slices keep each run's objects short-lived, which bounds the server's memory
@@ -37,165 +36,33 @@ const PARALLEL_CHUNKS = 1
 const WINDOW_CHUNKS = 2
 const WINDOW_BYTES = 16 * 1024 * 1024
 const FLUSH_EVERY_MS = 500
-const MAX_REASON = 1000
 const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ETIMEDOUT', 'ER_CON_COUNT_ERROR'])
 
-type Spooled = { path: string; lines: number; format: ImportFormat }
-
-/** The upload is refused as a whole, before any run of it is written; each message is about the file, not a body field. */
-function refuse(status: 400 | 413, detail: string, messages: string[], extra: Record<string, unknown> = {}): RuleError {
-  return new RuleError(status, detail, messages.map((message) => ({ pointer: '', message })), extra)
-}
+/** Imports this process is working on (the worker takes no more than a few at once). */
+export const activeImports = new Set<string>()
 
 /**
- * Copies the upload to a temporary file, checking each line as it passes. Refuses (RuleError) a CSV whose
- * header names unknown or misses required columns, any line that is not UTF-8, and a file without runs;
- * the rest of a refused upload is read and dropped so that the client receives the answer.
+ * The stored file's lines in order, from its slices, after line `cursor` (a CSV keeps its header). Every byte goes
+ * through `hash`, so the end of the file can be checked against the upload as received.
  */
-export async function spoolUpload(source: Readable, format: ImportFormat): Promise<Spooled> {
-  const path = join(tmpdir(), `tercet-import-${randomUUID()}.part`)
-  const out = createWriteStream(path)
-  let writeError: Error | undefined
-  out.on('error', (e) => { writeError = e })
+async function* storedLines(db: Knex, jobId: string, upload: StoredUpload, cursor: number, format: ImportFormat, hash: ReturnType<typeof createHash>): AsyncGenerator<RawLine> {
   const splitter = new LineSplitter(MAX_LINE_BYTES)
-  let bytes = 0
-  let content = false
-  const check = (l: RawLine) => {
-    if (!l.tooLong && !isUtf8Line(l.bytes)) {
-      throw refuse(400, `Line ${l.number} is not UTF-8 text; save the file as UTF-8 and import it again. Nothing was imported.`, [`line ${l.number}: not valid UTF-8`], { lines: [l.number] })
-    }
-    if (format === 'csv' && l.number === 1) checkCsvHeader(l)
-    else if (l.tooLong || !isBlankLine(l.bytes)) content = true
+  const keep = (l: RawLine) => l.number > cursor || (format === 'csv' && l.number === 1)
+  // the next slice is read while this one is worked through; a read left behind by a stop must not go unhandled
+  const read = (seq: number) => {
+    const p = readUploadChunk(db, jobId, seq)
+    p.catch(() => {})
+    return p
   }
-  try {
-    for await (const chunk of source.iterator({ destroyOnReturn: false }) as AsyncIterable<Buffer>) {
-      bytes += chunk.length
-      if (bytes > MAX_FILE_BYTES) throw refuse(413, `The file is larger than ${MAX_FILE_BYTES} bytes.`, ['file too large'])
-      for (const l of splitter.push(chunk)) check(l)
-      if (writeError) throw writeError
-      if (!out.write(chunk)) await new Promise<void>((r) => out.once('drain', r))
-    }
-    for (const l of splitter.end()) check(l)
-    if ((source as { complete?: boolean }).complete === false) throw new Error('The upload was interrupted.')
-    if (format === 'csv' && splitter.lines === 0) throw refuse(400, 'The CSV file is empty; it needs a header row and one row per measurement.', ['empty file'])
-    if (!content) throw refuse(400, 'The file holds no runs.', ['no runs in the file'])
-    await new Promise<void>((done, fail) => out.end((e?: Error | null) => (e || writeError ? fail(e ?? writeError) : done())))
-    return { path, lines: splitter.lines, format }
-  } catch (e) {
-    source.resume()
-    // the file may not be open yet; removing it before the stream closes would leave it behind
-    const closed = new Promise<void>((r) => out.once('close', () => r()))
-    out.destroy()
-    await closed
-    await unlink(path).catch(() => {})
-    throw e
+  let next = read(0)
+  for (let seq = 0; seq < upload.chunks; seq++) {
+    const chunk = await next
+    if (!chunk) throw new Error(`Slice ${seq} of the stored upload is missing.`)
+    if (seq + 1 < upload.chunks) next = read(seq + 1)
+    hash.update(chunk)
+    for (const l of splitter.push(chunk)) if (keep(l)) yield l
   }
-}
-
-function checkCsvHeader(l: RawLine): void {
-  if (l.tooLong) throw refuse(400, 'The CSV header line is too long.', ['line 1: header too long'])
-  let cells: string[] | undefined
-  try {
-    cells = parseCsvRecord(l.bytes.toString('utf8'))
-  } catch {
-    cells = undefined
-  }
-  if (!cells) throw refuse(400, 'The first line of a CSV file must be its header.', ['line 1: no header'])
-  const h = checkRunCsvHeader(cells)
-  if (!h.ok) {
-    const messages = describeHeaderProblem(h)
-    throw refuse(400, `The CSV header does not fit: ${messages.join('; ')}. Nothing was imported.`, messages, {
-      unknownColumns: h.unknown, missingColumns: h.missing, duplicateColumns: h.duplicate,
-    })
-  }
-}
-
-async function* fileLines(path: string): AsyncGenerator<RawLine> {
-  const splitter = new LineSplitter(MAX_LINE_BYTES)
-  for await (const chunk of createReadStream(path, { highWaterMark: 256 * 1024 })) {
-    for (const l of splitter.push(chunk as Buffer)) yield l
-  }
-  for (const l of splitter.end()) yield l
-}
-
-/** One thing to post, or a line that was refused before posting, or a line that holds nothing. */
-type Item =
-  | { kind: 'run'; line: number; lastLine: number; runId: string | null; body: unknown; bytes: number; locate?: (pointer: string) => { line: number; field: string } }
-  | { kind: 'reject'; line: number; lastLine: number; runId: string | null; status: number; reason: string }
-  | { kind: 'skip'; lastLine: number }
-
-const tooLong = (n: number) => `line ${n} is longer than ${MAX_LINE_BYTES} bytes`
-
-async function* jsonlItems(lines: AsyncIterable<RawLine>): AsyncGenerator<Item> {
-  for await (const l of lines) {
-    if (l.tooLong) { yield { kind: 'reject', line: l.number, lastLine: l.number, runId: null, status: 400, reason: tooLong(l.number) }; continue }
-    if (isBlankLine(l.bytes)) { yield { kind: 'skip', lastLine: l.number }; continue }
-    let body: unknown
-    try {
-      body = JSON.parse(l.bytes.toString('utf8'))
-    } catch (e) {
-      yield { kind: 'reject', line: l.number, lastLine: l.number, runId: null, status: 400, reason: `The line is not valid JSON: ${(e as Error).message}` }
-      continue
-    }
-    const id = (body as { id?: unknown } | null)?.id
-    yield { kind: 'run', line: l.number, lastLine: l.number, runId: typeof id === 'string' ? id : null, body, bytes: l.bytes.length }
-  }
-}
-
-function csvItem(run: CsvRun): Item {
-  const runId = run.id || null
-  if (run.problem) return { kind: 'reject', line: run.problem.line, lastLine: run.lastLine, runId, status: 400, reason: run.problem.reason }
-  return { kind: 'run', line: run.firstLine, lastLine: run.lastLine, runId, body: run.body, bytes: run.bytes, locate: (p) => locateCsvPointer(run, p) }
-}
-
-function csvRow(r: { line: number; text: string; error?: string }): CsvRunRow | undefined {
-  if (r.error) return { line: r.line, error: r.error, text: r.text }
-  try {
-    const cells = parseCsvRecord(r.text)
-    return cells && cells.some((c) => c.trim() !== '') ? { line: r.line, cells } : undefined
-  } catch (e) {
-    return { line: r.line, error: (e as Error).message, text: r.text }
-  }
-}
-
-async function* csvItems(lines: AsyncIterable<RawLine>): AsyncGenerator<Item> {
-  let assembler: CsvRunAssembler | undefined
-  const joiner = new CsvRecordJoiner()
-  for await (const l of lines) {
-    if (l.number === 1) {
-      const h = checkRunCsvHeader(parseCsvRecord(l.bytes.toString('utf8')) ?? [])
-      if (!h.ok) throw new Error('The CSV header changed after it was checked.')
-      assembler = new CsvRunAssembler(h.columns)
-      yield { kind: 'skip', lastLine: 1 }
-      continue
-    }
-    const r = l.tooLong ? { line: l.number, text: '', error: tooLong(l.number) } : joiner.push(l.bytes.toString('utf8'), l.number)
-    const row = r && csvRow(r)
-    const done = row && assembler!.push(row)
-    if (done) yield csvItem(done)
-  }
-  const rest = joiner.end()
-  const row = rest && csvRow(rest)
-  const done = row && assembler?.push(row)
-  if (done) yield csvItem(done)
-  const last = assembler?.end()
-  if (last) yield csvItem(last)
-}
-
-function clip(s: string, n = MAX_REASON): string {
-  return s.length <= n ? s : s.slice(0, n - 1) + '…'
-}
-
-/** The line a refused run is recorded at and why, in the file's own terms. */
-function describeRefusal(item: Extract<Item, { kind: 'run' }>, r: RefusedResult): { line: number; reason: string } {
-  const errors = r.errors ?? []
-  if (!item.locate) {
-    const parts = errors.map((e) => `${e.pointer || '/'}: ${e.message}`)
-    return { line: item.line, reason: clip([r.detail, ...parts].join(' ')) }
-  }
-  const located = errors.map((e) => ({ ...item.locate!(e.pointer), message: e.message }))
-  const parts = located.map((e) => `line ${e.line} ${e.field}: ${e.message}`)
-  return { line: located[0]?.line ?? item.line, reason: clip([r.detail, ...parts].join(' ')) }
+  for (const l of splitter.end()) if (keep(l)) yield l
 }
 
 function isUnavailable(e: any): boolean {
@@ -218,24 +85,37 @@ async function writeChunk(db: Knex, station: StationRef, items: Item[]): Promise
   })
 }
 
-export type ImportContext = { jobId: string; userId: number; station: StationRef; fileName: string; format: ImportFormat }
+type ImportContext = { jobId: string; userId: number; station: StationRef; fileName: string; format: ImportFormat; linesTotal: number }
 
-/** Posts every run of the spooled file and keeps the job row current; the job ends done or failed, with its audit row. */
-export async function processImport(db: Knex, ctx: ImportContext, spooled: Spooled): Promise<void> {
-  const counts: ImportCounts = { linesDone: 0, runsDone: 0, runsCreated: 0, runsReplayed: 0, runsRejected: 0 }
+/**
+ * Posts every run of the stored file after the job's line cursor and keeps the job row current; the job ends done,
+ * failed or cancelled with its audit row, its stored upload deleted and its lease dropped in that same transaction.
+ * Every progress write renews the lease inside its transaction, so a worker that lost the lease writes nothing more.
+ */
+async function processImport(db: Knex, job: ImportJobRow, upload: StoredUpload): Promise<void> {
+  const ctx: ImportContext = { jobId: job.id, userId: job.createdBy.id, station: job.station, fileName: job.fileName, format: job.format, linesTotal: job.linesTotal ?? 0 }
+  const lease = importLeaseName(job.id)
+  const leaseMs = importLeaseMs()
+  const keeper = keepLease(db, lease, IMPORT_WORKER_ID, leaseMs)
+  const counts: ImportCounts = { linesDone: job.linesDone, runsDone: job.runsDone, runsCreated: job.runsCreated, runsReplayed: job.runsReplayed, runsRejected: job.runsRejected }
+  const cursor = job.linesDone
   let pending: RejectionRow[] = []
   let lastFlush = Date.now()
   let sinceFlush = 0
 
+  const fence = async (trx: Knex.Transaction) => {
+    if (keeper.lost() || !(await renewHeldLease(trx, lease, IMPORT_WORKER_ID, leaseMs))) throw new ImportLeaseLost(ctx.jobId)
+  }
   // rejections and the counters that include them move together; each progress write also looks for a cancel
   const flush = async (): Promise<boolean> => {
     const batch = pending
-    pending = []
     const cancel = await db.transaction(async (trx) => {
+      await fence(trx)
       await insertRejections(trx, ctx.jobId, batch)
       await updateImportProgress(trx, ctx.jobId, counts)
       return isCancelRequested(trx, ctx.jobId)
     })
+    pending = []
     lastFlush = Date.now()
     sinceFlush = 0
     return cancel
@@ -246,16 +126,18 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
   }
 
   const finish = async (status: 'done' | 'failed' | 'cancelled', error: string | null) => {
-    const batch = pending
-    pending = []
     await db.transaction(async (trx) => {
-      await insertRejections(trx, ctx.jobId, batch)
+      await fence(trx)
+      await insertRejections(trx, ctx.jobId, pending)
       await finishImportJob(trx, ctx.jobId, status, counts, error)
+      await deleteUploadChunks(trx, ctx.jobId)
       await writeAudit(trx, {
         userId: ctx.userId, stationId: ctx.station.id, action: 'import', entity: 'import_job', entityId: ctx.jobId,
-        after: { fileName: ctx.fileName, format: ctx.format, station: ctx.station.name, status, linesTotal: spooled.lines, ...counts, error },
+        after: { fileName: ctx.fileName, format: ctx.format, station: ctx.station.name, status, linesTotal: ctx.linesTotal, uploadBytes: upload.bytes, uploadSha256: upload.sha256, resumes: job.resumes, ...counts, error },
       })
+      await dropLease(trx, lease)
     })
+    pending = []
   }
 
   const apply = (o: Outcome) => {
@@ -293,10 +175,11 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
     for (const outcomes of await pipeline.push(null, bytes, () => writeChunk(db, ctx.station, items))) for (const o of outcomes) apply(o)
   }
   let cancelled = false
+  const hash = createHash('sha256')
   try {
-    const lines = fileLines(spooled.path)
-    const items = ctx.format === 'csv' ? csvItems(lines) : jsonlItems(lines)
-    for await (const item of items) {
+    for await (const item of importItems(ctx.format, storedLines(db, ctx.jobId, upload, cursor, ctx.format, hash))) {
+      // a CSV's header is read again on a resumed run but was counted before
+      if (item.lastLine <= cursor) continue
       chunk.push(item)
       if (item.kind === 'run') { chunkRuns++; chunkBytes += item.bytes }
       if (chunkRuns >= CHUNK_RUNS || chunkBytes >= CHUNK_BYTES) await pushChunk()
@@ -308,32 +191,70 @@ export async function processImport(db: Knex, ctx: ImportContext, spooled: Spool
     // the slices already handed over are finished either way: each run is stored whole or not at all
     for (const outcomes of await pipeline.finish()) for (const o of outcomes) apply(o)
     if (cancelled) {
-      await finish('cancelled', `Stopped after line ${counts.linesDone} of ${spooled.lines}; the runs before it are stored. Importing the file again continues (stored runs are replayed).`)
+      await finish('cancelled', `Stopped after line ${counts.linesDone} of ${ctx.linesTotal}; the runs before it are stored. Importing the file again continues (stored runs are replayed).`)
       return
     }
-    counts.linesDone = spooled.lines
+    if (hash.digest('hex') !== upload.sha256) {
+      await finish('failed', 'The stored upload no longer matches the file as received (its SHA-256 differs); import the file again to continue (stored runs are replayed).')
+      return
+    }
+    counts.linesDone = ctx.linesTotal
     await finish('done', null)
   } catch (e: any) {
-    console.error(e)
     await pipeline.settle()
-    const message = isUnavailable(e) ? 'The database became unavailable; import the file again to continue (stored runs are replayed).' : 'The import stopped because of an internal error; import the file again to continue.'
-    await finish('failed', message).catch((f) => console.error(f))
+    if (e instanceof ImportLeaseLost) return
+    // the database away: the job stays running, its lease runs out and a worker carries it on once it is back
+    if (isUnavailable(e)) { console.warn(`[tercet] import ${ctx.jobId} paused: ${e?.message ?? e}`); return }
+    console.error(e)
+    await finish('failed', 'The import stopped because of an internal error; import the file again to continue (stored runs are replayed).').catch((f) => console.error(f))
   } finally {
-    await unlink(spooled.path).catch(() => {})
+    keeper.stop()
   }
 }
 
-/** Spools the upload, creates the job and starts posting its runs; answers once the whole file is received. */
-export async function startImport(db: Knex, opts: Omit<ImportContext, 'jobId'>, source: Readable): Promise<ImportJobRow> {
-  const spooled = await spoolUpload(source, opts.format)
-  const jobId = randomUUID()
+/** Works through a job whose lease this process holds, from its line cursor to its end. */
+export async function runImport(db: Knex, jobId: string): Promise<void> {
+  if (activeImports.has(jobId)) return
+  activeImports.add(jobId)
   try {
-    await insertImportJob(db, { id: jobId, createdBy: opts.userId, stationId: opts.station.id, fileName: opts.fileName, format: opts.format, linesTotal: spooled.lines })
+    const job = await findImportJob(db, jobId)
+    const upload = await findStoredUpload(db, jobId)
+    if (!job || job.status !== 'running' || !upload) return
+    await processImport(db, job, upload)
   } catch (e) {
-    await unlink(spooled.path).catch(() => {})
-    throw e
+    console.error(e)
+  } finally {
+    activeImports.delete(jobId)
   }
-  void processImport(db, { ...opts, jobId }, spooled)
+}
+
+export type ImportRequest = { userId: number; station: StationRef; fileName: string; format: ImportFormat }
+
+/**
+ * Stores the upload in the database as it arrives (the job is not listed until the file is received whole), then
+ * starts posting its runs; answers once the whole file is received. A refused or broken upload leaves nothing behind.
+ */
+export async function startImport(db: Knex, req: ImportRequest, source: Readable): Promise<ImportJobRow> {
+  const jobId = randomUUID()
+  const lease = importLeaseName(jobId)
+  await db.transaction(async (trx) => {
+    await insertImportJob(trx, { id: jobId, createdBy: req.userId, stationId: req.station.id, fileName: req.fileName, format: req.format })
+    await takeLease(trx, lease, IMPORT_WORKER_ID, importLeaseMs())
+  })
+  const keeper = keepLease(db, lease)
+  try {
+    const received = await receiveUpload(source, req.format, (seq, bytes) => insertUploadChunk(db, jobId, seq, bytes))
+    await markUploadReceived(db, jobId, received)
+  } catch (e) {
+    await db.transaction(async (trx) => {
+      await deleteUnreceivedImport(trx, jobId)
+      await dropLease(trx, lease)
+    }).catch((f) => console.error(f))
+    throw e
+  } finally {
+    keeper.stop()
+  }
+  void runImport(db, jobId)
   return (await findImportJob(db, jobId))!
 }
 
@@ -341,7 +262,8 @@ const STALLED_MS = 2 * 60_000
 
 /**
  * Stops a running import. Its worker stops at its next progress write (within half a second); a stalled job, whose
- * worker went with a stopped server, is marked cancelled at once. Runs stored before the stop stay.
+ * worker went with a stopped server, is marked cancelled at once, its stored upload deleted and its lease dropped in
+ * the same transaction (a worker that took it on meanwhile then loses its lease and stops). Runs stored stay.
  */
 export async function cancelImport(db: Knex, actorId: number, id: string, now = new Date()): Promise<ImportJob> {
   await db.transaction(async (trx) => {
@@ -349,8 +271,11 @@ export async function cancelImport(db: Knex, actorId: number, id: string, now = 
     if (!job) throw new RuleError(404, 'No such import.')
     if (job.status !== 'running') throw new RuleError(409, `The import has already ${job.status === 'done' ? 'finished' : job.status === 'failed' ? 'stopped' : 'been cancelled'}.`, [], { importStatus: job.status })
     const stalled = importJobView(job, now).stalled
-    if (stalled) await markImportCancelled(trx, id, actorId, 'Cancelled after its server stopped; importing the file again continues (stored runs are replayed).')
-    else await requestImportCancel(trx, id, actorId)
+    if (stalled) {
+      await markImportCancelled(trx, id, actorId, 'Cancelled after its server stopped; importing the file again continues (stored runs are replayed).')
+      await deleteUploadChunks(trx, id)
+      await dropLease(trx, importLeaseName(id))
+    } else await requestImportCancel(trx, id, actorId)
     await writeAudit(trx, {
       userId: actorId, action: 'cancel', entity: 'import_job', entityId: id,
       before: { status: job.status, runsDone: job.runsDone }, after: { status: stalled ? 'cancelled' : 'running', cancelRequested: true, stalled },

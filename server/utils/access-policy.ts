@@ -163,6 +163,7 @@ export const API_POLICY: Rule[] = [
   { method: 'GET', path: '/api/imports/:id', allow: ['admin', 'engineer'] },
   { method: 'GET', path: '/api/imports/:id/rejections.csv', allow: ['admin', 'engineer'] },
   { method: 'POST', path: '/api/imports/:id/cancel', allow: ['admin', 'engineer'] },
+  { method: 'POST', path: '/api/imports/:id/resume', allow: ['admin', 'engineer'] },
 ]
 
 export { STAFF as STAFF_CALLERS, ENGINEERING as ENGINEERING_CALLERS }

@@ -22,7 +22,11 @@ export type ImportJob = ImportCounts & {
   /** someone asked to stop the import: set until its worker stops, and kept afterwards */
   cancelRequestedAt: string | null
   cancelledBy: { id: number; name: string } | null
-  /** running, but its counters stopped moving: its server was stopped */
+  /** the size of the upload as received and kept until the import ends */
+  uploadBytes: number | null
+  /** how many times another server (or a restarted one) carried the import on from its last recorded line */
+  resumes: number
+  /** running, but its counters stopped moving and no server has taken it on */
   stalled: boolean
 }
 

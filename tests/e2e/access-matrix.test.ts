@@ -138,6 +138,7 @@ const MATRIX: { route: string; sample?: string; allow: Who[] | 'public' }[] = [
   { route: 'GET /api/imports/:id', sample: '/api/imports/00000000-0000-4000-8000-000000000000', allow: ['admin', 'engineer'] },
   { route: 'GET /api/imports/:id/rejections.csv', sample: '/api/imports/00000000-0000-4000-8000-000000000000/rejections.csv', allow: ['admin', 'engineer'] },
   { route: 'POST /api/imports/:id/cancel', sample: '/api/imports/00000000-0000-4000-8000-000000000000/cancel', allow: ['admin', 'engineer'] },
+  { route: 'POST /api/imports/:id/resume', sample: '/api/imports/00000000-0000-4000-8000-000000000000/resume', allow: ['admin', 'engineer'] },
 ]
 
 const cookies: Partial<Record<Who, string>> = {}

@@ -1,5 +1,6 @@
 import { spawnSync } from 'node:child_process'
-import { randomUUID } from 'node:crypto'
+import { createHash, randomUUID } from 'node:crypto'
+import http from 'node:http'
 import { resolve } from 'node:path'
 import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -23,9 +24,9 @@ afterAll(async () => {
   await db.destroy()
 })
 
-async function upload(body: string | Buffer, q: Record<string, string>, cookie = admin) {
+async function upload(body: string | Buffer, q: Record<string, string>, cookie = admin, type = 'application/octet-stream') {
   const r = await fetch(`${baseUrl()}/api/imports?${new URLSearchParams(q)}`, {
-    method: 'POST', headers: { cookie, 'content-type': 'application/octet-stream', accept: 'application/json' }, body,
+    method: 'POST', headers: { cookie, 'content-type': type, accept: 'application/json' }, body,
   })
   return { status: r.status, headers: r.headers, body: await r.json() as any }
 }
@@ -167,12 +168,12 @@ describe('CSV import', () => {
 })
 
 describe('refused uploads', () => {
-  it('a file that is not UTF-8 is refused whole with 400, nothing stored', async () => {
+  it('a file that is not UTF-8 is refused whole with 422, nothing stored', async () => {
     const good = tripleRun()
     const latin1 = Buffer.from(JSON.stringify({ ...tripleRun(), operator: 'Jürgen' }) + '\n', 'latin1')
     const body = Buffer.concat([Buffer.from(JSON.stringify(good) + '\n'), latin1])
     const r = await upload(body, { station: STATION, format: 'jsonl' })
-    expect(r.status).toBe(400)
+    expect(r.status).toBe(422)
     expect(r.body.lines).toEqual([2])
     expect(r.body.detail).toMatch(/Line 2 is not UTF-8/)
     expect(await storedRuns([good.id])).toHaveLength(0)
@@ -254,7 +255,7 @@ describe('cancelling an import', () => {
     const station = await db('stations').where({ name: STATION }).first('id')
     const user = await db('users').where({ email: ROLE_ACCOUNTS.admin }).first('id')
     const old = new Date(Date.now() - 10 * 60_000)
-    await db('import_jobs').insert({ id, created_by: user.id, station_id: station.id, file_name: 'left-behind.jsonl', format: 'jsonl', lines_total: 10, started_at: old, updated_at: old })
+    await db('import_jobs').insert({ id, created_by: user.id, station_id: station.id, file_name: 'left-behind.jsonl', format: 'jsonl', lines_total: 10, started_at: old, updated_at: old, received_at: old })
     expect((await call('GET', `/api/imports/${id}`, { cookie: admin })).body.stalled).toBe(true)
     const r = await call('POST', `/api/imports/${id}/cancel`, { cookie: admin })
     expect(r.status).toBe(200)
@@ -293,6 +294,207 @@ describe('access', () => {
   }
 })
 
+const sha256 = (b: string | Buffer) => createHash('sha256').update(b).digest('hex')
+const leaseName = (id: string) => `import:${id.replace(/-/g, '')}`
+
+/**
+ * An import as an instance that died would leave it: the file stored in slices of `sliceBytes` (cut mid-line on
+ * purpose), the job running with its line cursor at `linesDone`, and its lease held by a gone worker until `leaseUntil`.
+ */
+async function leftBehind(file: string, opts: { linesDone?: number; leaseUntil: Date; sliceBytes?: number; received?: boolean; startedAt?: Date }) {
+  const id = randomUUID()
+  const station = await db('stations').where({ name: STATION }).first('id')
+  const user = await db('users').where({ email: ROLE_ACCOUNTS.engineer }).first('id')
+  const bytes = Buffer.from(file)
+  const size = opts.sliceBytes ?? 700
+  const slices: Buffer[] = []
+  for (let at = 0; at < bytes.length; at += size) slices.push(bytes.subarray(at, at + size))
+  const received = opts.received ?? true
+  const startedAt = opts.startedAt ?? new Date()
+  // the lease first: a running job without one is free for the worker to take
+  await db('job_leases').insert({ name: leaseName(id), owner: 'gone-host:1:000000', lease_until: opts.leaseUntil })
+  await db('import_jobs').insert({
+    id, created_by: user.id, station_id: station.id, file_name: 'left-behind.jsonl', format: 'jsonl', started_at: startedAt, updated_at: startedAt,
+    lines_total: received ? file.split('\n').length - (file.endsWith('\n') ? 1 : 0) : null, lines_done: opts.linesDone ?? 0,
+    upload_bytes: received ? bytes.length : null, upload_sha256: received ? sha256(bytes) : null, upload_chunks: received ? slices.length : null,
+    received_at: received ? startedAt : null,
+  })
+  await db('import_upload_chunks').insert(slices.map((b, seq) => ({ import_id: id, seq, bytes: b })))
+  return { id, slices: slices.length }
+}
+
+const chunksOf = async (id: string) => Number((await db('import_upload_chunks').where({ import_id: id }).count({ n: '*' }).first())!.n)
+
+describe('the upload kept in the database', () => {
+  it('stores the file in slices with its size and SHA-256, and deletes the slices when the import ends', async () => {
+    // about 2.7 MB: more than two slices of 1 MiB
+    const runs = Array.from({ length: 2600 }, () => tripleRun({ lot: `T3-CH-${Date.now().toString(36)}` }))
+    const file = runs.map((r) => JSON.stringify(r)).join('\n') + '\n'
+    expect(file.length).toBeGreaterThan(2.5 * 1024 * 1024)
+    const r = await upload(file, { station: STATION, format: 'jsonl', fileName: 'slices.jsonl' })
+    expect(r.status).toBe(202)
+    expect(r.body.job).toMatchObject({ uploadBytes: Buffer.byteLength(file), linesTotal: runs.length, resumes: 0 })
+    const row = await db('import_jobs').where({ id: r.body.jobId }).first('upload_sha256', 'upload_chunks', 'received_at')
+    expect(row.upload_sha256).toBe(sha256(file))
+    // slices close at the first stream chunk past 1 MiB: two full ones and the rest
+    expect(row.upload_chunks).toBe(3)
+    expect(row.received_at).not.toBeNull()
+    const job = await settled(r.body.jobId)
+    expect(job).toMatchObject({ status: 'done', runsCreated: runs.length, linesDone: runs.length })
+    expect(await chunksOf(job.id)).toBe(0)
+    expect(await db('job_leases').where({ name: leaseName(job.id) }).first()).toBeUndefined()
+    const audit = await db('audit_log').where({ entity: 'import_job', entity_id: job.id, action: 'import' }).first('after')
+    expect(typeof audit.after === 'string' ? JSON.parse(audit.after) : audit.after).toMatchObject({ uploadBytes: Buffer.byteLength(file), uploadSha256: sha256(file), status: 'done' })
+  }, 120_000)
+
+  it('a refused upload leaves no job, no slices and no lease behind', async () => {
+    const before = Number((await db('import_jobs').count({ n: '*' }).first())!.n)
+    const chunks = Number((await db('import_upload_chunks').count({ n: '*' }).first())!.n)
+    const good = JSON.stringify(tripleRun()) + '\n'
+    const r = await upload(good.repeat(800) + '{"a":"\u0000"}\n', { station: STATION, format: 'jsonl' })
+    expect(r.status).toBe(422)
+    expect(Number((await db('import_jobs').count({ n: '*' }).first())!.n)).toBe(before)
+    expect(Number((await db('import_upload_chunks').count({ n: '*' }).first())!.n)).toBe(chunks)
+  })
+})
+
+describe('carrying on an import left behind', () => {
+  it('a worker takes an import whose lease ran out and finishes it from the stored slices', async () => {
+    const runs = Array.from({ length: 6 }, () => tripleRun())
+    const { id } = await leftBehind(runs.map((r) => JSON.stringify(r)).join('\n') + '\n', { leaseUntil: new Date(Date.now() - 1000) })
+    const job = await settled(id)
+    expect(job).toMatchObject({ status: 'done', runsCreated: 6, runsRejected: 0, linesDone: 6, resumes: 1 })
+    expect(await storedRuns(runs.map((r) => r.id))).toHaveLength(6)
+    expect(await chunksOf(id)).toBe(0)
+    const actions = (await db('audit_log').where({ entity: 'import_job', entity_id: id }).orderBy('id')).map((a: any) => a.action)
+    expect(actions).toEqual(['resume', 'import'])
+  })
+
+  it('starts after the line cursor: lines recorded as done are not posted again', async () => {
+    const runs = Array.from({ length: 5 }, () => tripleRun())
+    const { id } = await leftBehind(runs.map((r) => JSON.stringify(r)).join('\n') + '\n', { linesDone: 2, leaseUntil: new Date(Date.now() - 1000), sliceBytes: 333 })
+    const job = await settled(id)
+    expect(job).toMatchObject({ status: 'done', runsCreated: 3, linesDone: 5, resumes: 1 })
+    const stored = (await storedRuns(runs.map((r) => r.id))).map((r: any) => r.uuid)
+    expect(stored.sort()).toEqual(runs.slice(2).map((r) => r.id).sort())
+  })
+
+  it('leaves an import alone while its lease is held, and takes it once the lease runs out', async () => {
+    const runs = [tripleRun(), tripleRun()]
+    const { id } = await leftBehind(runs.map((r) => JSON.stringify(r)).join('\n'), { leaseUntil: new Date(Date.now() + 60_000) })
+    await new Promise((res) => setTimeout(res, 2500))
+    const held = await db('import_jobs').where({ id }).first('status', 'resumes')
+    expect(held).toMatchObject({ status: 'running', resumes: 0 })
+    expect(await storedRuns(runs.map((r) => r.id))).toHaveLength(0)
+    await db('job_leases').where({ name: leaseName(id) }).update({ lease_until: new Date(Date.now() - 1) })
+    expect(await settled(id)).toMatchObject({ status: 'done', runsCreated: 2, resumes: 1 })
+  })
+
+  it('fails an import whose stored slices no longer match the upload, deleting them', async () => {
+    const runs = [tripleRun(), tripleRun()]
+    const { id } = await leftBehind(runs.map((r) => JSON.stringify(r)).join('\n') + '\n', { leaseUntil: new Date(Date.now() + 60_000) })
+    await db('import_jobs').where({ id }).update({ upload_sha256: sha256('something else') })
+    await db('job_leases').where({ name: leaseName(id) }).update({ lease_until: new Date(Date.now() - 1) })
+    const job = await settled(id)
+    expect(job.status).toBe('failed')
+    expect(job.error).toMatch(/SHA-256/)
+    expect(await chunksOf(id)).toBe(0)
+  })
+
+  it('removes an upload that never arrived whole once its lease ran out, with its slices', async () => {
+    const { id } = await leftBehind(JSON.stringify(tripleRun()) + '\n{"id":', { received: false, leaseUntil: new Date(Date.now() - 1000), startedAt: new Date(Date.now() - 5 * 60_000) })
+    expect((await call('GET', `/api/imports/${id}`, { cookie: admin })).status).toBe(404)
+    const deadline = Date.now() + 10_000
+    while (await db('import_jobs').where({ id }).first('id')) {
+      if (Date.now() > deadline) throw new Error('the unfinished upload was not removed')
+      await new Promise((res) => setTimeout(res, 200))
+    }
+    expect(await chunksOf(id)).toBe(0)
+  })
+
+  it('cancelling a stalled import deletes its stored upload in the same step', async () => {
+    const old = new Date(Date.now() - 10 * 60_000)
+    const { id } = await leftBehind(JSON.stringify(tripleRun()) + '\n', { leaseUntil: new Date(Date.now() + 60_000), startedAt: old })
+    const r = await call('POST', `/api/imports/${id}/cancel`, { cookie: admin })
+    expect(r.status).toBe(200)
+    expect(r.body.status).toBe('cancelled')
+    expect(await chunksOf(id)).toBe(0)
+    expect(await db('job_leases').where({ name: leaseName(id) }).first()).toBeUndefined()
+  })
+})
+
+/** Sends a request declaring `length` bytes but only a few of them, and returns the status the server answers with. */
+function declaredOnly(path: string, length: number, headers: Record<string, string>): Promise<{ status: number; body: any }> {
+  return new Promise((done, fail) => {
+    const req = http.request(baseUrl() + path, { method: 'POST', headers: { ...headers, 'content-length': String(length), accept: 'application/json' } }, (res) => {
+      let text = ''
+      res.on('data', (c) => { text += c })
+      res.on('end', () => { req.destroy(); done({ status: res.statusCode!, body: JSON.parse(text) }) })
+    })
+    req.on('error', fail)
+    req.write('{"id":"x"}\n')
+  })
+}
+
+describe('upload checks', () => {
+  it('answers 413 problem+json before reading a body declared beyond 2 GiB', async () => {
+    const r = await declaredOnly(`/api/imports?station=${STATION}&format=jsonl`, 3 * 1024 ** 3, { cookie: admin, 'content-type': 'application/x-ndjson' })
+    expect(r.status).toBe(413)
+    expect(r.body).toMatchObject({ status: 413, maxBytes: 2 * 1024 ** 3 })
+  })
+
+  it('answers 415 for a declared type that is not the format, a form, or another charset', async () => {
+    const body = JSON.stringify(tripleRun())
+    for (const [type, format] of [['application/pdf', 'jsonl'], ['image/png', 'csv'], ['application/x-ndjson', 'csv'], ['multipart/form-data; boundary=x', 'jsonl'], ['text/plain; charset=iso-8859-1', 'jsonl']]) {
+      const r = await upload(body, { station: STATION, format: format! }, admin, type)
+      expect(r.status, type).toBe(415)
+      expect(r.body.type ?? r.body.title).toBeDefined()
+    }
+    const ok = await upload(JSON.stringify(tripleRun()), { station: STATION, format: 'jsonl', fileName: 'ok.jsonl' }, admin, 'application/x-ndjson; charset=utf-8')
+    expect(ok.status).toBe(202)
+  })
+
+  it('answers 422 for a PDF sent as JSON Lines, whatever its declared type', async () => {
+    const pdf = '%PDF-1.7\n1 0 obj\n<< /Type /Catalog >>\nendobj\n%%EOF\n'
+    const r = await upload(pdf, { station: STATION, format: 'jsonl' }, admin, 'text/plain')
+    expect(r.status).toBe(422)
+    expect(r.body.detail).toMatch(/PDF document, not JSON Lines/)
+  })
+
+  it('keeps the client\'s file name only as a name to show: no path, no control characters', async () => {
+    const job = await importFile(JSON.stringify(tripleRun()), 'jsonl').then(async () => {
+      const r = await upload(JSON.stringify(tripleRun()), { station: STATION, format: 'jsonl', fileName: '../../../etc/cron.d/\u202etxt.jsonl\u0000' })
+      expect(r.status).toBe(202)
+      return settled(r.body.jobId)
+    })
+    expect(job.fileName).toBe('txt.jsonl')
+  })
+})
+
+describe('resuming a stuck import by hand', () => {
+  it('carries it on at once from the kept file, counting one resume', async () => {
+    const runs = Array.from({ length: 200 }, () => tripleRun())
+    const { id } = await leftBehind(runs.map((r) => JSON.stringify(r)).join('\n') + '\n', { leaseUntil: new Date(Date.now() - 1000) })
+    const r = await call('POST', `/api/imports/${id}/resume`, { cookie: engineer })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body.status).toBe('running')
+    expect(await settled(id)).toMatchObject({ status: 'done', runsCreated: 200, resumes: 1 })
+    expect((await call('POST', `/api/imports/${id}/resume`, { cookie: engineer })).status).toBe(409)
+  })
+
+  it('is refused with 409 while another server holds the lease, and 404 for an unknown import', async () => {
+    const { id } = await leftBehind(JSON.stringify(tripleRun()) + '\n', { leaseUntil: new Date(Date.now() + 60_000) })
+    const r = await call('POST', `/api/imports/${id}/resume`, { cookie: admin })
+    expect(r.status).toBe(409)
+    expect(r.body.detail).toMatch(/Another server/)
+    expect((await db('import_jobs').where({ id }).first('resumes')).resumes).toBe(0)
+    expect((await call('POST', `/api/imports/${randomUUID()}/resume`, { cookie: admin })).status).toBe(404)
+    await db('job_leases').where({ name: leaseName(id) }).update({ lease_until: new Date(Date.now() - 1) })
+    await settled(id)
+  })
+})
+
+// last: spawnSync blocks this process's event loop, so sockets the server closes meanwhile look open to the next request
 describe('memory', () => {
   it('a 5,000-run import (over 30 MB) grows the server by less than 150 MB', () => {
     const db = `${process.env.TERCET_TEST_DB || 'tercet_test'}_memcheck`

@@ -97,6 +97,21 @@ export function useImportJob(changed: () => Promise<unknown>) {
     }
   }
 
+  /** Carries a stuck import on from its kept file; polling then follows it. */
+  async function resume() {
+    if (!job.value) return
+    message.value = null
+    try {
+      const j = await $fetch<ImportJob>(`/api/imports/${job.value.id}/resume`, { method: 'POST' })
+      job.value = { ...j, rejections: job.value.rejections }
+      phase.value = 'processing'
+      timer = setTimeout(() => poll(j.id), 500)
+      await changed()
+    } catch (e: any) {
+      message.value = e?.data?.detail ?? 'The import could not be resumed.'
+    }
+  }
+
   async function open(j: ImportJob) {
     if (busy.value) return
     message.value = null
@@ -111,7 +126,7 @@ export function useImportJob(changed: () => Promise<unknown>) {
   }
 
   onBeforeUnmount(() => clearTimeout(timer))
-  return { phase, sent, job, message, problems, cancelling, busy, uploadPct, processPct, start, cancel, open }
+  return { phase, sent, job, message, problems, cancelling, busy, uploadPct, processPct, start, cancel, resume, open }
 }
 
 export type ImportJobHandle = ReturnType<typeof useImportJob>

@@ -1,8 +1,15 @@
 import { findStationByName, type ImportFormat } from '../../database/repositories/imports'
 import { importJobView, startImport } from '../../services/imports'
+import { MAX_FILE_BYTES } from '../../services/import-upload'
+import { displayFileName } from '../../../shared/utils/upload-text'
 import type { ImportStarted } from '../../../shared/types/imports'
 
 const FORMATS: ImportFormat[] = ['jsonl', 'csv']
+// what browsers and tools label such files with; '' and octet-stream say nothing, and the content is sniffed anyway
+const TYPES: Record<ImportFormat, string[]> = {
+  jsonl: ['', 'application/octet-stream', 'application/x-ndjson', 'application/jsonl', 'application/x-jsonlines', 'application/json-lines', 'text/plain'],
+  csv: ['', 'application/octet-stream', 'text/csv', 'text/plain', 'application/csv', 'application/vnd.ms-excel'],
+}
 
 function queryText(v: unknown): string {
   return typeof v === 'string' ? v.trim() : ''
@@ -19,15 +26,16 @@ export default defineEventHandler(async (event): Promise<ImportStarted> => {
   if (!FORMATS.includes(format)) errors.push({ pointer: '', message: 'query parameter "format" must be jsonl or csv' })
   if (errors.length) throw problem(400, 'Name the station the runs belong to and the file format.', { errors })
 
-  const type = (getHeader(event, 'content-type') ?? '').toLowerCase()
-  if (type.startsWith('multipart/')) throw problem(415, 'Send the file itself as the request body, not as a form.')
+  if (mediaTypeOf(event).startsWith('multipart/')) throw problem(415, 'Send the file itself as the request body, not as a form.')
+  requireMediaType(event, TYPES[format], format === 'csv' ? 'a CSV file (text/csv)' : 'a JSON Lines file (application/x-ndjson)')
+  requireDeclaredLength(event, MAX_FILE_BYTES)
 
   const db = useDb()
   const station = await findStationByName(db, stationName)
   if (!station) throw problem(400, `There is no station named "${stationName}".`, { errors: [{ pointer: '', message: 'query parameter "station": no such station' }] })
 
-  // eslint-disable-next-line no-control-regex -- control characters are exactly what a stored file name must lose
-  const fileName = (queryText(q.fileName).replace(/[\u0000-\u001f\\/]/g, '_').slice(0, 255)) || `upload.${format}`
+  // the client's name for its file is kept as data only, to show; the upload itself goes to the database
+  const fileName = displayFileName(q.fileName, `upload.${format}`, 255)
   const job = await startImport(db, { userId: user.id, station, fileName, format }, event.node.req)
   setResponseStatus(event, 202)
   setResponseHeader(event, 'Location', `/api/imports/${job.id}`)

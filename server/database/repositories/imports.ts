@@ -18,8 +18,9 @@ export async function findStationByName(db: Knex, name: string): Promise<{ id: n
   return r ? { id: r.id, name: r.name } : undefined
 }
 
-export async function insertImportJob(db: Knex, j: { id: string; createdBy: number; stationId: number; fileName: string; format: ImportFormat; linesTotal: number }): Promise<void> {
-  await db('import_jobs').insert({ id: j.id, created_by: j.createdBy, station_id: j.stationId, file_name: j.fileName, format: j.format, lines_total: j.linesTotal })
+/** The job of an upload that is starting to arrive; it is listed once the file is received whole (markUploadReceived). */
+export async function insertImportJob(db: Knex, j: { id: string; createdBy: number; stationId: number; fileName: string; format: ImportFormat }): Promise<void> {
+  await db('import_jobs').insert({ id: j.id, created_by: j.createdBy, station_id: j.stationId, file_name: j.fileName, format: j.format })
 }
 
 function countColumns(c: ImportCounts) {
@@ -61,6 +62,7 @@ function base(db: Knex) {
     .join('users as u', 'u.id', 'j.created_by')
     .leftJoin('users as c', 'c.id', 'j.cancelled_by')
     .select('j.*', 's.name as station_name', 'u.name as user_name', 'c.name as cancelled_by_name')
+    .whereNotNull('j.received_at')
 }
 
 function toJob(r: any): ImportJobRow {
@@ -71,6 +73,7 @@ function toJob(r: any): ImportJobRow {
     runsReplayed: r.runs_replayed, runsRejected: r.runs_rejected,
     startedAt: r.started_at, updatedAt: r.updated_at, finishedAt: r.finished_at ?? null, error: r.error ?? null,
     cancelRequestedAt: r.cancel_requested_at ?? null, cancelledBy: r.cancelled_by ? { id: r.cancelled_by, name: r.cancelled_by_name ?? '' } : null,
+    uploadBytes: r.upload_bytes === null || r.upload_bytes === undefined ? null : Number(r.upload_bytes), resumes: Number(r.resumes ?? 0),
   }
 }
 

@@ -31,3 +31,17 @@ export async function claimPeriodicRun(db: Knex, name: string, everyMs: number, 
     [now, name, new Date(now.getTime() - everyMs)])
   return Number((r as { affectedRows?: number }).affectedRows ?? 0) === 1
 }
+
+/**
+ * Extends the lease of its holder inside the caller's transaction; false when another instance took it meanwhile.
+ * The updated row stays locked until the transaction ends, so nobody takes the lease between this check and commit.
+ */
+export async function renewHeldLease(db: Knex, name: string, owner: string, ms: number, now = new Date()): Promise<boolean> {
+  const [r] = await db.raw('UPDATE job_leases SET lease_until = ? WHERE name = ? AND owner = ?', [new Date(now.getTime() + ms), name, owner])
+  return Number((r as { affectedRows?: number }).affectedRows ?? 0) === 1
+}
+
+/** Removes a lease whose job has ended for good. */
+export async function dropLease(db: Knex, name: string): Promise<void> {
+  await db('job_leases').where({ name }).del()
+}
