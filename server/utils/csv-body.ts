@@ -1,4 +1,5 @@
 import type { H3Event } from 'h3'
+import { binaryKind } from '../../shared/utils/upload-text'
 import { problem } from './problem'
 
 // Browsers label a .csv upload variously; all of these are plain text.
@@ -13,5 +14,13 @@ export async function readCsvBody(event: H3Event, maxBytes: number): Promise<str
   const raw = await readRawBody(event, false)
   if (raw && raw.length > maxBytes) throw problem(413, `The file is larger than ${maxBytes} bytes.`)
   if (!raw || raw.length === 0) throw problem(400, 'The request has no CSV body.', { errors: [{ pointer: '', message: 'a CSV file is required' }] })
-  return new TextDecoder('utf-8', { fatal: false }).decode(raw)
+  // the content decides, not the declared type: text in UTF-8 without NUL bytes, not a workbook or a PDF renamed .csv
+  const kind = binaryKind(raw.subarray(0, 16))
+  if (kind) throw problem(422, `The file is ${kind}, not CSV text.`, { errors: [{ pointer: '', message: `the file is ${kind}` }], detectedKind: kind })
+  if (raw.includes(0)) throw problem(422, 'The file holds NUL bytes: it is not CSV text.', { errors: [{ pointer: '', message: 'NUL bytes: not a text file' }] })
+  try {
+    return new TextDecoder('utf-8', { fatal: true }).decode(raw)
+  } catch {
+    throw problem(422, 'The file is not UTF-8 text; save it as CSV in UTF-8 and import it again.', { errors: [{ pointer: '', message: 'not valid UTF-8' }] })
+  }
 }

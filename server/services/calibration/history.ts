@@ -13,6 +13,7 @@ import {
 } from '../../database/repositories/calibration'
 import { RuleError } from '../rule-error'
 import { decodeCertificatePdf } from './certificate-file'
+import { displayFileName } from '../../../shared/utils/upload-text'
 import { openImpactReview } from './impact-open'
 import { rejudgeRuns, runsTouchedByHolding, runsTouchedByRecords, type RejudgeSummary } from './rejudge'
 
@@ -178,7 +179,8 @@ export async function addCalibration(db: Knex, actorId: number | null, instrumen
   return historyChange(db, async (trx) => {
     const instrument = await lockedInstrument(trx, instrumentId)
     const id = await insertRecord(trx, { instrumentId, ...fields, asFound: input.asFound, calibratedOn, dueAt, createdBy: actorId })
-    const fileName = input.certificateFileName?.trim() || null
+    // the client's name for the document, kept only to show: never a path, never used to find the file
+    const fileName = displayFileName(input.certificateFileName, '') || null
     if (file?.ok) await insertCertificate(trx, { recordId: id, pdf: file.pdf, sha256: file.sha256, fileName })
     const rejudged = await rejudgeRuns(trx, await runsTouchedByRecords(trx, instrumentId, calibratedOn))
     await writeAudit(trx, {

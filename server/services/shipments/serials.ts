@@ -6,12 +6,15 @@ import { findShipment, lockShipment } from '../../database/repositories/shipment
 import {
   countShipmentUnits, deleteShipmentUnits, insertShipmentUnits, productSteps, stepStatesOf, unitsBySerials, unitsOfLot, type SerialMatch,
 } from '../../database/repositories/shipment-units'
+import { binaryKind, headBytes, notTextReason } from '../../../shared/utils/upload-text'
 import { RuleError } from '../rule-error'
 import { classifyLines, countVerdicts, parseSerialLines, type ClassifiedRow, type ListLine, type Standing } from './serial-list'
 import { overallVerdict } from './unit-verdict'
 
 export const MAX_SHIPMENT_UNITS = 10_000
 export const MAX_LIST_LINES = 10_000
+/** 10,000 lines of up to 300 characters, as JSON, with room to spare */
+export const MAX_LIST_BODY_BYTES = 4 * 1024 * 1024
 
 export type SerialRequest = { lines?: string[]; firstLine?: number; lot?: string; serials?: string[] }
 
@@ -31,8 +34,24 @@ function group(units: readonly SerialMatch[]): Map<string, SerialMatch[]> {
   return out
 }
 
+/**
+ * A list is text, one serial a line: a file of another kind read as text (a PDF, a workbook) is refused whole, as is
+ * a line holding NUL, control characters or bytes that were not UTF-8, each named by its pointer.
+ */
+function textOnly(lines: readonly string[], firstLine: number): void {
+  const kind = lines.length ? binaryKind(headBytes(lines[0]!)) : undefined
+  if (kind && firstLine === 1) throw new RuleError(422, `The list is ${kind}, not text with one serial a line.`, [{ pointer: '/lines/0', message: `the file is ${kind}` }], { detectedKind: kind })
+  const bad: { pointer: string; message: string }[] = []
+  lines.forEach((l, i) => {
+    const why = notTextReason(l)
+    if (why && bad.length < 20) bad.push({ pointer: `/lines/${i}`, message: `line ${firstLine + i} ${why}` })
+  })
+  if (bad.length) throw new RuleError(422, 'The list is not plain text: save it as UTF-8 text with one serial a line. Nothing was checked or added.', bad)
+}
+
 /** The rows of a request: a typed or uploaded list, or a lot (all its units, or the chosen serials of it). */
 async function check(db: Knex, shipment: { id: number; partNumber: string | null }, req: SerialRequest): Promise<ClassifiedRow[]> {
+  if (req.lines) textOnly(req.lines, req.firstLine ?? 1)
   if (req.lot !== undefined) {
     const units = await unitsOfLot(db, req.lot)
     if (!units) throw new RuleError(422, `No lot ${req.lot}.`, [{ pointer: '/lot', message: 'no such lot' }])

@@ -1,12 +1,12 @@
 import schema from '../../../../../shared/schemas/shipment-serials.schema.json'
 import { compileSchema } from '../../../../utils/run-validator'
-import { addSerials, type SerialRequest } from '../../../../services/shipments/serials'
+import { addSerials, MAX_LIST_BODY_BYTES, type SerialRequest } from '../../../../services/shipments/serials'
 
 const validate = compileSchema<SerialRequest>(schema)
 
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'shipment')
-  const body = await readValidBody(event, validate)
+  const body = await readValidUpload(event, validate, MAX_LIST_BODY_BYTES)
   return addSerials(useDb(), actor.id, id, body)
 })
