@@ -9,7 +9,7 @@ let rig: Rig
 beforeAll(async () => { rig = await startRig() })
 afterAll(async () => { await rig?.close() })
 
-type Probe = { status: number | 'network'; ms: number; retryAfter: string | null; path: string }
+type Probe = { status: number | 'network'; ms: number; retryAfter: string | null; path: string; at: number; end: number }
 
 /** Asks the API and a page every half second while the database is away: what they answer and how fast. */
 function probeWhileDown(url: string, cookie: string) {
@@ -17,12 +17,13 @@ function probeWhileDown(url: string, cookie: string) {
   let on = true
   const one = async (path: string, headers: Record<string, string> = {}) => {
     const t0 = performance.now()
+    const at = Date.now()
     try {
       const r = await fetch(url + path, { headers: { cookie, ...headers }, signal: AbortSignal.timeout(30_000), redirect: 'manual' })
       await r.text()
-      seen.push({ status: r.status, ms: performance.now() - t0, retryAfter: r.headers.get('retry-after'), path })
+      seen.push({ status: r.status, ms: performance.now() - t0, retryAfter: r.headers.get('retry-after'), path, at, end: Date.now() })
     } catch {
-      seen.push({ status: 'network', ms: performance.now() - t0, retryAfter: null, path })
+      seen.push({ status: 'network', ms: performance.now() - t0, retryAfter: null, path, at, end: Date.now() })
     }
   }
   const loop = (async () => {
@@ -48,7 +49,9 @@ async function outage(how: 'clean' | 'kill', downMs: number, tag: string) {
   const probe = probeWhileDown(rig.app.url, cookie)
   const t0 = Date.now()
   await rig.stopDb(how)
+  const downAt = Date.now()
   await sleep(downMs)
+  const upAt = Date.now()
   await rig.startDb()
   const outageS = (Date.now() - t0) / 1000
   await untilStored(load, 150)
@@ -56,13 +59,21 @@ async function outage(how: 'clean' | 'kill', downMs: number, tag: string) {
   load.stop()
   await load.done
   const f = await load.figures(rig.db)
-  const down = probe.seen.filter((p) => p.status !== 200)
+  // while the database was certainly away (down, and not yet being started again) every answer is 503 with
+  // Retry-After: the API's, and a signed-in page's (the error page, not a redirect to the sign-in page)
+  const whileDown = probe.seen.filter((p) => p.at >= downAt && p.end <= upAt)
   const probes = {
-    answered503: down.filter((p) => p.status === 503).length,
-    without503RetryAfter: down.filter((p) => p.status === 503 && !p.retryAfter).length,
-    other: down.filter((p) => p.status !== 503 && p.status !== 302).map((p) => `${p.path} ${p.status}`),
+    whileDown: whileDown.length,
+    answered503: whileDown.filter((p) => p.status === 503).length,
+    without503RetryAfter: whileDown.filter((p) => p.status === 503 && !p.retryAfter).length,
+    other: [
+      ...whileDown.filter((p) => p.status !== 503).map((p) => `${p.path} ${p.status}`),
+      // around the outage too, never a 5xx other than 503 nor a dropped connection
+      ...probe.seen.filter((p) => p.status === 'network' || (p.status >= 500 && p.status !== 503)).map((p) => `${p.path} ${p.status}`),
+    ],
     slowestMs: Math.round(Math.max(0, ...probe.seen.map((p) => p.ms))),
     pageStatuses: [...new Set(probe.seen.filter((p) => p.path === '/lots').map((p) => p.status))],
+    pageStatusesWhileDown: [...new Set(whileDown.filter((p) => p.path === '/lots').map((p) => p.status))],
   }
   process.stdout.write(JSON.stringify({ test: `database ${how === 'clean' ? 'stopped' : 'killed'}`, outageS, ...f, probes }) + '\n')
   return { f, probes }
