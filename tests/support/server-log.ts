@@ -4,9 +4,12 @@ import type { ChildProcess } from 'node:child_process'
 import { closeSync, mkdirSync, openSync, writeSync } from 'node:fs'
 import { dirname, resolve } from 'node:path'
 
-/** The folder of one project's server logs; emptied when its main test server starts. */
+/**
+ * The folder of one project's server logs, per test database so that two runs side by side keep apart; emptied
+ * when its main test server starts.
+ */
 export function serverLogDir(project: string): string {
-  return resolve(process.cwd(), process.env.TERCET_SERVER_LOG_DIR || '.data/test-server-logs', project)
+  return resolve(process.cwd(), process.env.TERCET_SERVER_LOG_DIR || '.data/test-server-logs', process.env.NUXT_DB_DATABASE || 'tercet_test', project)
 }
 
 /**
