@@ -181,6 +181,8 @@ export function baseChart(height: number, extra: Record<string, unknown> = {}, m
     background: 'transparent',
     parentHeightOffset: 0,
     redrawOnParentResize: true,
+    // the library's sheet comes as a file (nuxt.config.ts css); its inline <style> would need the page's CSP nonce
+    injectStyleSheet: false,
     ...extra,
   }
 }

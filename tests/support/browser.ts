@@ -1,17 +1,55 @@
 import { mkdirSync } from 'node:fs'
 import { resolve } from 'node:path'
-import { chromium, type Browser, type Page } from 'playwright-core'
+import { afterEach, expect } from 'vitest'
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
 import { DEMO_PASSWORD, freshAddress } from './http'
 
 export const ARTIFACTS = resolve(process.cwd(), 'tests/artifacts')
 
+// Every page a browser test opens reports what the Content-Security-Policy refused, both as Chromium's console
+// error and as the page's securitypolicyviolation event; each test ends by asserting there was none.
+const CSP_MARK = '[csp-violation]'
+const cspViolations: string[] = []
+
+afterEach(() => {
+  const found = cspViolations.splice(0)
+  expect(found, 'Content-Security-Policy violations').toEqual([])
+})
+
+function watchPage(page: Page): void {
+  page.on('console', (m) => {
+    const text = m.text()
+    if (m.type() === 'error' && (text.includes('Content Security Policy') || text.startsWith(CSP_MARK))) cspViolations.push(`${page.url()} ${text}`)
+  })
+}
+
+async function watchContext(context: BrowserContext): Promise<BrowserContext> {
+  context.on('page', watchPage)
+  await context.addInitScript((mark: string) => {
+    document.addEventListener('securitypolicyviolation', (e) => {
+      console.error(`${mark} ${e.effectiveDirective} refused ${e.blockedURI || 'inline'} at ${e.sourceFile}:${e.lineNumber} ${e.sample}`)
+    }, true)
+  }, CSP_MARK)
+  return context
+}
+
 export async function launchBrowser(): Promise<Browser> {
   mkdirSync(ARTIFACTS, { recursive: true })
-  return chromium.launch({
+  const browser = await chromium.launch({
     executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
     headless: true,
     args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-quic', '--no-first-run', '--disable-component-update', '--disable-sync'],
   })
+  const newContext = browser.newContext.bind(browser)
+  browser.newContext = async (options) => watchContext(await newContext(options))
+  const newPage = browser.newPage.bind(browser)
+  browser.newPage = async (options) => {
+    const page = await newPage(options)
+    await watchContext(page.context())
+    watchPage(page)
+    return page
+  }
+  return browser
 }
 
 /** Signs in through the form, as a person would. */
