@@ -8,8 +8,9 @@ export default defineNuxtConfig({
   devtools: { enabled: false },
   telemetry: false,
   modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils', '@nuxt/eslint', 'nuxt-security'], // @nuxt/eslint only writes the lint config (eslint.config.mjs)
-  // the charting library's own sheet is served as a file (its inline <style> is off: chart-theme.ts), before the house look over it
-  css: ['~/assets/css/main.css', 'apexcharts/dist/apexcharts.css', '~/assets/css/charts.css'],
+  // the charting library's sheet is served as a file (its inline <style> is off: chart-theme.ts), first in the cascade
+  // as when the library put it at the top of <head>; the house look (charts.css) comes over it
+  css: ['apexcharts/dist/apexcharts.css', '~/assets/css/main.css', '~/assets/css/charts.css'],
   // response headers and the page CSP (DEVELOPERS.md, "Security headers")
   security: {
     nonce: true,
