@@ -1,21 +1,15 @@
-import type { H3Event } from 'h3'
+import { servedOverHttps } from '../utils/session'
 
 // Additions to what nuxt-security sends (nuxt.config.ts `security`; DEVELOPERS.md, "Security headers").
 
 const HSTS = 'max-age=31536000'
 const NONCE_SLOT = "'nonce-{{nonce}}'"
 
-/** HTTPS as the client sees it: TLS here, or X-Forwarded-Proto from a declared reverse proxy. */
-function overHttps(event: H3Event): boolean {
-  if ((event.node.req.socket as { encrypted?: boolean }).encrypted) return true
-  return process.env.TERCET_TRUST_PROXY === '1' && getHeader(event, 'x-forwarded-proto')?.split(',')[0]?.trim() === 'https'
-}
-
 export default defineNitroPlugin((nitro) => {
   // Strict-Transport-Security only on answers that travel over HTTPS: the app also runs on plain HTTP inside a plant,
   // where the header means nothing, and sibling hosts of the domain are not the app's to bind (no includeSubDomains).
   nitro.hooks.hook('request', (event) => {
-    if (overHttps(event)) setResponseHeader(event, 'Strict-Transport-Security', HSTS)
+    if (servedOverHttps(event)) setResponseHeader(event, 'Strict-Transport-Security', HSTS)
   })
   // nuxt-security fills the request's nonce into the page CSP only when it renders HTML; a page route that redirects
   // instead would carry the placeholder itself
