@@ -1,19 +1,18 @@
 import type { H3Event } from 'h3'
 import { binaryKind } from '../../shared/utils/upload-text'
 import { problem } from './problem'
+import { readBytesLimited, refuseContentEncoding } from './json-body'
 
 // Browsers label a .csv upload variously; all of these are plain text.
 const CSV_TYPES = ['text/csv', 'text/plain', 'application/csv', 'application/vnd.ms-excel']
 
-/** Reads a text/csv body of at most maxBytes as UTF-8: 415 for another type, 413 beyond the size, 400 when empty. */
+/** Reads a text/csv body of at most maxBytes as UTF-8: 415 for another type or a compressed body, 413 beyond the size, 400 when empty. */
 export async function readCsvBody(event: H3Event, maxBytes: number): Promise<string> {
   const type = (getHeader(event, 'content-type') ?? '').split(';')[0]!.trim().toLowerCase()
   if (!CSV_TYPES.includes(type)) throw problem(415, 'Send the limit table as text/csv.', { errors: [{ pointer: '', message: `content type ${type || '(none)'} is not text/csv` }] })
-  const declared = Number(getHeader(event, 'content-length') ?? NaN)
-  if (Number.isFinite(declared) && declared > maxBytes) throw problem(413, `The file is larger than ${maxBytes} bytes.`)
-  const raw = await readRawBody(event, false)
-  if (raw && raw.length > maxBytes) throw problem(413, `The file is larger than ${maxBytes} bytes.`)
-  if (!raw || raw.length === 0) throw problem(400, 'The request has no CSV body.', { errors: [{ pointer: '', message: 'a CSV file is required' }] })
+  refuseContentEncoding(event)
+  const raw = await readBytesLimited(event, maxBytes)
+  if (raw.length === 0) throw problem(400, 'The request has no CSV body.', { errors: [{ pointer: '', message: 'a CSV file is required' }] })
   // the content decides, not the declared type: text in UTF-8 without NUL bytes, not a workbook or a PDF renamed .csv
   const kind = binaryKind(raw.subarray(0, 16))
   if (kind) throw problem(422, `The file is ${kind}, not CSV text.`, { errors: [{ pointer: '', message: `the file is ${kind}` }], detectedKind: kind })

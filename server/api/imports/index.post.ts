@@ -29,6 +29,7 @@ export default defineEventHandler(async (event): Promise<ImportStarted> => {
   if (mediaTypeOf(event).startsWith('multipart/')) throw problem(415, 'Send the file itself as the request body, not as a form.')
   requireMediaType(event, TYPES[format], format === 'csv' ? 'a CSV file (text/csv)' : 'a JSON Lines file (application/x-ndjson)')
   requireDeclaredLength(event, MAX_FILE_BYTES)
+  refuseContentEncoding(event)
 
   const db = useDb()
   const station = await findStationByName(db, stationName)
