@@ -17,6 +17,18 @@ export async function listLots(db: Knex): Promise<LotListItem[]> {
  * The lot of the code, created for the part on first sight (a concurrent creator wins, and its row is read). A new
  * lot whose code matches the product's engineering pattern is marked engineering from its first run.
  */
+/** The lot of that code, if it exists. */
+export async function findLot(db: Knex, code: string): Promise<{ id: number; productId: number } | undefined> {
+  const row = await db('lots').where({ code }).first('id', 'product_id')
+  return row ? { id: Number(row.id), productId: Number(row.product_id) } : undefined
+}
+
+/** The code of the lot a product's serial is recorded in, if it is recorded. */
+export async function lotCodeOfSerial(db: Knex, productId: number, serial: string): Promise<string | undefined> {
+  const row = await db('units').join('lots', 'lots.id', 'units.lot_id').where({ 'units.product_id': productId, 'units.serial': serial }).first('lots.code')
+  return row?.code
+}
+
 export async function findOrCreateLot(db: Knex, code: string, productId: number): Promise<{ id: number; productId: number; created: boolean }> {
   let row = await db('lots').where({ code }).first('id', 'product_id')
   let created = false

@@ -3,7 +3,7 @@ import type { StationRun } from '../../utils/run-validator'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
 import { findRunHashByUuid, loadRunsWithMeasurements } from '../../database/repositories/runs'
 import { ensureFoldLease } from '../../database/repositories/fold-leases'
-import { findOrCreateLot } from '../../database/repositories/lots'
+import { findLot, findOrCreateLot, lotCodeOfSerial } from '../../database/repositories/lots'
 import { GroupWriter } from '../../utils/group-writer'
 import { writeRuns, type GroupResult, type RunToWrite } from './write-runs'
 import { lotCache, productCache, specCache } from './caches'
@@ -30,8 +30,18 @@ function revisionsFor(db: Knex, productId: number) {
   return specCache.get(productId, () => listEffectiveRevisions(db, productId)) as Promise<RevisionInForce[]>
 }
 
-async function lotFor(db: Knex, code: string, product: ProductInfo): Promise<number> {
+/**
+ * The run's lot, created on first sight. Only a run that can be stored creates one, so that a refusal leaves nothing
+ * behind: the checks that can refuse run before this, and a serial already recorded in another lot (which the write
+ * plan would refuse) is refused here first.
+ */
+async function lotFor(db: Knex, run: StationRun, product: ProductInfo): Promise<number> {
+  const code = run.lot
   const lot = await lotCache.get(code, async () => {
+    const existing = await findLot(db, code)
+    if (existing) return existing
+    const elsewhere = await lotCodeOfSerial(db, product.id, run.serial)
+    if (elsewhere !== undefined) throw new RunRejected(`Serial ${run.serial} is recorded in another lot.`, [{ pointer: '/lot', message: 'the serial belongs to another lot' }])
     const found = await findOrCreateLot(db, code, product.id)
     if (found.created) await ensureFoldLease(db, found.id)
     return found
@@ -72,9 +82,9 @@ export async function prepare(db: Knex, station: StationRef, run: StationRun, no
   const revision = revisionAt(await revisionsFor(db, product.id), startedAt)
   if (!revision) throw new RunRejected(`No approved specification of ${product.partNumber} was in force at ${startedAt.toISOString()}.`, [{ pointer: '/startedAt', message: 'no approved specification in force' }])
   const judged = judgeRun(run, product, revision)
-  const lotId = await lotFor(db, run.lot, product)
   // calibration hook: the instruments in force at the test time and their records (services/calibration/in-force)
   const calibration = await calibrationAt(db, station.id, startedAt, run.instrumentAssets)
+  const lotId = await lotFor(db, run, product)
   const calibrationLapsed = calibration.lapsed
   return { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed, calibration }
 }
