@@ -7,12 +7,16 @@ type Entry<T> = { at: number; value: T }
 
 export class TtlCache<K, V> {
   private map = new Map<K, Entry<V>>()
-  constructor(private ttl = TTL_MS) {}
+  constructor(private ttl = TTL_MS, private maxEntries = 10_000) {}
   async get(key: K, load: () => Promise<V>): Promise<V> {
     const hit = this.map.get(key)
     if (hit && Date.now() - hit.at < this.ttl) return hit.value
     const value = await load()
+    this.map.delete(key)
     this.map.set(key, { at: Date.now(), value })
+    // keys come from posted bodies (part numbers, lot codes): past the cap the oldest entries go, so posts of ever new
+    // keys cannot grow the process's memory
+    if (this.map.size > this.maxEntries) for (const k of this.map.keys()) { this.map.delete(k); if (this.map.size <= this.maxEntries / 2) break }
     return value
   }
   delete(key: K): void { this.map.delete(key) }
