@@ -7,7 +7,7 @@ import type { TestProject } from 'vitest/node'
 import { serverLogDir, teeOutput } from './server-log'
 
 declare module 'vitest' {
-  export interface ProvidedContext { baseUrl: string; serverLogDir: string }
+  export interface ProvidedContext { baseUrl: string; serverLogDir: string; serverPid: number }
 }
 
 function freePort(): Promise<number> {
@@ -49,6 +49,8 @@ export async function setup(project: TestProject) {
   }
   project.provide('baseUrl', baseUrl)
   project.provide('serverLogDir', logDir)
+  // the reliability tests read the server's memory from /proc/<pid>/status
+  project.provide('serverPid', child.pid ?? 0)
 }
 
 export async function teardown() {
