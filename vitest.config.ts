@@ -19,10 +19,11 @@ export default defineConfig({
           globalSetup: ['tests/support/server-setup.ts'], testTimeout: 60_000, hookTimeout: 120_000, fileParallelism: false,
         },
       },
-      // hostile input and other fast reliability checks, against the same test server as tests/e2e
+      // hostile input and other fast reliability checks, against a test server of their own; they run after every
+      // other project (groupOrder 1), since they compare every table before and after and no other test may write meanwhile
       {
         test: {
-          name: 'reliability', include: ['tests/reliability/*.test.ts'], environment: 'node',
+          name: 'reliability', include: ['tests/reliability/*.test.ts'], environment: 'node', sequence: { groupOrder: 1 },
           globalSetup: ['tests/support/server-setup.ts'], testTimeout: 300_000, hookTimeout: 120_000, fileParallelism: false,
         },
       },
