@@ -7,6 +7,8 @@ import { checkSession, endSession } from '../utils/session'
 export default defineEventHandler(async (event) => {
   const path = event.path.split('?')[0]!
   if (!path.startsWith('/api/') && path !== '/api') return
+  // the router knows only a route's GET handler; a HEAD request runs it and Node sends the headers without the body
+  if (event.method === 'HEAD') (event as unknown as { _method: string })._method = 'GET'
   const rule = findRule(event.method, path)
   if (!rule) throw problem(404, `No API route ${event.method} ${path}.`)
   if (rule.allow === 'public') return
