@@ -62,12 +62,13 @@ describe('imports page', () => {
     const station = await db('stations').where({ name: 'ATE-T3-01' }).first('id')
     const user = await db('users').where({ email: ROLE_ACCOUNTS.engineer }).first('id')
     const old = new Date(Date.now() - 10 * 60_000)
+    // the lease first: a running job without one is free for any server's worker to take
+    await db('job_leases').insert({ name: `import:${id.replace(/-/g, '')}`, owner: 'elsewhere:1:000000', lease_until: new Date(Date.now() + 120_000) })
     await db('import_jobs').insert({
       id, created_by: user.id, station_id: station.id, file_name: fileName, format: 'jsonl', started_at: old, updated_at: old, received_at: old,
       lines_total: 3, lines_done: 1, runs_done: 1, runs_created: 1, upload_bytes: file.length, upload_sha256: createHash('sha256').update(file).digest('hex'), upload_chunks: 1,
     })
     await db('import_upload_chunks').insert({ import_id: id, seq: 0, bytes: Buffer.from(file) })
-    await db('job_leases').insert({ name: `import:${id.replace(/-/g, '')}`, owner: 'elsewhere:1:000000', lease_until: new Date(Date.now() + 120_000) })
 
     const page = await signInPage(browser, baseUrl(), ROLE_ACCOUNTS.admin)
     await page.goto(`${baseUrl()}/imports`)
