@@ -9,13 +9,16 @@
 // time until its runs are folded into the lot statistics. Prints one JSON line per endpoint; progress goes to stderr.
 // TERCET_BENCH_SECONDS sets the length of each HTTP stage (default 20); TERCET_BENCH_PROFILE=<dir>
 // starts the server with --cpu-prof into that folder; TERCET_WRITE_LANES and TERCET_WRITE_GROUP override the server's
-// number of write groups in flight and their largest size.
+// number of write groups in flight and their largest size. The server's own output (one log line per request, as in
+// production) goes to .data/bench-ingest-server.log.
 import type { ChildProcess } from 'node:child_process'
 import { randomUUID } from 'node:crypto'
+import { openSync } from 'node:fs'
 import { loadavg } from 'node:os'
+import { resolve } from 'node:path'
 import autocannon from 'autocannon'
 import mysql from 'mysql2/promise'
-import { dbSettings, loadEnv, serverEnv } from './lib/env.mjs'
+import { dataDir, dbSettings, loadEnv, serverEnv } from './lib/env.mjs'
 import { HOST, builtEntry, cpuTimes, databasePid, freePort, prepareBenchDatabase, startBuiltServer, stopChild, waitHealthy } from './lib/bench-server'
 import { createKnex } from '../server/database/connection'
 import { generateStationToken } from '../server/utils/station-token'
@@ -330,7 +333,7 @@ async function main() {
     const base = `http://${HOST}:${port}`
     const profileDir = process.env.TERCET_BENCH_PROFILE
     server = startBuiltServer(entry, { ...serverEnv(env, settings), NUXT_DB_HOST: HOST, PORT: String(port), HOST, NODE_ENV: 'production', NUXT_SESSION_PASSWORD: env.NUXT_SESSION_PASSWORD, ...(process.env.TERCET_WRITE_LANES ? { TERCET_WRITE_LANES: process.env.TERCET_WRITE_LANES } : {}), ...(process.env.TERCET_WRITE_GROUP ? { TERCET_WRITE_GROUP: process.env.TERCET_WRITE_GROUP } : {}) },
-      profileDir ? ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] : [])
+      profileDir ? ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] : [], openSync(resolve(dataDir, 'bench-ingest-server.log'), 'w'))
     await waitHealthy(base, server)
     const load = loadavg()[0]!
     if (load > 1.5) say(`WARNING: load average ${load.toFixed(1)} before the run: other work on this machine will lower every figure`)

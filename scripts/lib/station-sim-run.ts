@@ -3,9 +3,10 @@
 // network failure with the same body (the run id is the idempotency key) and reports what the server said.
 import { DEMO_PRODUCTS } from '../../fixtures/demo-catalogue'
 import { generateRun, mulberry32, type GeneratedRun } from '../../fixtures/run-generator'
-import { DEFAULT_BACKOFF, UsageError, loopbackBase, newTally, record, retryDelay, type Backoff, type SimArgs, type Tally } from './station-sim-core'
+import {
+  DEFAULT_BACKOFF, UsageError, loopbackBase, newTally, record, retryDelay, stationVerdict, type Backoff, type SimArgs, type SpecLimit, type Tally,
+} from './station-sim-core'
 
-type SpecLimit = { step: string; name: string; offsetHz?: number; harmonic?: number; lsl: number | null; usl: number | null }
 type Reply = { status: number | 'network'; body: any; retryAfter?: number; ms: number }
 
 export type SimOptions = {
@@ -44,16 +45,6 @@ async function once(base: string, token: string, method: string, path: string, b
   } catch {
     return { status: 'network', body: null, ms: performance.now() - t0 }
   }
-}
-
-/** The station sequencer's own verdict: plain acceptance against the limits it downloaded. */
-function stationVerdict(limits: SpecLimit[], run: GeneratedRun): 'pass' | 'fail' {
-  for (const m of run.measurements) {
-    const q = m.offsetHz ?? m.harmonic ?? 0
-    const l = limits.find((x) => x.step === run.step && x.name === m.name && (x.offsetHz ?? x.harmonic ?? 0) === q)
-    if (l && ((l.lsl != null && m.value < l.lsl) || (l.usl != null && m.value > l.usl))) return 'fail'
-  }
-  return 'pass'
 }
 
 export async function simulateStation(args: SimArgs, opts: SimOptions = {}): Promise<SimResult> {

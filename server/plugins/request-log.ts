@@ -1,11 +1,7 @@
-import { databaseFaults } from '../utils/database-faults'
 import { requestIdFrom, requestLogLine } from '../utils/request-log'
 
-// One JSON line per request on stdout when it ends (TERCET_REQUEST_LOG=off for none), and the probe that tells the
-// fault log when the database answers again after an outage.
+// One JSON line per request on stdout when it ends (TERCET_REQUEST_LOG=off for none).
 export default defineNitroPlugin((nitro) => {
-  databaseFaults.setProbe(() => useDb().raw('SELECT 1'))
-  nitro.hooks.hook('close', () => { databaseFaults.stop() })
   if (process.env.TERCET_REQUEST_LOG === 'off') return
   nitro.hooks.hook('request', (event) => {
     const req = event.node.req

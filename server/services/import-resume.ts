@@ -5,10 +5,10 @@ import type { Knex } from 'knex'
 import type { ImportJob } from '../../shared/types/imports'
 import { writeAudit } from '../database/repositories/audit'
 import { findImportJob } from '../database/repositories/imports'
-import { abandonedUploads, countResume, deleteUnreceivedImport, importLeaseName, importsToResume } from '../database/repositories/import-uploads'
+import { abandonedUploads, countResume, importLeaseName, importsToResume } from '../database/repositories/import-uploads'
 import { dropLease, takeLease } from '../database/repositories/job-leases'
 import { IMPORT_WORKER_ID, importLeaseMs } from './import-lease'
-import { activeImports, importJobView, runImport } from './imports'
+import { activeImports, discardUnreceivedUpload, importJobView, runImport } from './imports'
 import { RuleError } from './rule-error'
 
 /** At most this many imports run in one process at once; the others wait for a free worker anywhere. */
@@ -49,10 +49,7 @@ async function claim(db: Knex, id: string, actorId: number | null, now: Date): P
 /** One pass of the import worker (every second on each instance). */
 export async function resumeImports(db: Knex, now = new Date()): Promise<string[]> {
   for (const id of await abandonedUploads(db, new Date(now.getTime() - 60_000), now)) {
-    await db.transaction(async (trx) => {
-      await deleteUnreceivedImport(trx, id)
-      await dropLease(trx, importLeaseName(id))
-    })
+    await discardUnreceivedUpload(db, id)
   }
   const taken: string[] = []
   if (activeImports.size >= MAX_ACTIVE) return taken

@@ -26,6 +26,7 @@ import { clip, describeRefusal, importItems, type Item } from './import-items'
 import { IMPORT_WORKER_ID, ImportLeaseLost, importLeaseMs, keepLease } from './import-lease'
 import { MAX_LINE_BYTES, receiveUpload } from './import-upload'
 import { RuleError } from './rule-error'
+import { isDatabaseUnavailable } from '../utils/database-unavailable'
 
 const FLUSH_EVERY_RUNS = 200
 // runs are written in slices of the file (at most 100 runs or 256 KiB of lines): attempts follow test time, so slices
@@ -36,7 +37,6 @@ const PARALLEL_CHUNKS = 1
 const WINDOW_CHUNKS = 2
 const WINDOW_BYTES = 16 * 1024 * 1024
 const FLUSH_EVERY_MS = 500
-const UNAVAILABLE = new Set(['ECONNREFUSED', 'PROTOCOL_CONNECTION_LOST', 'ETIMEDOUT', 'ER_CON_COUNT_ERROR'])
 
 /** Imports this process is working on (the worker takes no more than a few at once). */
 export const activeImports = new Set<string>()
@@ -63,10 +63,6 @@ async function* storedLines(db: Knex, jobId: string, upload: StoredUpload, curso
     for (const l of splitter.push(chunk)) if (keep(l)) yield l
   }
   for (const l of splitter.end()) if (keep(l)) yield l
-}
-
-function isUnavailable(e: any): boolean {
-  return UNAVAILABLE.has(e?.code) || /Timeout acquiring a connection/.test(String(e?.message))
 }
 
 type Outcome = { item: Item; result?: PostResult; failed?: boolean }
@@ -204,7 +200,7 @@ async function processImport(db: Knex, job: ImportJobRow, upload: StoredUpload):
     await pipeline.settle()
     if (e instanceof ImportLeaseLost) return
     // the database away: the job stays running, its lease runs out and a worker carries it on once it is back
-    if (isUnavailable(e)) { console.warn(`[tercet] import ${ctx.jobId} paused: ${e?.message ?? e}`); return }
+    if (isDatabaseUnavailable(e)) { console.warn(`[tercet] import ${ctx.jobId} paused: ${e?.message ?? e}`); return }
     console.error(e)
     await finish('failed', 'The import stopped because of an internal error; import the file again to continue (stored runs are replayed).').catch((f) => console.error(f))
   } finally {
@@ -228,6 +224,14 @@ export async function runImport(db: Knex, jobId: string): Promise<void> {
   }
 }
 
+/** Removes an upload that never arrived whole, with its stored slices and its lease, in one transaction. */
+export async function discardUnreceivedUpload(db: Knex, jobId: string): Promise<void> {
+  await db.transaction(async (trx) => {
+    await deleteUnreceivedImport(trx, jobId)
+    await dropLease(trx, importLeaseName(jobId))
+  })
+}
+
 export type ImportRequest = { userId: number; station: StationRef; fileName: string; format: ImportFormat }
 
 /**
@@ -246,10 +250,7 @@ export async function startImport(db: Knex, req: ImportRequest, source: Readable
     const received = await receiveUpload(source, req.format, (seq, bytes) => insertUploadChunk(db, jobId, seq, bytes))
     await markUploadReceived(db, jobId, received)
   } catch (e) {
-    await db.transaction(async (trx) => {
-      await deleteUnreceivedImport(trx, jobId)
-      await dropLease(trx, lease)
-    }).catch((f) => console.error(f))
+    await discardUnreceivedUpload(db, jobId).catch((f) => console.error(f))
     throw e
   } finally {
     keeper.stop()

@@ -1,14 +1,14 @@
 import type { H3Event } from 'h3'
 import { binaryKind } from '../../shared/utils/upload-text'
 import { problem } from './problem'
-import { readBytesLimited, refuseContentEncoding } from './json-body'
+import { mediaTypeOf, readBytesLimited, refuseContentEncoding } from './json-body'
 
 // Browsers label a .csv upload variously; all of these are plain text.
-const CSV_TYPES = ['text/csv', 'text/plain', 'application/csv', 'application/vnd.ms-excel']
+export const CSV_TYPES = ['text/csv', 'text/plain', 'application/csv', 'application/vnd.ms-excel']
 
 /** Reads a text/csv body of at most maxBytes as UTF-8: 415 for another type or a compressed body, 413 beyond the size, 400 when empty. */
 export async function readCsvBody(event: H3Event, maxBytes: number): Promise<string> {
-  const type = (getHeader(event, 'content-type') ?? '').split(';')[0]!.trim().toLowerCase()
+  const type = mediaTypeOf(event)
   if (!CSV_TYPES.includes(type)) throw problem(415, 'Send the limit table as text/csv.', { errors: [{ pointer: '', message: `content type ${type || '(none)'} is not text/csv` }] })
   refuseContentEncoding(event)
   const raw = await readBytesLimited(event, maxBytes)

@@ -87,5 +87,5 @@ export const writeFaultLine: FaultWriter = (line) => {
   console.warn(JSON.stringify({ time: new Date().toISOString(), ...line }))
 }
 
-/** The process's one fault log; server/plugins/request-log.ts gives it the database probe. */
+/** The process's one fault log; server/plugins/db-lifecycle.ts gives it the database probe. */
 export const databaseFaults = new DatabaseFaultLog(writeFaultLine)

@@ -9,9 +9,14 @@ export function refuseContentEncoding(event: H3Event): void {
   }
 }
 
+/** The request's media type, lower case, without parameters; '' when none is declared. */
+export function mediaTypeOf(event: H3Event): string {
+  return (getHeader(event, 'content-type') ?? '').split(';')[0]!.trim().toLowerCase()
+}
+
 /** A JSON body must say so: application/json (a charset parameter is fine). */
 export function requireJsonType(event: H3Event): void {
-  const type = (getHeader(event, 'content-type') ?? '').split(';')[0]!.trim().toLowerCase()
+  const type = mediaTypeOf(event)
   if (type !== 'application/json') {
     throw problem(415, 'Send the body as application/json.', { errors: [{ pointer: '', message: `content type ${type || '(none)'} is not application/json` }] })
   }

@@ -29,11 +29,11 @@ export async function enforceKeyLimit(key: string, rule: RequestLimit, now = new
 
 /** Public verification: TERCET_VERIFY_LIMIT requests per minute per client address (default 60). */
 export function verifyLimit(): RequestLimit {
-  const n = Number(process.env.TERCET_VERIFY_LIMIT)
-  return { bucket: 'verify', limit: Number.isInteger(n) && n > 0 ? n : 60, windowMs: 60_000 }
+  return { bucket: 'verify', limit: envCount('TERCET_VERIFY_LIMIT', 60), windowMs: 60_000 }
 }
 
-function envCount(name: string, fallback: number): number {
+/** A positive whole number from the environment, or the fallback. */
+export function envCount(name: string, fallback: number): number {
   const n = Number(process.env[name])
   return Number.isInteger(n) && n > 0 ? n : fallback
 }

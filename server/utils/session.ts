@@ -25,10 +25,11 @@ export function sessionCookieConfig(event: H3Event) {
   return { cookie: { path: '/', httpOnly: true, sameSite: 'lax' as const, secure: servedOverHttps(event) } }
 }
 
-/** Seals a new session for the user with the user's current session version. */
-export async function startSession(event: H3Event, user: UserRecord, loggedInAt = Date.now()): Promise<void> {
+/** Seals a new session for the user with the user's current session version; answers the user as the session holds it. */
+export async function startSession(event: H3Event, user: UserRecord, loggedInAt = Date.now()) {
   const sessionUser = { id: user.id, email: user.email, name: user.name, role: user.role, customerId: user.customerId }
   await replaceUserSession(event, { user: sessionUser, loggedInAt, version: user.sessionVersion }, sessionCookieConfig(event))
+  return sessionUser
 }
 
 /** Gives the current session a cookie carrying the user's new session version (after it ended the others). */
@@ -58,14 +59,17 @@ export async function checkSession(event: H3Event): Promise<SessionCheck> {
   const session = await getUserSession(event)
   if (!session.user) return { user: undefined, reason: 'none' }
   const user = await findUserById(useDb(), session.user.id)
-  if (!user || user.disabled || session.version !== user.sessionVersion) return { user: undefined, reason: 'ended' }
-  return { user }
+  return sessionAlive(user, session.version) ? { user } : { user: undefined, reason: 'ended' }
+}
+
+/** Whether a session sealed with `version` may act as `user` (as read from the database just now). */
+function sessionAlive(user: UserRecord | undefined, version: unknown): user is UserRecord {
+  return !!user && !user.disabled && user.sessionVersion === version
 }
 
 /** Whether a session checked earlier with this version is still alive (for long-lived answers such as streams). */
 export async function sessionStillValid(userId: number, version: number): Promise<boolean> {
-  const user = await findUserById(useDb(), userId)
-  return !!user && !user.disabled && user.sessionVersion === version
+  return sessionAlive(await findUserById(useDb(), userId), version)
 }
 
 export async function currentSessionVersion(userId: number): Promise<number> {

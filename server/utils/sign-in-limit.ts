@@ -1,16 +1,10 @@
 import { createHash } from 'node:crypto'
 import { clearWindow, countRequest, readWindow } from '../database/repositories/request-limits'
-import type { RequestLimit } from './request-limit'
+import { envCount, type RequestLimit } from './request-limit'
 
-/**
- * Failed password attempts (sign-in, the current password on /account, a signature) counted per account and per
- * client address in fixed windows in `request_limits`, so the limits hold across every app instance. The account
- * is keyed by the SHA-256 of its lower-case e-mail address (the table never holds the address itself).
- */
-function envCount(name: string, fallback: number): number {
-  const n = Number(process.env[name])
-  return Number.isInteger(n) && n > 0 ? n : fallback
-}
+// Failed password attempts (sign-in, the current password on /account, a signature) counted per account and per
+// client address in fixed windows in `request_limits`, so the limits hold across every app instance. The account
+// is keyed by the SHA-256 of its lower-case e-mail address (the table never holds the address itself).
 
 /** TERCET_SIGNIN_ACCOUNT_LIMIT failures per account in 15 minutes (default 5). */
 export function accountFailureLimit(): RequestLimit {

@@ -1,11 +1,6 @@
 import type { H3Event } from 'h3'
-import { readJsonLimited } from './json-body'
+import { mediaTypeOf, readJsonLimited } from './json-body'
 import { problem } from './problem'
-
-/** The request's media type, lower case, without parameters; '' when none is declared. */
-export function mediaTypeOf(event: H3Event): string {
-  return (getHeader(event, 'content-type') ?? '').split(';')[0]!.trim().toLowerCase()
-}
 
 /**
  * 415 unless the declared type is one of `allowed` ('' allows a request that declares none: its content is
@@ -31,20 +26,11 @@ export function requireDeclaredLength(event: H3Event, maxBytes: number, what = '
   }
 }
 
-const isJson = (type: string) => type === 'application/json' || /^application\/[a-z0-9.+-]+\+json$/.test(type)
-
-/** A JSON body carrying an upload: 415 unless it is declared JSON, 413 beyond maxBytes, 400 when it is not JSON. */
-export async function readJsonUpload(event: H3Event, maxBytes: number): Promise<unknown> {
-  const type = mediaTypeOf(event)
-  if (!isJson(type)) throw problem(415, 'Send the request as application/json.', { errors: [{ pointer: '', message: `content type ${type || '(none)'} is not application/json` }] })
-  return readJsonLimited(event, maxBytes)
-}
-
 type Validator<T> = (body: unknown) => { ok: true; value: T } | { ok: false; errors: { pointer: string; message: string }[] }
 
-/** readJsonUpload, then the body's schema: 400 with pointers when it does not fit. */
+/** A JSON body carrying an upload (readJsonLimited: 415, 413, 400), then its schema: 400 with pointers when it does not fit. */
 export async function readValidUpload<T>(event: H3Event, validate: Validator<T>, maxBytes: number): Promise<T> {
-  const r = validate(await readJsonUpload(event, maxBytes))
+  const r = validate(await readJsonLimited(event, maxBytes))
   if (!r.ok) throw problem(400, 'The request body does not match the schema.', { errors: r.errors })
   return r.value
 }

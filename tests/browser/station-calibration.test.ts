@@ -1,24 +1,15 @@
-import PDFDocument from 'pdfkit'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { baseUrl, call, signIn } from '../support/http'
 import { launchBrowser, shot, signInPage } from '../support/browser'
+import { pdfWithText } from '../support/pdf'
 
 let browser: Browser
 
 beforeAll(async () => { browser = await launchBrowser() })
 afterAll(async () => { await browser?.close() })
 
-function pdf(): Promise<Buffer> {
-  return new Promise((done) => {
-    const doc = new PDFDocument()
-    const parts: Buffer[] = []
-    doc.on('data', (b: Buffer) => parts.push(b))
-    doc.on('end', () => done(Buffer.concat(parts)))
-    doc.text('Certificate of calibration, browser test')
-    doc.end()
-  })
-}
+const pdf = () => pdfWithText('Certificate of calibration, browser test')
 
 describe('station calibration history in the browser', () => {
   it('shows the demo ×8 station\'s instruments, the lapsed sensor and the runs taken under each record', async () => {

@@ -1,7 +1,7 @@
-import PDFDocument from 'pdfkit'
 import { beforeAll, describe, expect, it } from 'vitest'
 import { baseUrl, call, signIn, ROLE_ACCOUNTS } from '../support/http'
 import { stationTokens, tripleRun } from '../support/stations'
+import { pdfWithText } from '../support/pdf'
 
 const DAY = 86_400_000
 const tag = `${Date.now().toString(36)}${process.pid.toString(36)}`.toUpperCase()
@@ -11,16 +11,7 @@ let seq = 0
 const asset = () => `E2E-${tag}-${++seq}`.slice(0, 32)
 const ago = (days: number) => new Date(Date.now() - days * DAY).toISOString()
 
-function pdf(): Promise<Buffer> {
-  return new Promise((done) => {
-    const doc = new PDFDocument()
-    const parts: Buffer[] = []
-    doc.on('data', (b: Buffer) => parts.push(b))
-    doc.on('end', () => done(Buffer.concat(parts)))
-    doc.text(`Certificate of calibration ${tag}`)
-    doc.end()
-  })
-}
+const pdf = () => pdfWithText(`Certificate of calibration ${tag}`)
 
 async function newStation() {
   const r = await call('POST', '/api/stations', { cookie: engineer, body: { name: `E2E-CAL-${tag}-${++seq}` } })

@@ -1,12 +1,11 @@
 import { spawnSync } from 'node:child_process'
 import { createHash, randomUUID } from 'node:crypto'
-import http from 'node:http'
 import { resolve } from 'node:path'
 import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
 import { RUN_CSV_COLUMNS } from '../../shared/utils/run-csv'
-import { baseUrl, call, signIn, ROLE_ACCOUNTS } from '../support/http'
+import { baseUrl, call, postDeclaredOnly, signIn, ROLE_ACCOUNTS } from '../support/http'
 import { tripleRun } from '../support/stations'
 
 const STATION = 'ATE-T3-01'
@@ -423,18 +422,7 @@ describe('carrying on an import left behind', () => {
   })
 })
 
-/** Sends a request declaring `length` bytes but only a few of them, and returns the status the server answers with. */
-function declaredOnly(path: string, length: number, headers: Record<string, string>): Promise<{ status: number; body: any }> {
-  return new Promise((done, fail) => {
-    const req = http.request(baseUrl() + path, { method: 'POST', headers: { ...headers, 'content-length': String(length), accept: 'application/json' } }, (res) => {
-      let text = ''
-      res.on('data', (c) => { text += c })
-      res.on('end', () => { req.destroy(); done({ status: res.statusCode!, body: JSON.parse(text) }) })
-    })
-    req.on('error', fail)
-    req.write('{"id":"x"}\n')
-  })
-}
+const declaredOnly = (path: string, length: number, headers: Record<string, string>) => postDeclaredOnly(path, length, headers, '{"id":"x"}\n')
 
 describe('upload checks', () => {
   it('answers 413 problem+json before reading a body declared beyond 2 GiB', async () => {

@@ -1,12 +1,11 @@
 // Uploads other than run imports: a shipment's serial list, a calibration certificate and a limit table are each
 // checked by size (413), declared type (415) and content (422), and a client's file name is kept only as a name.
-import http from 'node:http'
 import type { Knex } from 'knex'
-import PDFDocument from 'pdfkit'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connectionFromEnv, createKnex } from '../../server/database/connection'
-import { baseUrl, call, signIn, ROLE_ACCOUNTS } from '../support/http'
+import { baseUrl, call, postDeclaredOnly, signIn, ROLE_ACCOUNTS } from '../support/http'
 import { firstCustomerId } from '../support/shipping'
+import { pdfWithText } from '../support/pdf'
 
 const tag = `${Date.now().toString(36)}${process.pid.toString(36)}`.toUpperCase()
 let db: Knex
@@ -32,18 +31,7 @@ async function send(path: string, cookie: string, body: string, type: string) {
   return { status: r.status, type: r.headers.get('content-type'), body: await r.json() as any }
 }
 
-/** Declares `length` bytes, sends a few, and returns the answer: a limit is enforced before the body is read. */
-function declaredOnly(path: string, cookie: string, length: number, type: string): Promise<{ status: number; body: any }> {
-  return new Promise((done, fail) => {
-    const req = http.request(baseUrl() + path, { method: 'POST', headers: { cookie, 'content-type': type, 'content-length': String(length), accept: 'application/json' } }, (res) => {
-      let text = ''
-      res.on('data', (c) => { text += c })
-      res.on('end', () => { req.destroy(); done({ status: res.statusCode!, body: JSON.parse(text) }) })
-    })
-    req.on('error', fail)
-    req.write('{"lines":["')
-  })
-}
+const declaredOnly = (path: string, cookie: string, length: number, type: string) => postDeclaredOnly(path, length, { cookie, 'content-type': type }, '{"lines":["')
 
 describe('a shipment serial list', () => {
   const preview = () => `/api/shipments/${shipmentId}/serials/preview`
@@ -86,16 +74,7 @@ describe('a shipment serial list', () => {
   })
 })
 
-function pdf(): Promise<Buffer> {
-  return new Promise((done) => {
-    const doc = new PDFDocument()
-    const parts: Buffer[] = []
-    doc.on('data', (b: Buffer) => parts.push(b))
-    doc.on('end', () => done(Buffer.concat(parts)))
-    doc.text(`Certificate of calibration ${tag}`)
-    doc.end()
-  })
-}
+const pdf = () => pdfWithText(`Certificate of calibration ${tag}`)
 
 describe('a calibration certificate', () => {
   let instrumentId = 0

@@ -27,7 +27,7 @@ type Kind = { kind: 'json'; schema: any } | { kind: 'csv' } | { kind: 'upload' }
 function bodyKind(file: string): Kind {
   const text = readFileSync(file, 'utf8')
   const schema = text.match(/shared\/schemas\/([a-z0-9-]+\.schema\.json)/)?.[1]
-  if (/readValidBody|readJsonLimited|readValidUpload|readJsonUpload/.test(text)) {
+  if (/readValidBody|readJsonLimited|readValidUpload/.test(text)) {
     if (!schema) throw new Error(`${file} reads a JSON body without a schema from shared/schemas`)
     return { kind: 'json', schema: JSON.parse(readFileSync(resolve(process.cwd(), 'shared/schemas', schema), 'utf8')) }
   }

@@ -1,3 +1,4 @@
+import http from 'node:http'
 import { inject } from 'vitest'
 import signIns from '../../fixtures/demo-sign-ins.json'
 
@@ -48,3 +49,19 @@ export const ROLE_ACCOUNTS = {
   operator: 'operator@tercet.test',
   customer: 'buyer@quillfeather.test',
 } as const
+
+/**
+ * Sends a POST declaring `length` bytes but writes only `firstBytes` of them, and returns what the server answers:
+ * a limit that holds answers from the declared length, before the body arrives.
+ */
+export function postDeclaredOnly(path: string, length: number, headers: Record<string, string>, firstBytes: string): Promise<{ status: number; body: any }> {
+  return new Promise((done, fail) => {
+    const req = http.request(baseUrl() + path, { method: 'POST', headers: { ...headers, 'content-length': String(length), accept: 'application/json' } }, (res) => {
+      let text = ''
+      res.on('data', (c) => { text += c })
+      res.on('end', () => { req.destroy(); done({ status: res.statusCode!, body: JSON.parse(text) }) })
+    })
+    req.on('error', fail)
+    req.write(firstBytes)
+  })
+}

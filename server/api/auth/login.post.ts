@@ -11,7 +11,5 @@ export default defineEventHandler(async (event) => {
   const body = await readValidBody(event, validate)
   const user = await verifySignIn(event, body.email.trim().toLowerCase(), body.password)
   await touchSignIn(useDb(), user.id)
-  await startSession(event, user)
-  const sessionUser = { id: user.id, email: user.email, name: user.name, role: user.role, customerId: user.customerId }
-  return { user: sessionUser, landing: LANDING[user.role] }
+  return { user: await startSession(event, user), landing: LANDING[user.role] }
 })

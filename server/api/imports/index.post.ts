@@ -8,7 +8,7 @@ const FORMATS: ImportFormat[] = ['jsonl', 'csv']
 // what browsers and tools label such files with; '' and octet-stream say nothing, and the content is sniffed anyway
 const TYPES: Record<ImportFormat, string[]> = {
   jsonl: ['', 'application/octet-stream', 'application/x-ndjson', 'application/jsonl', 'application/x-jsonlines', 'application/json-lines', 'text/plain'],
-  csv: ['', 'application/octet-stream', 'text/csv', 'text/plain', 'application/csv', 'application/vnd.ms-excel'],
+  csv: ['', 'application/octet-stream', ...CSV_TYPES],
 }
 
 function queryText(v: unknown): string {

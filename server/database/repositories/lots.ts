@@ -13,10 +13,6 @@ export async function listLots(db: Knex): Promise<LotListItem[]> {
   }))
 }
 
-/**
- * The lot of the code, created for the part on first sight (a concurrent creator wins, and its row is read). A new
- * lot whose code matches the product's engineering pattern is marked engineering from its first run.
- */
 /** The lot of that code, if it exists. */
 export async function findLot(db: Knex, code: string): Promise<{ id: number; productId: number } | undefined> {
   const row = await db('lots').where({ code }).first('id', 'product_id')
@@ -29,15 +25,13 @@ export async function lotCodeOfSerial(db: Knex, productId: number, serial: strin
   return row?.code
 }
 
-export async function findOrCreateLot(db: Knex, code: string, productId: number): Promise<{ id: number; productId: number; created: boolean }> {
-  let row = await db('lots').where({ code }).first('id', 'product_id')
-  let created = false
-  if (!row) {
-    const product = await db('products').where({ id: productId }).first('engineering_lot_pattern')
-    const engineering = matchesLotPattern(code, parseLotPatterns(product?.engineering_lot_pattern).patterns)
-    await db.raw('INSERT IGNORE INTO lots (product_id, code, engineering, engineering_source) VALUES (?, ?, ?, ?)', [productId, code, engineering, engineering ? 'pattern' : null])
-    row = await db('lots').where({ code }).first('id', 'product_id')
-    created = true
-  }
-  return { id: Number(row.id), productId: Number(row.product_id), created }
+/**
+ * Creates the lot of the code for the part (a concurrent creator wins, and its row is read). A new lot whose code
+ * matches the product's engineering pattern is marked engineering from its first run.
+ */
+export async function createLot(db: Knex, code: string, productId: number): Promise<{ id: number; productId: number }> {
+  const product = await db('products').where({ id: productId }).first('engineering_lot_pattern')
+  const engineering = matchesLotPattern(code, parseLotPatterns(product?.engineering_lot_pattern).patterns)
+  await db.raw('INSERT IGNORE INTO lots (product_id, code, engineering, engineering_source) VALUES (?, ?, ?, ?)', [productId, code, engineering, engineering ? 'pattern' : null])
+  return (await findLot(db, code))!
 }

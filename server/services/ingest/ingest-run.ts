@@ -3,7 +3,7 @@ import type { StationRun } from '../../utils/run-validator'
 import { findProductByPart, listEffectiveRevisions, revisionAt, type ProductInfo, type RevisionInForce } from '../../database/repositories/spec-lookup'
 import { findRunHashByUuid, loadRunsWithMeasurements } from '../../database/repositories/runs'
 import { ensureFoldLease } from '../../database/repositories/fold-leases'
-import { findLot, findOrCreateLot, lotCodeOfSerial } from '../../database/repositories/lots'
+import { createLot, findLot, lotCodeOfSerial } from '../../database/repositories/lots'
 import { GroupWriter } from '../../utils/group-writer'
 import { writeRuns, type GroupResult, type RunToWrite } from './write-runs'
 import { lotCache, productCache, specCache } from './caches'
@@ -42,9 +42,9 @@ async function lotFor(db: Knex, run: StationRun, product: ProductInfo): Promise<
     if (existing) return existing
     const elsewhere = await lotCodeOfSerial(db, product.id, run.serial)
     if (elsewhere !== undefined) throw new RunRejected(`Serial ${run.serial} is recorded in another lot.`, [{ pointer: '/lot', message: 'the serial belongs to another lot' }])
-    const found = await findOrCreateLot(db, code, product.id)
-    if (found.created) await ensureFoldLease(db, found.id)
-    return found
+    const created = await createLot(db, code, product.id)
+    await ensureFoldLease(db, created.id)
+    return created
   }) as { id: number; productId: number }
   if (lot.productId !== product.id) {
     throw new RunRejected(`Lot ${code} belongs to another part number.`, [{ pointer: '/lot', message: 'lot belongs to another part' }])

@@ -79,27 +79,26 @@ async function outage(how: 'clean' | 'kill', downMs: number, tag: string) {
   return { f, probes }
 }
 
+/** During the outage every probe answered 503 with Retry-After, quickly; stations lost, doubled or split nothing. */
+function expectAnswered503AndNothingLost({ f, probes }: Awaited<ReturnType<typeof outage>>): void {
+  expect(probes.answered503).toBeGreaterThan(0)
+  expect(probes.without503RetryAfter).toBe(0)
+  expect(probes.other).toEqual([])
+  // no hang: every answer came within a few seconds, even while the database was away
+  expect(probes.slowestMs).toBeLessThan(12_000)
+  expect(f.other5xx).toBe(0)
+  expect({ lost: f.lost, duplicated: f.duplicated, unacknowledged: f.unacknowledged, partialRuns: f.partialRuns }).toEqual({ lost: 0, duplicated: 0, unacknowledged: 0, partialRuns: 0 })
+}
+
 describe('the database away under load', () => {
   it('stopped cleanly for about 10 s: 503 with Retry-After meanwhile, no run lost or doubled', async () => {
-    const { f, probes } = await outage('clean', 10_000, 'FLT-STOP')
-    expect(probes.answered503).toBeGreaterThan(0)
-    expect(probes.without503RetryAfter).toBe(0)
-    expect(probes.other).toEqual([])
-    // no hang: every answer came within a few seconds, even while the database was away
-    expect(probes.slowestMs).toBeLessThan(12_000)
-    expect(f.answers503).toBeGreaterThan(0)
-    expect(f.other5xx).toBe(0)
-    expect({ lost: f.lost, duplicated: f.duplicated, unacknowledged: f.unacknowledged, partialRuns: f.partialRuns }).toEqual({ lost: 0, duplicated: 0, unacknowledged: 0, partialRuns: 0 })
+    const outcome = await outage('clean', 10_000, 'FLT-STOP')
+    expectAnswered503AndNothingLost(outcome)
+    expect(outcome.f.answers503).toBeGreaterThan(0)
   })
 
   it('killed outright for about 6 s: the same, and the server reconnects by itself', async () => {
-    const { f, probes } = await outage('kill', 6_000, 'FLT-KILL')
-    expect(probes.answered503).toBeGreaterThan(0)
-    expect(probes.without503RetryAfter).toBe(0)
-    expect(probes.other).toEqual([])
-    expect(probes.slowestMs).toBeLessThan(12_000)
-    expect(f.other5xx).toBe(0)
-    expect({ lost: f.lost, duplicated: f.duplicated, unacknowledged: f.unacknowledged, partialRuns: f.partialRuns }).toEqual({ lost: 0, duplicated: 0, unacknowledged: 0, partialRuns: 0 })
+    expectAnswered503AndNothingLost(await outage('kill', 6_000, 'FLT-KILL'))
   })
 
   it('logged each outage once as it began and once as it ended, without stack traces, and every request as one JSON line', () => {

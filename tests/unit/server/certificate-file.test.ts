@@ -1,19 +1,9 @@
 import { createHash } from 'node:crypto'
-import PDFDocument from 'pdfkit'
 import { describe, expect, it } from 'vitest'
 import { CERTIFICATE_MAX_BYTES, decodeCertificatePdf } from '../../../server/services/calibration/certificate-file'
+import { pdfWithText } from '../../support/pdf'
 
-// A document written by an independent PDF library (pdfkit) is what a laboratory's system would send.
-function pdfkitDocument(): Promise<Buffer> {
-  return new Promise((done) => {
-    const doc = new PDFDocument()
-    const parts: Buffer[] = []
-    doc.on('data', (b: Buffer) => parts.push(b))
-    doc.on('end', () => done(Buffer.concat(parts)))
-    doc.text('Certificate of calibration')
-    doc.end()
-  })
-}
+const pdfkitDocument = () => pdfWithText('Certificate of calibration')
 
 /** A buffer of exactly n bytes with a PDF header and end-of-file marker (ISO 32000-1, 7.5.2 and 7.5.5). */
 function pdfShaped(n: number): Buffer {

@@ -9,7 +9,7 @@ const MAX_BYTES = 8 * 1024 * 1024
 export default defineEventHandler(async (event) => {
   const actor = requireUser(event)
   const id = idParam(event, 'id', 'instrument')
-  const r = validate(await readJsonUpload(event, MAX_BYTES))
+  const r = validate(await readJsonLimited(event, MAX_BYTES))
   if (!r.ok) throw problem(400, 'The request body does not match the schema.', { errors: r.errors })
   const record = await addCalibration(useDb(), actor.id, id, r.value)
   setResponseStatus(event, 201)
