@@ -1,11 +1,12 @@
 import type { H3Event } from 'h3'
 import { findUserForSignIn, type UserRecord } from '../database/repositories/users'
+import { formatWait } from '../../shared/utils/value-format'
 import { problem } from './problem'
 import { clientAddress } from './client-address'
 import { clearAccountFailures, notePasswordFailure, passwordAttemptWait } from './sign-in-limit'
 
 function tooMany(wait: number, what: string) {
-  return problem(429, `Too many ${what}; try again in ${wait} s.`, { headers: { 'Retry-After': String(wait) } })
+  return problem(429, `Too many ${what}; try again in ${formatWait(wait)}.`, { headers: { 'Retry-After': String(wait) } })
 }
 
 /**

@@ -131,6 +131,23 @@ export function formatCount(n: number | null | undefined): string {
   return formatFixed(n, 0)
 }
 
+/** A size in bytes in the binary unit that reads best: 812 B, 3.4 KiB, 71.1 MiB, 2.0 GiB (IEC 80000-13 prefixes). */
+export function formatBytes(n: number | null | undefined): string {
+  if (!finite(n)) return DASH
+  const units = ['B', 'KiB', 'MiB', 'GiB']
+  let i = 0
+  let v = n
+  while (Math.abs(v) >= 1024 && i < units.length - 1) { v /= 1024; i++ }
+  return `${formatFixed(v, i === 0 ? 0 : 1)}\u00A0${units[i]}`
+}
+
+/** A wait a person is told about: seconds up to a minute and a half, then whole minutes rounded up. */
+export function formatWait(seconds: number): string {
+  if (seconds <= 90) return `${Math.max(1, Math.ceil(seconds))} s`
+  const minutes = Math.ceil(seconds / 60)
+  return `${minutes} minutes`
+}
+
 /** "Phase noise @ 10 kHz", "Harmonic rejection @ H2", "Output power": a parameter as every page names it. */
 export function parameterLabel(name: string, qualifier?: number | null): string {
   const base = (KNOWN_MEASUREMENTS as Record<string, { label: string }>)[name]?.label ?? name.replace(/_/g, ' ')

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import {
   displayUnitFor, formatCount, formatDefectPpm, formatFixed, formatIndex, formatIndexInterval, formatNumber, formatPercent,
-  formatFigure, formatLimits, formatPValue, formatQuantity, formatRange, formatSigned, formatYield, fromInputUnit, inputUnitFor, parameterLabel, toInputUnit,
+  formatBytes, formatFigure, formatLimits, formatWait, formatPValue, formatQuantity, formatRange, formatSigned, formatYield, fromInputUnit, inputUnitFor, parameterLabel, toInputUnit,
 } from '../../../shared/utils/value-format'
 
 // Expected strings are written by hand. Digit grouping in threes on both sides of the decimal point, with a narrow
@@ -147,5 +147,24 @@ describe('formatFigure', () => {
     expect(formatFigure(-1.23456, 'σ')).toBe(s('−1.235~σ'))
     expect(formatFigure('frozen baseline')).toBe('frozen baseline')
     expect(formatFigure(null, 'dBm')).toBe('—')
+  })
+})
+
+describe('formatBytes and formatWait: sizes and waits as people read them', () => {
+  it('writes sizes with the binary prefixes of IEC 80000-13 (1 KiB = 1024 B)', () => {
+    expect(formatBytes(812)).toBe(s('812~B'))
+    expect(formatBytes(1024)).toBe(s('1.0~KiB'))
+    expect(formatBytes(3.4 * 1024)).toBe(s('3.4~KiB'))
+    expect(formatBytes(71.1 * 1024 ** 2)).toBe(s('71.1~MiB'))
+    expect(formatBytes(2 * 1024 ** 3)).toBe(s('2.0~GiB'))
+    expect(formatBytes(Number.NaN)).toBe('—')
+  })
+
+  it('keeps seconds up to a minute and a half, then rounds up to whole minutes', () => {
+    expect(formatWait(0.2)).toBe('1 s')
+    expect(formatWait(45)).toBe('45 s')
+    expect(formatWait(90)).toBe('90 s')
+    expect(formatWait(91)).toBe('2 minutes')
+    expect(formatWait(897)).toBe('15 minutes')
   })
 })
