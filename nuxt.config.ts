@@ -39,7 +39,7 @@ export default defineNuxtConfig({
       xContentTypeOptions: 'nosniff',
       // other sites learn nothing (verification links carry their code in the path); the app's own pages keep it
       referrerPolicy: 'same-origin',
-      // sent by server/plugins/https-headers.ts, and only on requests that came over HTTPS
+      // sent by server/plugins/security-headers.ts, and only on requests that came over HTTPS
       strictTransportSecurity: false,
     },
     // the app keeps its own limits in the database (request-limit.ts) and per-route body limits (64 MiB station
