@@ -217,6 +217,23 @@ describe('rejections download', () => {
     for (const l of lines.slice(1)) expect(l).not.toMatch(/,[=+\-@]/)
   })
 
+  it('keeps an unfinished import on the list behind fifty newer finished ones', async () => {
+    const station = await db('stations').where({ name: STATION }).first('id')
+    const user = await db('users').where({ email: ROLE_ACCOUNTS.admin }).first('id')
+    const old = new Date(Date.now() - 60 * 60_000)
+    const stalledId = randomUUID()
+    await db('import_jobs').insert({ id: stalledId, created_by: user.id, station_id: station.id, file_name: 'older-stalled.jsonl', format: 'jsonl', lines_total: 4, started_at: old, updated_at: old, received_at: old })
+    const now = new Date()
+    await db('import_jobs').insert(Array.from({ length: 50 }, (_, i) => ({
+      id: randomUUID(), created_by: user.id, station_id: station.id, file_name: `newer-${i}.jsonl`, format: 'jsonl', status: 'done',
+      lines_total: 1, started_at: now, updated_at: now, received_at: now, finished_at: now,
+    })))
+    const listed = (await call('GET', '/api/imports', { cookie: admin })).body.imports
+    expect(listed).toHaveLength(50)
+    expect(listed.map((j: any) => j.id)).toContain(stalledId)
+    expect((await call('POST', `/api/imports/${stalledId}/cancel`, { cookie: admin })).status).toBe(200)
+  })
+
   it('an unknown job is a 404', async () => {
     expect((await call('GET', `/api/imports/${randomUUID()}`, { cookie: admin })).status).toBe(404)
     expect((await call('GET', `/api/imports/${randomUUID()}/rejections.csv`, { cookie: admin })).status).toBe(404)

@@ -87,8 +87,9 @@ export async function lockImportJob(trx: Knex.Transaction, id: string): Promise<
   return (await trx('import_jobs').where({ id }).forUpdate().first('id')) !== undefined
 }
 
+/** Unfinished jobs first, so a stalled one never drops off the list behind newer finished ones. */
 export async function listImportJobs(db: Knex, limit: number): Promise<ImportJobRow[]> {
-  return (await base(db).orderBy('j.started_at', 'desc').orderBy('j.id').limit(limit)).map(toJob)
+  return (await base(db).orderByRaw("j.status = 'running' DESC").orderBy('j.started_at', 'desc').orderBy('j.id').limit(limit)).map(toJob)
 }
 
 /** Rejections in line order, after the row with internal id `after` (keyset paging). */
