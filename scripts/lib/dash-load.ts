@@ -55,6 +55,8 @@ const MODELS: Record<string, Model[]> = {
 
 export type DashLot = {
   id: number; code: string; productId: number; steps: string[]
+  /** bulk serials are the prefix and a 9-digit sequence number */
+  prefix: string
   /** epoch seconds of unit 0's first test and of the second revision taking effect */
   base: number; splitAt: number
   revisions: { first: number; second: number }
@@ -127,7 +129,7 @@ export async function openDashLot(db: Knex, code: string, splitUnit: number): Pr
   }
   return {
     lot: {
-      id: Number(row.id), code, productId: Number(product.id), steps, base,
+      id: Number(row.id), code, productId: Number(product.id), steps, prefix: SERIAL_PREFIX, base,
       splitAt: Math.floor(new Date(effective.effective_at).getTime() / 1000), revisions: { first, second },
       stations: stations.map(({ id, name }) => ({ id, name })),
     },
@@ -164,7 +166,7 @@ async function loadChunk(db: Knex, lot: DashLot, from: number, to: number): Prom
   const stationIds = lot.stations.map((s) => s.id).join(', ')
   const last = lot.steps[lot.steps.length - 1]!
   const middle = lot.steps.length > 1 ? lot.steps[lot.steps.length - 2]! : ''
-  const serial = (seq: string) => `CONCAT('${SERIAL_PREFIX}', LPAD(${seq}, 9, '0'))`
+  const serial = (seq: string) => `CONCAT(${sqlText(lot.prefix)}, LPAD(${seq}, 9, '0'))`
   const retested = (seqExpr: string) =>
     `((r.step = ${sqlText(last)} AND ${seqExpr} % ${RETEST_LAST.modulus} = ${RETEST_LAST.remainder}) OR (r.step = ${sqlText(middle)} AND ${seqExpr} % ${RETEST_MIDDLE.modulus} = ${RETEST_MIDDLE.remainder}))`
   await db.transaction(async (trx) => {
@@ -182,7 +184,7 @@ async function loadChunk(db: Knex, lot: DashLot, from: number, to: number): Prom
          JOIN (${stepRows(lot.steps)}) st ON st.attempt = 1 OR s.seq % st.m = st.r
        ORDER BY s.seq, st.off`,
       [lot.id, lot.base, lot.splitAt, lot.revisions.second, lot.revisions.first, lot.base, lot.base, lot.base, lot.productId])
-    const seqOf = `CAST(SUBSTRING(u.serial, ${SERIAL_PREFIX.length + 1}) AS UNSIGNED)`
+    const seqOf = `CAST(SUBSTRING(u.serial, ${lot.prefix.length + 1}) AS UNSIGNED)`
     // a derived table merged into the outer query re-evaluates `v` wherever it is used: the noise is a hash, not RAND()
     const v = 'x.v'
     const w = 'COALESCE(x.u, l.default_uncertainty, 0)'
@@ -219,7 +221,7 @@ async function loadChunk(db: Knex, lot: DashLot, from: number, to: number): Prom
 
 /** Bulk units the lot holds (sequence numbers 1..n). */
 export async function bulkUnits(db: Knex, lot: DashLot): Promise<number> {
-  const [[row]] = await db.raw(`SELECT COUNT(*) AS n FROM units WHERE lot_id = ? AND serial LIKE '${SERIAL_PREFIX}%'`, [lot.id])
+  const [[row]] = await db.raw(`SELECT COUNT(*) AS n FROM units WHERE lot_id = ? AND serial LIKE ${sqlText(lot.prefix + '%')}`, [lot.id])
   return Number(row.n)
 }
 
