@@ -41,10 +41,15 @@ beforeAll(async () => {
   const splitAt = base + 100 * 6
   const part = await freshPart(base, splitAt)
   const [lotId] = await db('lots').insert({ product_id: part.productId, code: `BDL-${tag}`, planned_qty: 1000 })
-  const stations = await db('stations').whereIn('name', ['ATE-T3-01', 'ATE-T3-02']).select('id', 'name')
+  // stations of its own, so no other test's station figures see these runs
+  const stations: { id: number; name: string }[] = []
+  for (const k of [1, 2, 3]) {
+    const name = `BDL-${tag}-${k}`
+    stations.push({ id: (await db('stations').insert({ name, location: 'bench rack' }))[0]!, name })
+  }
   lot = {
     id: lotId!, code: `BDL-${tag}`, productId: part.productId, steps: tripler.steps, prefix: `BDL${tag}-`, base, splitAt,
-    revisions: { first: part.first, second: part.second }, stations: stations.map((s: any) => ({ id: s.id, name: s.name })),
+    revisions: { first: part.first, second: part.second }, stations,
   }
   await growLot(db, lot, 0, WANT, () => {})
 }, 120_000)
