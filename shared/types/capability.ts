@@ -72,7 +72,14 @@ export type ParameterView = {
   driftMinUnits: number
 }
 
-export type PhaseNoiseOffset = { offsetHz: number; n: number; median: number | null; p10: number | null; p90: number | null; min: number | null; max: number | null; usl: number | null; lsl: number | null }
+/**
+ * n, min and max are exact; p10, median and p90 are placed in the kept bins of width `resolution` (dBc/Hz) and lie
+ * within one `resolution` of the sample's type-7 quantiles.
+ */
+export type PhaseNoiseOffset = {
+  offsetHz: number; n: number; median: number | null; p10: number | null; p90: number | null; min: number | null; max: number | null
+  usl: number | null; lsl: number | null; resolution: number | null
+}
 
 /** Phase noise of a lot at one step, over the first attempts judged by one revision and against that revision's mask. */
 export type PhaseNoiseView = {
@@ -86,12 +93,11 @@ export type PhaseNoiseView = {
   /** the revisions this step's values were judged by, oldest first, with their count of phase-noise runs */
   revisions: RevisionCount[]
   population: 'first'
-  cap: number
-  truncated: boolean
   offsets: PhaseNoiseOffset[]
+  /** n, mean, min, max and the histogram's counts are exact; the percentiles lie within `resolution` (s) of the sample's */
   jitter: {
     unit: 's'; n: number; usl: number | null; mean: number; percentiles: { p10: number; p50: number; p90: number }
-    min: number; max: number; histogram: { edges: number[]; counts: number[] }
+    min: number; max: number; resolution: number; histogram: { edges: number[]; counts: number[] }
   } | null
 }
 

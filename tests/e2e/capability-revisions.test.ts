@@ -120,9 +120,13 @@ describe('parameter view of a lot judged under two revisions', () => {
     expect(r.body.n).toBe(POWER_1.length)
     expect(r.body.normal.sigma).toBeCloseTo(sampleStandardDeviation(POWER_1), 10)
     expect(r.body.control.points.map((p: any) => p.value)).toEqual(POWER_1)
-    // the histogram spans the values and that revision's limits
-    expect(r.body.histogram.edges[0]).toBe(REVISION_1.power.lsl)
-    expect(r.body.histogram.edges[r.body.histogram.edges.length - 1]).toBeCloseTo(REVISION_1.power.usl, 9)
+    // the histogram spans the values and that revision's limits: its first bar holds the LSL, its last the USL
+    // (edges lie on the grid of the kept bins, so they bracket the limits rather than sit on them)
+    const edges: number[] = r.body.histogram.edges
+    expect(edges[0]).toBeLessThanOrEqual(Math.min(REVISION_1.power.lsl, ...POWER_1))
+    expect(edges[1]).toBeGreaterThan(REVISION_1.power.lsl)
+    expect(edges.at(-2)).toBeLessThanOrEqual(REVISION_1.power.usl)
+    expect(edges.at(-1)).toBeGreaterThan(Math.max(REVISION_1.power.usl, ...POWER_1))
   })
 
   it('answers 400 with a pointer for a revision the part does not have', async () => {

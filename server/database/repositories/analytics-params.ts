@@ -57,17 +57,6 @@ export async function sampleCounts(db: Knex, lotId: number, step: string, names:
   return rows.map((r: any) => ({ revisionId: Number(r.revision_id), name: r.name, qualifier: Number(r.qualifier), n: Number(r.n) }))
 }
 
-/**
- * Plausible first-attempt values of one lot parameter judged by one revision, newest first, at most `cap` of them
- * (one range of the (lot, name, qualifier, step, started_at) index, filtered by revision).
- */
-export async function firstAttemptValues(db: Knex, lotId: number, key: ParamKey & { revisionId: number }, cap: number): Promise<number[]> {
-  const rows = await db('measurements')
-    .where({ lot_id: lotId, name: key.name, qualifier: key.qualifier, step: key.step, first_attempt: true, implausible: false, revision_id: key.revisionId })
-    .orderBy('started_at', 'desc').limit(cap).select('value')
-  return rows.map((r: any) => Number(r.value))
-}
-
 /** The part's lot ids; engineering lots only when asked for. */
 export async function lotIdsOfProduct(db: Knex, productId: number, includeEngineering = false): Promise<number[]> {
   return (await db('lots').where({ product_id: productId }).modify((q) => { if (!includeEngineering) q.where('engineering', false) }).select('id')).map((r: any) => r.id)

@@ -34,15 +34,6 @@ export async function parameterMomentsByRevision(db: Knex, k: Omit<ParamKey, 're
   }))
 }
 
-/** Histogram counts computed in the database: `bins` equal bins over [min, max]. */
-export async function parameterHistogram(db: Knex, k: ParamKey, min: number, max: number, bins: number): Promise<number[]> {
-  const width = max > min ? (max - min) / bins : 1
-  const rows = await scope(db, k).select(db.raw('LEAST(GREATEST(FLOOR((value - ?) / ?), 0), ?) AS b, COUNT(*) AS c', [min, width, bins - 1])).groupBy('b')
-  const counts = new Array(bins).fill(0)
-  for (const r of rows as any[]) counts[Number(r.b)] = Number(r.c)
-  return counts
-}
-
 /** Centred regression sums of value against test order (x = rank / 1000), one pass in the database. */
 export async function parameterTrendSums(db: Knex, k: ParamKey, n: number, centre: number) {
   const inner = scope(db, k).select(db.raw('value - ? AS y, (ROW_NUMBER() OVER (ORDER BY m.started_at, m.id) - 1 - ?) / 1000 AS dx', [centre, (n - 1) / 2]))

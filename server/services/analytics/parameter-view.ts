@@ -3,11 +3,12 @@ import { ewma, individualsLimits, westernElectricHits } from '../../../shared/ut
 import { qualifierKind } from '../../../shared/utils/measurement-names'
 import { MIN_DRIFT_UNITS, slopeFromCentredSums } from '../../../shared/utils/regression'
 import { findLotHeader } from '../../database/repositories/lot-stats'
-import { findBaseline, parameterHistogram, parameterMomentsByRevision, parameterPoints, parameterTrendSums, type ParamKey, type RevisionMoments } from '../../database/repositories/parameter-values'
+import { findBaseline, parameterMomentsByRevision, parameterPoints, parameterTrendSums, type ParamKey, type RevisionMoments } from '../../database/repositories/parameter-values'
 import type { ParameterView, RevisionCount } from '../../../shared/types/capability'
 import { RuleError } from '../rule-error'
 import { parameterLabel } from '../../../shared/utils/value-format'
 import { revisionBook, type RevisionBook } from './revision-limits'
+import { keptHistogram } from './kept-histogram'
 
 export const BASELINE_POINTS = 25
 export const CHART_POINTS = 2000
@@ -52,15 +53,12 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
 
   const lo = Math.min(moments.min!, parameter.lsl ?? Infinity)
   const hi = Math.max(moments.max!, parameter.usl ?? -Infinity)
-  const pad = hi > lo ? 0 : Math.max(Math.abs(lo) * 1e-6, 1e-12)
-  const [counts, points, baselinePoints, sums] = await Promise.all([
-    parameterHistogram(db, key, lo - pad, hi + pad, BINS),
+  const [histogram, points, baselinePoints, sums] = await Promise.all([
+    keptHistogram(db, { ...key, revisionId: moments.revisionId }, lo, hi, BINS),
     parameterPoints(db, key, { tail: CHART_POINTS }),
     frozen ? Promise.resolve([]) : parameterPoints(db, key, { head: BASELINE_POINTS }),
     parameterTrendSums(db, key, moments.n, moments.mean!),
   ])
-  const width = (hi + pad - (lo - pad)) / BINS
-  const histogram = { edges: Array.from({ length: BINS + 1 }, (_, i) => lo - pad + i * width), counts }
 
   const base = frozen
     ? { centre: frozen.centre as number, sigma: frozen.sigma as number, n: frozen.n as number }

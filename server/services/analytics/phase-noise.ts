@@ -1,26 +1,30 @@
-// Phase noise of a lot by offset (percentile band against the mask) and the spread of integrated jitter.
+// Phase noise of a lot by offset (percentile band against the mask) and the spread of integrated jitter, from the
+// aggregates the fold keeps: counts, means and extremes from the statistics rows, percentiles and the jitter
+// histogram from the fine bins (lot_param_bins), so the view reads a few thousand rows whatever the lot's size.
 import type { Knex } from 'knex'
-import { histogram, quantileSorted } from '../../../shared/utils/percentiles'
-import { firstAttemptValues, lotRef, sampleCounts, type SampleCount } from '../../database/repositories/analytics-params'
+import { displayHistogram, quantileFromBins, type FineBin } from '../../../shared/utils/fine-bins'
+import { lotRef, sampleCounts, type SampleCount } from '../../database/repositories/analytics-params'
+import { keptBins, sampleSummaries, type KeptBins, type SampleSummary } from '../../database/repositories/param-bins'
 import { listEffectiveRevisions, revisionAt } from '../../database/repositories/spec-lookup'
 import type { PhaseNoiseView, RevisionCount } from '../../../shared/types/capability'
 import { RuleError } from '../rule-error'
 import { freshenLotStats } from '../ingest/fold-param-stats'
 import { bookOf } from './revision-limits'
 
-/** Most recent first attempts read per offset; beyond this the view says it is a sample. */
-export const VALUES_PER_OFFSET_CAP = 20_000
-
 export function jitterBins(n: number): number {
   return Math.min(40, Math.max(5, Math.ceil(Math.log2(Math.max(n, 1)) + 1)))
 }
 
-export function bandOf(values: number[]) {
-  const sorted = [...values].sort((a, b) => a - b)
-  if (!sorted.length) return { n: 0, median: null, p10: null, p90: null, min: null, max: null }
+type Band = { n: number; median: number | null; p10: number | null; p90: number | null; min: number | null; max: number | null; resolution: number | null; fine: FineBin[]; exponent: number }
+
+/** Exact n, min and max from the statistics rows; percentiles placed in the first-attempt fine bins. */
+function bandOf(summary: SampleSummary | undefined, kept: KeptBins | undefined): Band {
+  const fine = (kept?.bins ?? []).map((b) => ({ k: b.k, n: b.nFirst })).filter((b) => b.n > 0)
+  if (!summary || !kept || !fine.length) return { n: 0, median: null, p10: null, p90: null, min: null, max: null, resolution: null, fine: [], exponent: 0 }
+  const q = (p: number) => quantileFromBins(fine, kept.exponent, p, summary)
   return {
-    n: sorted.length, median: quantileSorted(sorted, 0.5), p10: quantileSorted(sorted, 0.1), p90: quantileSorted(sorted, 0.9),
-    min: sorted[0]!, max: sorted[sorted.length - 1]!,
+    n: summary.n, median: q(0.5), p10: q(0.1), p90: q(0.9), min: summary.min, max: summary.max,
+    resolution: 2 ** kept.exponent, fine, exponent: kept.exponent,
   }
 }
 
@@ -58,35 +62,34 @@ export async function lotPhaseNoise(db: Knex, code: string, { step, revision: as
   const measured = counts.filter((c) => c.revisionId === revisionId && c.name === 'phase_noise' && c.n > 0).map((c) => c.qualifier)
   const offsets = [...new Set([...measured, ...mask.map((l) => l.qualifier)])].sort((a, b) => a - b)
 
-  let truncated = false
-  const read = async (name: string, qualifier: number) => {
-    const values = await firstAttemptValues(db, lot.id, { step, name, qualifier, revisionId }, VALUES_PER_OFFSET_CAP + 1)
-    if (values.length > VALUES_PER_OFFSET_CAP) { truncated = true; values.length = VALUES_PER_OFFSET_CAP }
-    return values
-  }
-  const bands = await Promise.all(offsets.map(async (offsetHz) => {
+  // one snapshot: the statistics rows and the bins of one fold, never of two
+  const names = ['phase_noise', 'integrated_jitter']
+  const [summaries, kept] = await db.transaction(async (trx) => Promise.all([
+    sampleSummaries(trx, { lotId: lot.id, step, revisionId, names }),
+    keptBins(trx, { lotId: lot.id, step, revisionId, names }),
+  ]), { isolationLevel: 'repeatable read' })
+  const find = <T extends { name: string; qualifier: number }>(xs: T[], name: string, qualifier: number) => xs.find((x) => x.name === name && x.qualifier === qualifier)
+  const band = (name: string, qualifier: number) => bandOf(find(summaries, name, qualifier), find(kept, name, qualifier))
+  const bands = offsets.map((offsetHz) => {
     const limit = mask.find((l) => l.qualifier === offsetHz)
-    return { offsetHz, ...bandOf(await read('phase_noise', offsetHz)), usl: limit?.usl ?? null, lsl: limit?.lsl ?? null }
-  }))
+    const { fine: _fine, exponent: _exponent, ...b } = band('phase_noise', offsetHz)
+    return { offsetHz, ...b, usl: limit?.usl ?? null, lsl: limit?.lsl ?? null }
+  })
 
-  const jitterValues = await read('integrated_jitter', 0)
   const jitterLimit = limits.find((l) => l.name === 'integrated_jitter')
-  const jb = bandOf(jitterValues)
-  const h = jitterValues.length ? histogram(jitterValues, { bins: jitterBins(jitterValues.length) }) : null
+  const jb = band('integrated_jitter', 0)
+  const jitterMean = find(summaries, 'integrated_jitter', 0)?.mean
   return {
     lot: { code: lot.code, partNumber: lot.partNumber, productName: lot.productName, status: lot.status, steps: lot.steps },
     step,
     ...book.tag(revisionId),
     revisions,
     population: 'first' as const,
-    cap: VALUES_PER_OFFSET_CAP,
-    truncated,
     offsets: bands,
     jitter: jb.n === 0 ? null : {
-      unit: 's' as const, n: jb.n, usl: jitterLimit?.usl ?? null,
-      mean: jitterValues.reduce((s, x) => s + x, 0) / jb.n,
-      percentiles: { p10: jb.p10!, p50: jb.median!, p90: jb.p90! }, min: jb.min!, max: jb.max!,
-      histogram: { edges: h!.edges, counts: h!.counts },
+      unit: 's' as const, n: jb.n, usl: jitterLimit?.usl ?? null, mean: jitterMean!,
+      percentiles: { p10: jb.p10!, p50: jb.median!, p90: jb.p90! }, min: jb.min!, max: jb.max!, resolution: jb.resolution!,
+      histogram: displayHistogram(jb.fine, jb.exponent, jb.min!, jb.max!, jitterBins(jb.n)),
     },
   }
 }

@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import { ensureFoldLease, markFolded, takeFoldLease } from '../../database/repositories/fold-leases'
 import { rebuildParamRows } from '../../database/repositories/param-stats'
 import { recountStepStats } from '../../database/repositories/step-stats'
+import { rebuildLotBins } from '../ingest/fold-bins'
 
 /**
  * Recomputes a lot's aggregate rows from its stored runs and measurements inside `trx`, whose caller holds the
@@ -10,6 +11,7 @@ import { recountStepStats } from '../../database/repositories/step-stats'
  */
 export async function rebuildLotAggregatesIn(trx: Knex.Transaction, lotId: number): Promise<void> {
   await rebuildParamRows(trx, { lotId })
+  await rebuildLotBins(trx, lotId)
   await trx('lot_stats_rebuild').where({ lot_id: lotId }).del()
   await recountStepStats(trx, lotId)
   await markFolded(trx, lotId)

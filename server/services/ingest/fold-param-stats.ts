@@ -12,6 +12,7 @@ import {
   rebuildMarksOfLot, rebuildParamRows, valuesOfRuns, writeMovingRange, writeParamRows,
 } from '../../database/repositories/param-stats'
 import { RetryLater } from '../rule-error'
+import { addValuesToBins, rebuildMarkedBins } from './fold-bins'
 import { addValue, emptyParamRow, inTimeOrder, type ParamRow, type ParamRowKey } from './param-stats-merge'
 
 const RUNS_PER_FOLD = 500
@@ -54,6 +55,7 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: b
       }
       const written = [...touched].map((k) => rows.get(k)!)
       await writeParamRows(trx, written)
+      await addValuesToBins(trx, values)
       await forgetQueuedRuns(trx, runIds)
       // a reader repairs once its last slice is in, not after every slice
       if (repair && runIds.length < RUNS_PER_FOLD) stale = await staleParamRows(trx, lotId)
@@ -68,6 +70,7 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: b
       await rebuildParamRows(trx, m)
       await forgetRebuildMark(trx, m)
     }
+    await rebuildMarkedBins(trx, marks)
     // the product's alert rules look at the new results; last, so the product's mark row is held only until commit
     if (runIds.length || marks.length) await markProductOfLot(trx, lotId)
     await markFolded(trx, lotId)

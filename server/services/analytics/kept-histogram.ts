@@ -1,0 +1,15 @@
+// The parameter view's histogram from the fine bins the fold keeps: display bins are unions of fine bins, so each
+// count is exact for its edges, and nothing reads the lot's measurements.
+import type { Knex } from 'knex'
+import { binExponent, displayHistogram } from '../../../shared/utils/fine-bins'
+import { keptBins } from '../../database/repositories/param-bins'
+import type { ParamKey } from '../../database/repositories/parameter-values'
+import { freshenLotStats } from '../ingest/fold-param-stats'
+
+/** At most `maxBins` bins over [lo, hi] (which holds every value), of the first attempts or of all attempts. */
+export async function keptHistogram(db: Knex, key: ParamKey & { revisionId: number }, lo: number, hi: number, maxBins: number): Promise<{ edges: number[]; counts: number[] }> {
+  await freshenLotStats(db, [key.lotId])
+  const [group] = await keptBins(db, { lotId: key.lotId, step: key.step, revisionId: key.revisionId, names: [key.name], qualifier: key.qualifier })
+  const fine = (group?.bins ?? []).map((b) => ({ k: b.k, n: key.firstOnly ? b.nFirst : b.nAll }))
+  return displayHistogram(fine, group?.exponent ?? binExponent(lo, hi), lo, hi, maxBins)
+}
