@@ -61,6 +61,8 @@ describe('the lot page of a lot judged under two revisions', () => {
     await expect.poll(() => page.locator('.apexcharts-canvas').count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(1)
     await page.getByLabel('Revision', { exact: true }).selectOption('1')
     await expect.poll(() => page.locator('[data-test="pn-revision"]').textContent(), { timeout: 20_000 }).toContain('rev. 1')
+    // the percentiles are read from kept bins, and the page says how close that is
+    expect(await page.locator('[data-test="pn-resolution"]').textContent()).toMatch(/within one bin of the exact percentiles/)
     await shot(page, 'phase-noise-two-revisions')
     await page.context().close()
   })

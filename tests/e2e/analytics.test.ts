@@ -190,7 +190,9 @@ describe('GET /api/trends', () => {
     expect(r.status).toBe(200)
     expect(r.body.lots).toEqual([])
     const today = new Date().toISOString().slice(0, 10)
-    const t = await get(`/api/trends?part=VFW-T3-375&name=output_power&step=final&from=${today}&to=${today}`)
+    // the runs started up to an hour ago: just after midnight UTC that is yesterday
+    const since = new Date(Date.now() - 2 * 3_600_000).toISOString().slice(0, 10)
+    const t = await get(`/api/trends?part=VFW-T3-375&name=output_power&step=final&from=${since}&to=${today}`)
     expect(t.body.lots.map((l: any) => l.code)).toContain(LOT)
     const bad = await get('/api/trends?part=VFW-T3-375&name=output_power&from=yesterday')
     expect(bad.status).toBe(400)
