@@ -38,6 +38,9 @@ export function mariadbInstance({ base = resolve(dataDir, 'mariadb'), fail = fai
   const socket = resolve(base, 'mysqld.sock')
   const pidFile = resolve(base, 'mysqld.pid')
   const errLog = resolve(base, 'mysqld.err')
+  // its own folder for the temporary tables of large sorts and groupings: another program tidying the system's
+  // temporary folder cannot pull a file from under a running query
+  const tmpDir = resolve(base, 'tmp')
   const where = relative(root, base) || base
 
   const admin = (args, opts = {}) => spawnSync('mariadb-admin', ['--no-defaults', `--socket=${socket}`, '-uroot', ...args], { encoding: 'utf8', ...opts })
@@ -60,7 +63,7 @@ export function mariadbInstance({ base = resolve(dataDir, 'mariadb'), fail = fai
     ensureDebianPackage('mariadbd', 'mariadb-server')
     if (isRunning()) { applyCommitSetting(); return }
     if (await portTaken(port)) return fail(`port ${port} on 127.0.0.1 is already in use; set TERCET_DB_PORT to a free port (e.g. TERCET_DB_PORT=3317 npm start).`)
-    mkdirSync(base, { recursive: true })
+    mkdirSync(tmpDir, { recursive: true })
     if (!existsSync(resolve(datadir, 'mysql'))) {
       log(`initialising the MariaDB data folder (${where})…`)
       const init = spawnSync('mariadb-install-db', ['--no-defaults', '--user=root', `--datadir=${datadir}`,
@@ -69,7 +72,7 @@ export function mariadbInstance({ base = resolve(dataDir, 'mariadb'), fail = fai
     }
     log(`starting MariaDB on 127.0.0.1:${port}…`)
     const child = spawn('mariadbd', ['--no-defaults', '--user=root', `--datadir=${datadir}`, '--bind-address=127.0.0.1',
-      `--port=${port}`, `--socket=${socket}`, `--pid-file=${pidFile}`, `--log-error=${errLog}`, '--skip-name-resolve',
+      `--port=${port}`, `--socket=${socket}`, `--pid-file=${pidFile}`, `--log-error=${errLog}`, `--tmpdir=${tmpDir}`, '--skip-name-resolve',
       '--innodb-buffer-pool-size=512M', `--innodb-flush-log-at-trx-commit=${commitSetting().flushLog}`, `--sync-binlog=${commitSetting().syncBinlog}`,
       '--max-connections=300', '--thread-handling=pool-of-threads',
       // a statistics fold runs for tens of milliseconds: after 20 ms its thread-pool group takes another thread,
