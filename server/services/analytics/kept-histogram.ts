@@ -11,5 +11,7 @@ export async function keptHistogram(db: Knex, key: ParamKey & { revisionId: numb
   await freshenLotStats(db, [key.lotId])
   const [group] = await keptBins(db, { lotId: key.lotId, step: key.step, revisionId: key.revisionId, names: [key.name], qualifier: key.qualifier })
   const fine = (group?.bins ?? []).map((b) => ({ k: b.k, n: key.firstOnly ? b.nFirst : b.nAll }))
-  return displayHistogram(fine, group?.exponent ?? binExponent(lo, hi), lo, hi, maxBins)
+  // equal values and no limits: a little room either side rather than one bin 2^−50 of the value wide
+  const pad = hi > lo ? 0 : Math.max(Math.abs(lo) * 1e-6, 1e-12)
+  return displayHistogram(fine, group?.exponent ?? binExponent(lo - pad, hi + pad), lo - pad, hi + pad, maxBins)
 }
