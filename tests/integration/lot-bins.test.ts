@@ -8,7 +8,8 @@ import { createKnex, connectionFromEnv } from '../../server/database/connection'
 import { numberLiteral } from '../../server/database/sql-literals'
 import { ingestRun } from '../../server/services/ingest/ingest-run'
 import { foldPendingStats, freshenLotStats } from '../../server/services/ingest/fold-param-stats'
-import { rebuildLotAggregates } from '../../server/services/analytics/rebuild-aggregates'
+import { rebuildLotAggregates, rebuildLotAggregatesIn } from '../../server/services/analytics/rebuild-aggregates'
+import { ensureFoldLease, takeFoldLease } from '../../server/database/repositories/fold-leases'
 import { lotPhaseNoise } from '../../server/services/analytics/phase-noise'
 import { parameterView } from '../../server/services/analytics/parameter-view'
 import { validateRun } from '../../server/utils/run-validator'
@@ -71,7 +72,7 @@ afterAll(async () => { await db.destroy() })
 const sortedRows = (rows: any[]) => rows.map((r) => `${r.step}|${r.name}|${Number(r.qualifier)}|${Number(r.revision_id)}|${Number(r.k)}|${Number(r.n_first)}|${Number(r.n_all)}`).sort()
 
 /** The kept bins equal a recount of the stored rows at each group's exponent, for both populations. */
-async function expectBinsEqualRows() {
+async function expectBinsEqualRows(lotId: number) {
   const [extremes] = await db.raw(`SELECT step, name, qualifier, revision_id, MIN(value) AS mn, MAX(value) AS mx FROM measurements
     WHERE lot_id = ? AND NOT implausible GROUP BY step, name, qualifier, revision_id`, [lotId])
   const groups = await db('lot_param_bin_groups').where({ lot_id: lotId })
@@ -106,7 +107,7 @@ const countIn = (values: number[], lo: number, hi: number) => values.filter((v) 
 describe('fine bins kept by the fold', () => {
   it('equal a recount of the rows (GROUP BY FLOOR(value / 2^e)) after shuffled arrivals, retests and late first attempts', async () => {
     expect(grown).toBeGreaterThan(0)
-    await expectBinsEqualRows()
+    await expectBinsEqualRows(lotId)
   })
 
   it('give phase-noise percentiles within one fine width of the sample quantiles (type 7, simple-statistics)', async () => {
@@ -156,10 +157,33 @@ describe('fine bins kept by the fold', () => {
     const before = await db('lot_param_bins').where({ lot_id: lotId }).select('step', 'name', 'qualifier', 'revision_id', 'k', 'n_first', 'n_all')
     const view = await lotPhaseNoise(db, lotCode, { step: 'final', revision: null })
     await rebuildLotAggregates(db, lotId)
-    await expectBinsEqualRows()
+    await expectBinsEqualRows(lotId)
     const after = await db('lot_param_bins').where({ lot_id: lotId }).select('step', 'name', 'qualifier', 'revision_id', 'k', 'n_first', 'n_all')
     expect(sortedRows(after)).toEqual(sortedRows(before))
     expect(await lotPhaseNoise(db, lotCode, { step: 'final', revision: null })).toEqual(view)
+  })
+})
+
+describe('a rebuild while runs wait for the fold', () => {
+  it('leaves the queued runs to the fold, which then counts them once', async () => {
+    const code = `${lotCode}-Q`
+    const runs = (from: number, count: number) => Array.from({ length: count }, (_, u) => generateRun({
+      product: tripler, lot: code, serial: `${code}-${from + u}`, step: 'final', startedAt: new Date(base + (from + u) * 60_000), rand, failRate: 0.1, withTrace: true,
+    }))
+    for (const run of runs(0, 6)) await post(run)
+    const id = (await db('lots').where({ code }).first('id')).id as number
+    await freshenLotStats(db, [id])
+    await ensureFoldLease(db, id)
+    // holding the lot's lease, as a fold in progress would, keeps any other folder off the runs posted meanwhile
+    await db.transaction(async (hold) => {
+      expect(await takeFoldLease(hold, id, 5)).toBe('taken')
+      // values far from the first ones: the fold must coarsen the rebuilt groups when it adds them
+      for (const run of runs(6, 8)) await post({ ...run, measurements: run.measurements.map((m: any) => m.name === 'output_power' ? { ...m, value: m.value - 3 } : m) })
+      expect(Number(((await db('lot_stats_pending').where({ lot_id: id }).count({ n: '*' }).first()) as any).n)).toBe(8)
+      await rebuildLotAggregatesIn(hold, id)
+    })
+    await freshenLotStats(db, [id])
+    await expectBinsEqualRows(id)
   })
 })
 
