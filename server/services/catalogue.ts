@@ -1,5 +1,6 @@
 import type { Knex } from 'knex'
 import { writeAudit } from '../database/repositories/audit'
+import { restandProductLots } from '../database/repositories/unit-standing'
 import { findProductByPartNumber, insertProduct, updateProduct, type ProductFields, type ProductRecord } from '../database/repositories/products'
 import { findSourceRevision, stepsInUse } from '../database/repositories/spec-revisions'
 import { invalidateSpecCache } from './ingest/caches'
@@ -64,6 +65,8 @@ export async function changeProduct(db: Knex, actorId: number, partNumber: strin
       before: auditView(before), after: auditView({ ...next, partNumber, outputHz: next.multiplier * next.inputHz }),
     })
     await updateProduct(trx, before.id, next)
+    // the units' standings read the product's steps (writes wait on the product row we hold)
+    if (JSON.stringify(next.steps) !== JSON.stringify(before.steps)) await restandProductLots(trx, before.id)
     return findProductByPartNumber(trx, partNumber)
   })
   if (changed) invalidateSpecCache(changed.id)

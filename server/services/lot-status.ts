@@ -1,9 +1,10 @@
 import type { Knex } from 'knex'
 import { writeAudit } from '../database/repositories/audit'
-import { lockLotByCode, unitStepsOfLot, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
+import { lockLotByCode, notReadyUnitSteps, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
 import { findProductById } from '../database/repositories/products'
 import { invalidateLotCache } from './ingest/caches'
 import { lotReadiness } from './lot-readiness'
+import { lotUnitCounts } from '../database/repositories/unit-standing'
 import { RuleError } from './rule-error'
 import type { Signature } from '../utils/signature'
 
@@ -39,7 +40,8 @@ const LISTED = 50
  */
 async function releaseDeviation(trx: Knex.Transaction, lot: LotRow, deviation: string | undefined) {
   const product = await findProductById(trx, lot.productId)
-  const readiness = lotReadiness(await unitStepsOfLot(trx, lot.id), product?.steps ?? [])
+  // only the units the write path marked not ready are read; the count of all comes from the lot's counters
+  const readiness = { units: (await lotUnitCounts(trx, lot.id)).units, notReady: lotReadiness(await notReadyUnitSteps(trx, lot.id), product?.steps ?? []).notReady }
   if (readiness.units === 0) throw new RuleError(409, 'The lot has no tested units to release.')
   if (!readiness.notReady.length) return null
   if (!deviation) {

@@ -1,4 +1,4 @@
-import { UNIT_SORTS, UNIT_VERDICTS, type UnitQuery, type UnitSort, type UnitVerdict } from '../database/repositories/lot-units'
+import { decodeUnitCursor, UNIT_SORTS, UNIT_VERDICTS, type UnitCursor, type UnitQuery, type UnitSort, type UnitVerdict } from '../database/repositories/lot-units'
 import type { FieldError } from '../../shared/types/problem'
 import { problem } from './problem'
 import { firstValue as one } from './query-values'
@@ -6,7 +6,7 @@ import { firstValue as one } from './query-values'
 export const UNITS_PAGE_MAX = 200
 
 /** Reads the unit list's paging, sorting and filters from the query string; 400 with pointers into /query. */
-export function parseUnitQuery(raw: Record<string, unknown>): { query: UnitQuery; page: number; pageSize: number } {
+export function parseUnitQuery(raw: Record<string, unknown>): { query: UnitQuery; page: number; pageSize: number; after?: UnitCursor } {
   const errors: FieldError[] = []
   const bad = (name: string, message: string) => errors.push({ pointer: `/query/${name}`, message })
   const int = (name: string, dflt: number, min: number, max: number) => {
@@ -33,11 +33,16 @@ export function parseUnitQuery(raw: Record<string, unknown>): { query: UnitQuery
   for (const v of verdicts) if (!UNIT_VERDICTS.includes(v)) bad('verdict', `must be among ${UNIT_VERDICTS.join(', ')}`)
   const serial = one(raw.serial)
   if (serial && serial.length > 64) bad('serial', 'must be at most 64 characters')
+  const serialMatch = one(raw.serialMatch) ?? 'prefix'
+  if (serialMatch !== 'prefix' && serialMatch !== 'contains') bad('serialMatch', 'must be prefix or contains')
+  const afterText = one(raw.after)
+  const after = afterText === undefined || !UNIT_SORTS.includes(sort) ? undefined : decodeUnitCursor(afterText, sort)
+  if (afterText !== undefined && !after) bad('after', 'must be a cursor the list handed out, for the same sort')
   const query: UnitQuery = {
-    serial, verdicts, minAttempts: int('minAttempts', 0, 1, 1000) || undefined, station: one(raw.station),
+    serial, serialMatch: serialMatch as 'prefix' | 'contains', verdicts, minAttempts: int('minAttempts', 0, 1, 1000) || undefined, station: one(raw.station),
     from: date('from'), to: date('to'), sort, dir: dir as 'asc' | 'desc',
   }
   if (errors.length) throw problem(400, 'Some query parameters are not valid.', { errors })
-  return { query, page, pageSize }
+  return { query, page, pageSize, after }
 }
 

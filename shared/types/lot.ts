@@ -27,7 +27,11 @@ export type LotUnitRow = {
   maxAttempts: number; runs: number; station: string | null; lastTestedAt: string | null
 }
 export type LotUnitsPage = {
-  lot: string; page: number; pageSize: number; total: number; pageCount: number
+  lot: string; page: number; pageSize: number
+  /** matching units; when `totalExact` is false there are more than this (a bounded count) */
+  total: number; totalExact: boolean; pageCount: number
+  /** the cursor of the row after this page (`after=`), null on the last page */
+  next: string | null
   sort: 'serial' | 'verdict' | 'attempts' | 'runs' | 'station' | 'date' | 'step'; dir: 'asc' | 'desc'
   units: LotUnitRow[]
   /** every station that tested a unit of the lot, for the filter */

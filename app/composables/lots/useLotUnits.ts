@@ -4,8 +4,9 @@ import type { LotUnitsPage } from '#shared/types/lot'
 import { plantDayRange } from '~/utils/plant-time'
 import { usePlantTime } from '~/composables/settings/usePlantTime'
 
-export type UnitFilters = { serial: string; verdict: string; minAttempts: string; station: string; from: string; to: string }
-const NO_FILTERS: UnitFilters = { serial: '', verdict: '', minAttempts: '', station: '', from: '', to: '' }
+/** `match`: '' for serials that start with the text (fast), 'contains' for anywhere in them (reads the whole lot) */
+export type UnitFilters = { serial: string; match: string; verdict: string; minAttempts: string; station: string; from: string; to: string }
+const NO_FILTERS: UnitFilters = { serial: '', match: '', verdict: '', minAttempts: '', station: '', from: '', to: '' }
 const FILTER_KEYS = Object.keys(NO_FILTERS) as (keyof UnitFilters)[]
 const SORT_KEY: Record<string, string> = { serial: 'serial', verdict: 'verdict', lastStep: 'step', maxAttempts: 'attempts', runs: 'runs', station: 'station', lastTestedAt: 'date' }
 const SORT_COLUMN = Object.fromEntries(Object.entries(SORT_KEY).map(([col, key]) => [key, col]))
@@ -79,20 +80,32 @@ export function useLotUnits(code: Ref<string>) {
     const s = sorting.value[0] ?? { id: 'serial', desc: false }
     const q: Record<string, string> = { sort: SORT_KEY[s.id] ?? 'serial', dir: s.desc ? 'desc' : 'asc' }
     if (f.serial.trim()) q.serial = f.serial.trim()
+    if (f.serial.trim() && f.match === 'contains') q.serialMatch = 'contains'
     if (f.verdict) q.verdict = f.verdict
     if (f.minAttempts) q.minAttempts = f.minAttempts
     if (f.station) q.station = f.station
     Object.assign(q, plantDayRange(f.from, f.to, zone.value))
     return q
   })
-  const query = computed(() => ({ ...filterQuery.value, page: pagination.value.pageIndex + 1, pageSize: pagination.value.pageSize }))
+  // the cursor each page handed out for the next: stepping on reads the index from there instead of counting rows off
+  const cursors = new Map<string, string>()
+  const cursorKey = (pageIndex: number) => JSON.stringify([filterQuery.value, pagination.value.pageSize, pageIndex])
+  const query = computed(() => {
+    const q: Record<string, string | number> = { ...filterQuery.value, page: pagination.value.pageIndex + 1, pageSize: pagination.value.pageSize }
+    const after = cursors.get(cursorKey(pagination.value.pageIndex))
+    if (after) q.after = after
+    return q
+  })
   const fetched = useFetch<LotUnitsPage | null>(() => `/api/lots/${encodeURIComponent(code.value)}/units`, { query, default: () => null })
+  watch(fetched.data, (d) => { if (d?.next) cursors.set(cursorKey(d.page), d.next) }, { immediate: true })
   const csvHref = computed(() => `/api/lots/${encodeURIComponent(code.value)}/units.csv?${new URLSearchParams(filterQuery.value)}`)
   const pageCount = computed(() => fetched.data.value?.pageCount ?? 1)
+  // past a bounded count the list knows only that there are more
+  const totalExact = computed(() => fetched.data.value?.totalExact ?? true)
   function clearFilters() { Object.assign(filters, NO_FILTERS) }
 
   // `ready`: the first page, for the page to await before it renders on the server
-  return { ...fetched, ready: fetched, sorting, pagination, columnVisibility, filters, csvHref, pageCount, clearFilters }
+  return { ...fetched, ready: fetched, sorting, pagination, columnVisibility, filters, csvHref, pageCount, totalExact, clearFilters }
 }
 
 export type LotUnitsHandle = ReturnType<typeof useLotUnits>

@@ -35,6 +35,9 @@ export function useLotUnitsTable(units: LotUnitsHandle) {
     features, columns,
     data: computed(() => data.value?.units ?? []),
     rowCount: computed(() => data.value?.total ?? 0),
+    // past a bounded count the page count is not known (-1), so Next stays open; never undefined (the adapter would
+    // then hand the table this computed itself)
+    pageCount: computed(() => (data.value?.totalExact === false ? -1 : Math.max(1, Math.ceil((data.value?.total ?? 0) / pagination.value.pageSize)))),
     manualSorting: true, manualPagination: true, enableMultiSort: false, enableSortingRemoval: false,
     state: computed(() => ({ sorting: sorting.value, pagination: pagination.value, columnVisibility: columnVisibility.value })),
     onSortingChange: (next: Updater<SortingState>) => { sorting.value = resolve(next, sorting.value); pagination.value = { ...pagination.value, pageIndex: 0 } },

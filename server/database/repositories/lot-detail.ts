@@ -41,35 +41,6 @@ export async function updateLotKind(trx: Knex, id: number, engineering: boolean)
   await trx('lots').where({ id }).update({ engineering, engineering_source: 'hand' })
 }
 
-export type LotCounts = {
-  units: number; completed: number; passed: number; failed: number; inProgress: number; retested: number
-  firstRunAt: Date | null; lastRunAt: Date | null
-}
-
-/**
- * Units tested so far and where they stand. A unit counts as completed once its last step (the product's
- * final one) has a result; failed means some step's latest result is a fail.
- */
-export async function lotCounts(db: Knex, lotId: number, lastStep: string | undefined): Promise<LotCounts> {
-  const per = db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').where('u.lot_id', lotId).groupBy('u.id')
-    .select('u.id', db.raw("COALESCE(MAX(us.latest_verdict = 'fail'), 0) AS any_fail"), db.raw('COALESCE(MAX(us.step = ?), 0) AS at_last', [lastStep ?? '']),
-      db.raw('COALESCE(MAX(us.attempts), 0) AS max_attempts'))
-  const [agg] = await db.from(per.as('x')).select(
-    db.raw('COUNT(*) AS units'),
-    db.raw('COALESCE(SUM(at_last = 1), 0) AS completed'),
-    db.raw('COALESCE(SUM(at_last = 1 AND any_fail = 0), 0) AS passed'),
-    db.raw('COALESCE(SUM(any_fail = 1), 0) AS failed'),
-    db.raw('COALESCE(SUM(at_last = 0 AND any_fail = 0), 0) AS in_progress'),
-    db.raw('COALESCE(SUM(max_attempts > 1), 0) AS retested'),
-  )
-  const [times] = await db('test_runs').where({ lot_id: lotId }).select(db.raw('MIN(started_at) AS first_run'), db.raw('MAX(finished_at) AS last_run'))
-  return {
-    units: Number(agg.units), completed: Number(agg.completed), passed: Number(agg.passed), failed: Number(agg.failed),
-    inProgress: Number(agg.in_progress), retested: Number(agg.retested),
-    firstRunAt: times?.first_run ?? null, lastRunAt: times?.last_run ?? null,
-  }
-}
-
 /** Each unit of the lot with its latest result per step tested, for the release check. */
 export async function unitStepsOfLot(db: Knex, lotId: number): Promise<UnitStepRow[]> {
   const rows = await db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').leftJoin('test_runs as r', 'r.id', 'us.latest_run_id')
@@ -77,7 +48,17 @@ export async function unitStepsOfLot(db: Knex, lotId: number): Promise<UnitStepR
   return rows.map((r: any) => ({ serial: r.serial, step: r.step ?? null, latestVerdict: r.latest_verdict ?? null, calibrationLapsed: !!r.calibration_lapsed }))
 }
 
-/** Runs stored after the given moment: for a released lot, what arrived after its release. */
+/**
+ * The step rows of the lot's units that the release check would hold back (`ready` kept on the unit's row by the
+ * write path), read through the (lot_id, ready, serial) index: what lotReadiness needs to name their problems.
+ */
+export async function notReadyUnitSteps(db: Knex, lotId: number): Promise<UnitStepRow[]> {
+  const rows = await db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').leftJoin('test_runs as r', 'r.id', 'us.latest_run_id')
+    .where('u.lot_id', lotId).where('u.ready', false).select('u.serial', 'us.step', 'us.latest_verdict', 'r.calibration_lapsed')
+  return rows.map((r: any) => ({ serial: r.serial, step: r.step ?? null, latestVerdict: r.latest_verdict ?? null, calibrationLapsed: !!r.calibration_lapsed }))
+}
+
+/** Runs stored after the given moment (the (lot_id, received_at) index): for a released lot, what arrived after its release. */
 export async function runsReceivedSince(db: Knex, lotId: number, since: Date): Promise<number> {
   const r = await db('test_runs').where({ lot_id: lotId }).andWhere('received_at', '>', since).count({ n: '*' }).first()
   return Number((r as any)?.n ?? 0)

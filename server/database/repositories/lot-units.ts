@@ -1,4 +1,7 @@
+// The lot's units list, read from each unit's standing on its row (kept by the write path) through the indexes
+// (lot_id, <sort column>, serial): a page is an index range, never a sort of the lot.
 import type { Knex } from 'knex'
+import type { Counter } from './unit-standing'
 
 export const UNIT_SORTS = ['serial', 'verdict', 'attempts', 'runs', 'station', 'date', 'step'] as const
 export type UnitSort = (typeof UNIT_SORTS)[number]
@@ -6,7 +9,9 @@ export const UNIT_VERDICTS = ['pass', 'fail', 'incomplete', 'untested'] as const
 export type UnitVerdict = (typeof UNIT_VERDICTS)[number]
 
 export type UnitQuery = {
-  serial?: string; verdicts?: UnitVerdict[]; minAttempts?: number; station?: string; from?: Date; to?: Date
+  /** serial: its start (an index range), or with `serialMatch: 'contains'` anywhere in it (reads every unit of the lot) */
+  serial?: string; serialMatch?: 'prefix' | 'contains'
+  verdicts?: UnitVerdict[]; minAttempts?: number; station?: string; from?: Date; to?: Date
   sort: UnitSort; dir: 'asc' | 'desc'
 }
 
@@ -15,56 +20,143 @@ export type UnitListRow = {
   maxAttempts: number; runs: number; station: string | null; lastTestedAt: Date | null
 }
 
-const SORT_COLUMN: Record<UnitSort, string> = {
-  serial: 't.serial', verdict: 't.verdict', attempts: 't.max_attempts', runs: 't.runs', station: 't.station', date: 't.last_tested_at', step: 't.last_step',
+/** Where the list stands in its order: the sort column's value and the serial of the last row read. */
+export type UnitCursor = { v: string | number | Date | null; s: string }
+
+/** Station sorts by the station's id (units of one station together), the index's order. */
+export const SORT_COLUMN: Record<UnitSort, string> = {
+  serial: 'serial', verdict: 'state', attempts: 'max_attempts', runs: 'runs', station: 'last_station_id', date: 'last_tested_at', step: 'last_step',
 }
 
-/**
- * One row per unit of the lot. Verdict: fail when some step's latest result fails, pass once the product's
- * last step has passed with nothing failing, incomplete before that, untested without any run.
- */
-function unitRows(db: Knex, lotId: number, lastStep: string) {
-  const agg = db('unit_steps as us').join('units as uu', 'uu.id', 'us.unit_id').where('uu.lot_id', lotId).groupBy('us.unit_id')
-    .select('us.unit_id',
-      db.raw('SUM(us.attempts) AS runs'), db.raw('MAX(us.attempts) AS max_attempts'), db.raw('COUNT(*) AS steps_tested'),
-      db.raw("MAX(us.latest_verdict = 'fail') AS any_fail"), db.raw("MAX(us.first_verdict = 'fail') AS first_fail"),
-      db.raw('MAX(us.step = ?) AS at_last', [lastStep]), db.raw('MAX(us.latest_run_id) AS latest_run_id'))
-  return db('units as u').leftJoin(agg.as('a'), 'a.unit_id', 'u.id')
-    .leftJoin('test_runs as r', 'r.id', 'a.latest_run_id').leftJoin('stations as s', 's.id', 'r.station_id')
-    .where('u.lot_id', lotId)
-    .select('u.id', 'u.serial', 's.name as station', 'r.step as last_step', 'r.finished_at as last_tested_at',
-      db.raw('COALESCE(a.runs, 0) AS runs'), db.raw('COALESCE(a.max_attempts, 0) AS max_attempts'), db.raw('COALESCE(a.steps_tested, 0) AS steps_tested'),
-      db.raw("CASE WHEN a.unit_id IS NULL THEN NULL WHEN a.first_fail = 1 THEN 0 ELSE 1 END AS first_pass"),
-      db.raw("CASE WHEN a.unit_id IS NULL THEN 'untested' WHEN a.any_fail = 1 THEN 'fail' WHEN a.at_last = 1 THEN 'pass' ELSE 'incomplete' END AS verdict"))
-}
+const LIST_COLUMNS = ['u.serial', 'u.state', 'u.first_pass', 'u.steps_tested', 'u.last_step', 'u.max_attempts', 'u.runs', 'u.last_station_id', 'u.last_tested_at']
 
-function filtered(db: Knex, lotId: number, lastStep: string, q: UnitQuery) {
-  const t = db.from(unitRows(db, lotId, lastStep).as('t'))
-  if (q.serial) t.whereRaw("t.serial LIKE ? ESCAPE '\\\\'", [`%${q.serial.replace(/[\\%_]/g, (c) => '\\' + c)}%`])
-  if (q.verdicts?.length) t.whereIn('t.verdict', q.verdicts)
-  if (q.minAttempts) t.where('t.max_attempts', '>=', q.minAttempts)
-  if (q.station) t.where('t.station', q.station)
-  if (q.from) t.where('t.last_tested_at', '>=', q.from)
-  if (q.to) t.where('t.last_tested_at', '<', q.to)
+const likeEscape = (s: string) => s.replace(/[\\%_]/g, (c) => '\\' + c)
+
+/** The filters on `units as u` of one lot; `stationId` is the station filter's name resolved (null: no such station). */
+function filtered(db: Knex, lotId: number, q: UnitQuery, stationId: number | null | undefined) {
+  const t = db('units as u').where('u.lot_id', lotId)
+  if (q.serial) {
+    if (q.serialMatch === 'contains') t.whereRaw("u.serial LIKE ? ESCAPE '\\\\'", [`%${likeEscape(q.serial)}%`])
+    else t.whereRaw("u.serial LIKE ? ESCAPE '\\\\'", [`${likeEscape(q.serial)}%`])
+  }
+  if (q.verdicts?.length) t.whereIn('u.state', q.verdicts)
+  if (q.minAttempts) t.where('u.max_attempts', '>=', q.minAttempts)
+  if (stationId !== undefined) t.where('u.last_station_id', stationId ?? 0)
+  if (q.from) t.where('u.last_tested_at', '>=', q.from)
+  if (q.to) t.where('u.last_tested_at', '<', q.to)
   return t
 }
 
-function toRow(r: any): UnitListRow {
+/** Rows after (in the list's order) the cursor: col > v OR (col = v AND serial > s), NULLs first as the index holds them. */
+function afterCursor(t: Knex.QueryBuilder, col: string, dir: 'asc' | 'desc', c: UnitCursor) {
+  const gt = dir === 'asc' ? '>' : '<'
+  if (col === 'serial') return t.where('u.serial', gt, c.s)
+  const k = `u.${col}`
+  return t.where((w) => {
+    if (c.v === null) {
+      w.where((x) => x.whereNull(k).where('u.serial', gt, c.s))
+      if (dir === 'asc') w.orWhereNotNull(k)
+    } else {
+      w.where(k, gt, c.v).orWhere((x) => x.where(k, c.v).where('u.serial', gt, c.s))
+      if (dir === 'desc') w.orWhereNull(k)
+    }
+  })
+}
+
+function ordered(t: Knex.QueryBuilder, col: string, dir: 'asc' | 'desc', q: UnitQuery) {
+  // one verdict by verdict: the state is fixed, and ordering by it too makes the planner sort
+  if (col !== 'serial' && !(col === 'state' && q.verdicts?.length === 1)) t.orderBy(`u.${col}`, dir)
+  return t.orderBy('u.serial', dir)
+}
+
+const flip = (d: 'asc' | 'desc') => (d === 'asc' ? 'desc' : 'asc')
+
+function toRow(r: any, stations: Map<number, string>): UnitListRow {
   return {
-    serial: r.serial, verdict: r.verdict, firstPass: r.first_pass == null ? null : Number(r.first_pass) === 1, stepsTested: Number(r.steps_tested),
-    lastStep: r.last_step ?? null, maxAttempts: Number(r.max_attempts), runs: Number(r.runs), station: r.station ?? null, lastTestedAt: r.last_tested_at ?? null,
+    serial: r.serial, verdict: r.state ?? 'untested', firstPass: r.first_pass == null ? null : Number(r.first_pass) === 1, stepsTested: Number(r.steps_tested),
+    lastStep: r.last_step ?? null, maxAttempts: Number(r.max_attempts), runs: Number(r.runs), station: r.last_station_id ? stations.get(Number(r.last_station_id)) ?? null : null,
+    lastTestedAt: r.last_tested_at ?? null,
   }
 }
 
-export async function listLotUnits(db: Knex, lotId: number, lastStep: string, q: UnitQuery, page: { limit: number; offset: number }): Promise<{ total: number; rows: UnitListRow[] }> {
-  const [count] = await filtered(db, lotId, lastStep, q).count<{ n: number }[]>({ n: '*' })
-  const rows = await filtered(db, lotId, lastStep, q).select('t.*')
-    .orderBy(SORT_COLUMN[q.sort], q.dir).orderBy('t.serial', q.sort === 'serial' ? q.dir : 'asc')
-    .limit(page.limit).offset(page.offset)
-  return { total: Number(count!.n), rows: rows.map(toRow) }
+export const cursorOf = (r: any, sort: UnitSort): UnitCursor => {
+  const v = r[SORT_COLUMN[sort]]
+  return { v: v ?? null, s: r.serial }
 }
 
-export async function lotStationNames(db: Knex, lotId: number): Promise<string[]> {
-  const rows = await db('test_runs as r').join('stations as s', 's.id', 'r.station_id').where('r.lot_id', lotId).distinct('s.name').orderBy('s.name')
-  return rows.map((r: any) => r.name)
+/** A cursor as the list hands it out: base64url of [sort value, serial]. */
+export function encodeUnitCursor(c: UnitCursor): string {
+  return Buffer.from(JSON.stringify([c.v instanceof Date ? c.v.toISOString() : c.v, c.s])).toString('base64url')
+}
+
+export function decodeUnitCursor(text: string, sort: UnitSort): UnitCursor | undefined {
+  try {
+    const x = JSON.parse(Buffer.from(text, 'base64url').toString('utf8'))
+    if (!Array.isArray(x) || x.length !== 2 || typeof x[1] !== 'string' || x[1].length > 64) return undefined
+    const [v, s] = x as [unknown, string]
+    if (v === null) return { v, s }
+    if (sort === 'attempts' || sort === 'runs' || sort === 'station') return Number.isSafeInteger(v) && (v as number) >= 0 ? { v: v as number, s } : undefined
+    if (sort === 'date') { const d = typeof v === 'string' ? new Date(v) : null; return d && !Number.isNaN(d.getTime()) ? { v: d, s } : undefined }
+    if (sort === 'verdict') return UNIT_VERDICTS.includes(v as UnitVerdict) ? { v: v as string, s } : undefined
+    return typeof v === 'string' && v.length <= 64 ? { v, s } : undefined
+  } catch {
+    return undefined
+  }
+}
+
+/** A count stops here when the counters cannot answer it: past it the list says "more than". */
+export const COUNT_BOUND = 10_000
+
+export type UnitsListing = { total: number; totalExact: boolean; rows: UnitListRow[]; next: UnitCursor | null }
+
+/**
+ * One page. The total comes from the lot's counters when only verdicts filter the list, otherwise from a count
+ * bounded at COUNT_BOUND. Past the middle of a list of known length the page is read from the other end (the smaller
+ * offset) and turned round; with `after` it starts past the cursor instead of counting rows off.
+ */
+export async function listLotUnits(db: Knex, lotId: number, q: UnitQuery, page: { limit: number; offset: number; after?: UnitCursor },
+  counts: Record<Counter, number>, stations: { id: number; name: string }[]): Promise<UnitsListing> {
+  const names = new Map(stations.map((s) => [s.id, s.name]))
+  const stationId = q.station === undefined ? undefined : stations.find((s) => s.name === q.station)?.id ?? null
+  let total: number
+  let totalExact = true
+  const onlyVerdicts = !q.serial && !q.minAttempts && q.station === undefined && !q.from && !q.to
+  if (onlyVerdicts) {
+    const by: Record<UnitVerdict, number> = { pass: counts.passed, fail: counts.failed, untested: counts.untested, incomplete: counts.in_progress - counts.untested }
+    total = q.verdicts?.length ? [...new Set(q.verdicts)].reduce((n, v) => n + by[v], 0) : counts.units
+  } else {
+    const [r] = await db.from(filtered(db, lotId, q, stationId).select(db.raw('1')).limit(COUNT_BOUND + 1).as('x')).count({ n: '*' })
+    total = Number((r as any).n)
+    if (total > COUNT_BOUND) { total = COUNT_BOUND; totalExact = false }
+  }
+  const col = SORT_COLUMN[q.sort]
+  const t = filtered(db, lotId, q, stationId).select(LIST_COLUMNS)
+  let rows: any[]
+  if (page.after) {
+    rows = await ordered(afterCursor(t, col, q.dir, page.after), col, q.dir, q).limit(page.limit)
+  } else if (totalExact && page.offset > total / 2) {
+    // from the far end: the rows before total - offset, read backwards and turned round
+    const end = total - page.offset
+    if (end <= 0) rows = []
+    else rows = (await ordered(t, col, flip(q.dir), q).offset(Math.max(0, end - page.limit)).limit(Math.min(page.limit, end))).reverse()
+  } else {
+    rows = await ordered(t, col, q.dir, q).limit(page.limit).offset(page.offset)
+  }
+  const last = rows.at(-1)
+  return { total, totalExact, rows: rows.map((r) => toRow(r, names)), next: last && rows.length === page.limit ? cursorOf(last, q.sort) : null }
+}
+
+/** Every row of the list in its order, `batch` at a time by keyset (for the CSV, written as it is read). */
+export async function* eachLotUnit(db: Knex, lotId: number, q: UnitQuery, stations: { id: number; name: string }[], batch = 2000): AsyncGenerator<UnitListRow[]> {
+  const names = new Map(stations.map((s) => [s.id, s.name]))
+  const stationId = q.station === undefined ? undefined : stations.find((s) => s.name === q.station)?.id ?? null
+  const col = SORT_COLUMN[q.sort]
+  let after: UnitCursor | undefined
+  for (;;) {
+    const t = filtered(db, lotId, q, stationId).select(LIST_COLUMNS)
+    const rows = await ordered(after ? afterCursor(t, col, q.dir, after) : t, col, q.dir, q).limit(batch)
+    if (rows.length) yield rows.map((r: any) => toRow(r, names))
+    if (rows.length < batch) return
+    after = cursorOf(rows.at(-1), q.sort)
+  }
 }

@@ -51,21 +51,34 @@ export function unitsUpsert(productId: number, units: { serial: string; lotId: n
 }
 
 export type LockedUnitRow = {
-  id: number; serial: string; lot_id: number; certified: number; step: string | null; attempts: number | null
+  id: number; serial: string; lot_id: number; certified: number; unit_state: string | null; step: string | null; attempts: number | null
   first_verdict: Verdict | null; latest_verdict: Verdict | null; latest_run_id: number | null
   latest_started_at: Date | null; latest_finished_at: Date | null; latest_uuid: string | null; latest_station_id: number | null
+  latest_lapsed: number | null
 }
 
-/** The units with their step rows at the given steps and each step's latest run, under lock. */
-export function lockUnitsWithSteps(productId: number, serials: string[], steps: string[]): Statement {
+/**
+ * The units with every step row and each step's latest run, under lock: the steps the runs go to for placing them,
+ * all of them for the unit's standing (unit-standing.ts). `unit_state` null: the unit has no standing yet (new).
+ */
+export function lockUnitsWithSteps(productId: number, serials: string[]): Statement {
   return {
-    sql: `SELECT u.id, u.serial, u.lot_id, u.certified, s.step, s.attempts, s.first_verdict, s.latest_verdict, s.latest_run_id,
-        lr.started_at AS latest_started_at, lr.finished_at AS latest_finished_at, lr.uuid AS latest_uuid, lr.station_id AS latest_station_id
-      FROM units u LEFT JOIN unit_steps s ON s.unit_id = u.id AND s.step IN (${list(steps.length)})
+    sql: `SELECT u.id, u.serial, u.lot_id, u.certified, u.state AS unit_state, s.step, s.attempts, s.first_verdict, s.latest_verdict, s.latest_run_id,
+        lr.started_at AS latest_started_at, lr.finished_at AS latest_finished_at, lr.uuid AS latest_uuid, lr.station_id AS latest_station_id,
+        lr.calibration_lapsed AS latest_lapsed
+      FROM units u LEFT JOIN unit_steps s ON s.unit_id = u.id
         LEFT JOIN test_runs lr ON lr.id = s.latest_run_id
       WHERE u.product_id = ? AND u.serial IN (${list(serials.length)}) ORDER BY u.serial FOR UPDATE`,
-    values: [...steps, productId, ...serials],
+    values: [productId, ...serials],
   }
+}
+
+/**
+ * The products' steps under a shared lock: a change of a product's steps (which recomputes its units' standings)
+ * waits for the writes judging units by the steps they read here, and they for it.
+ */
+export function productStepsShared(productIds: number[]): Statement {
+  return { sql: `SELECT id, steps FROM products WHERE id IN (${list(productIds.length)}) ORDER BY id LOCK IN SHARE MODE`, values: productIds }
 }
 
 /** Removes a unit that has no run (created for a run that was then refused); the caller holds its lock. */

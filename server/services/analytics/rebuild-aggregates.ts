@@ -3,6 +3,7 @@ import { ensureFoldLease, markFolded, takeFoldLease } from '../../database/repos
 import { rebuildParamRows } from '../../database/repositories/param-stats'
 import { recountStepStats } from '../../database/repositories/step-stats'
 import { rebuildLotBins } from '../ingest/fold-bins'
+import { rebuildUnitStandings } from '../../database/repositories/unit-standing'
 
 /**
  * Recomputes a lot's aggregate rows from its stored runs and measurements inside `trx`, whose caller holds the
@@ -14,6 +15,7 @@ export async function rebuildLotAggregatesIn(trx: Knex.Transaction, lotId: numbe
   await rebuildLotBins(trx, lotId)
   await trx('lot_stats_rebuild').where({ lot_id: lotId }).del()
   await recountStepStats(trx, lotId)
+  await rebuildUnitStandings(trx, lotId)
   await markFolded(trx, lotId)
 }
 

@@ -8,6 +8,7 @@ import {
   claimRejudges, deleteLinks, linksOfRuns, lotCodesOfRuns, queuedRejudges, runInstrumentsInsert, runsById, runsLinkedTo, setRunsLapsed,
   unnamedRunsOfStations, type CandidateRun,
 } from '../../database/repositories/calibration-runs'
+import { restandUnitsOfRuns } from '../../database/repositories/unit-standing'
 import { writeAudit } from '../../database/repositories/audit'
 
 /** What a history change did to stored runs; kept in its audit row. */
@@ -82,6 +83,8 @@ export async function rejudgeRuns(trx: Knex, candidates: readonly CandidateRun[]
     }
     await setRunsLapsed(trx, toLapsed, true)
     await setRunsLapsed(trx, toFine, false)
+    // a unit's readiness reads its latest runs' calibration flags
+    await restandUnitsOfRuns(trx, [...toLapsed, ...toFine])
     summary.relinked += relinkIds.length
     summary.nowLapsed += toLapsed.length
     summary.nowInCalibration += toFine.length

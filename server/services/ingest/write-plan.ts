@@ -5,6 +5,8 @@ import type { LockedUnitRow, RunRef, RunRow, StoredAttemptRow, StoredUuidRow, St
 import type { Retest } from '../../database/repositories/certificate-retests'
 import type { StationRun } from '../../utils/run-validator'
 import type { Prepared, StationRef } from './ingest-run'
+import type { CounterRow, Standing } from '../../database/repositories/unit-standing'
+import { contribution, standingOf, type StandingStep } from './unit-standing'
 import { appendsOnly, planAppend, planMerge, type NewAttempt, type StepPlan, type StepSummary, type StoredAttempt } from './test-order'
 
 export type RunToWrite = {
@@ -27,15 +29,26 @@ const unitKey = (productId: number, serial: string) => `${productId}\u0000${seri
 const stepKey = (unitId: number, step: string) => `${unitId}\u0000${step}`
 
 /** `certified`: the unit has a valid certificate, so a run that becomes its latest at a step is a retest after issue */
-export type LockedUnit = { id: number; lotId: number; certified: boolean; steps: Map<string, StepSummary> }
+export type LockedUnit = {
+  id: number; productId: number; serial: string; lotId: number; certified: boolean; steps: Map<string, StepSummary>
+  /** every step row with its latest run, for the unit's standing; `stood` false: the unit is new and not yet counted */
+  standing: Map<string, StandingStep>; stood: boolean
+}
 
 /** Units by product and serial, with the step summaries the lock statements returned. */
 export function lockedUnits(productId: number, rows: LockedUnitRow[], into = new Map<string, LockedUnit>()): Map<string, LockedUnit> {
   for (const r of rows) {
     const key = unitKey(productId, r.serial)
     let u = into.get(key)
-    if (!u) { u = { id: Number(r.id), lotId: Number(r.lot_id), certified: !!Number(r.certified), steps: new Map() }; into.set(key, u) }
+    if (!u) {
+      u = { id: Number(r.id), productId, serial: r.serial, lotId: Number(r.lot_id), certified: !!Number(r.certified), steps: new Map(), standing: new Map(), stood: r.unit_state !== null }
+      into.set(key, u)
+    }
     if (r.step !== null && r.latest_run_id !== null) {
+      u.standing.set(r.step, {
+        step: r.step, attempts: Number(r.attempts), firstVerdict: r.first_verdict!, latestVerdict: r.latest_verdict!, latestRunId: Number(r.latest_run_id),
+        rank: Number(r.latest_run_id), stationId: Number(r.latest_station_id), finishedAt: new Date(r.latest_finished_at!), lapsed: !!Number(r.latest_lapsed),
+      })
       u.steps.set(r.step, {
         attempts: Number(r.attempts), firstVerdict: r.first_verdict!,
         latest: {
@@ -160,14 +173,21 @@ export function runRowFor(it: RunToWrite, unitId: number, attempt: number): RunR
   }
 }
 
-/** The rows that follow from the plan once the new runs have ids. */
-export function rowsAfter(plan: GroupPlan, runIds: Map<number, RunRef>) {
+/**
+ * The rows that follow from the plan once the new runs have ids. `rankOf` orders a new run among the unit's latest
+ * runs as its id will (after every stored one, in insert order); `productSteps` are the products' steps as read
+ * under the write's shared lock.
+ */
+export function rowsAfter(plan: GroupPlan, runIds: Map<number, RunRef>, rankOf: (index: number) => number, productSteps: Map<number, readonly string[]>) {
   const unitSteps: UnitStepRow[] = []
   const counters: StepCounterRow[] = []
   const demoted: number[] = []
   const promoted: number[] = []
   const rebuild: { lotId: number; step: string; revisionId: number; stationId: number }[] = []
   const retests: Retest[] = []
+  // per unit: its step rows after the write, and the station whose counter row takes the difference (a station of the write)
+  const after = new Map<LockedUnit, { steps: Map<string, StandingStep>; stationId: number }>()
+  const times = new Map<string, { lotId: number; stationId: number; first: Date; last: Date }>()
   for (const s of plan.steps) {
     const p = s.plan
     const latestRunId = 'runId' in p.latest ? p.latest.runId : runIds.get(p.latest.ref)!
@@ -177,6 +197,26 @@ export function rowsAfter(plan: GroupPlan, runIds: Map<number, RunRef>) {
       retests.push({ unitId: s.unitId, stationId: a.item.station.id, step: s.step, runId: latestRunId, uuid: a.item.run.id, verdict: p.latestVerdict })
     }
     unitSteps.push({ unitId: s.unitId, step: s.step, attempts: p.attemptsAfter, firstVerdict: p.firstVerdict, latestVerdict: p.latestVerdict, latestRunId })
+    const unit = s.accepted[0]!.unit
+    if (!after.has(unit)) after.set(unit, { steps: new Map(unit.standing), stationId: s.accepted[0]!.item.station.id })
+    const before = unit.standing.get(s.step)
+    let latest: Pick<StandingStep, 'rank' | 'stationId' | 'finishedAt' | 'lapsed'>
+    if ('ref' in p.latest) {
+      const ref = p.latest.ref
+      const a = s.accepted.find((x) => x.index === ref)!
+      latest = { rank: rankOf(ref), stationId: a.item.station.id, finishedAt: a.item.ctx.finishedAt, lapsed: a.item.ctx.calibrationLapsed }
+    } else {
+      // a stored run stays the latest only when it already was (runs placed before it leave it so)
+      if (!before || Number(before.latestRunId) !== p.latest.runId) throw new Error(`unit ${s.unitId} ${s.step}: the latest stored run is not the one locked`)
+      latest = { rank: before.rank, stationId: before.stationId, finishedAt: before.finishedAt, lapsed: before.lapsed }
+    }
+    after.get(unit)!.steps.set(s.step, { step: s.step, attempts: p.attemptsAfter, firstVerdict: p.firstVerdict, latestVerdict: p.latestVerdict, latestRunId, ...latest })
+    for (const a of s.accepted) {
+      const t = times.get(`${s.lotId}:${a.item.station.id}`)
+      const [f, l] = [a.item.ctx.startedAt, a.item.ctx.finishedAt]
+      if (!t) times.set(`${s.lotId}:${a.item.station.id}`, { lotId: s.lotId, stationId: a.item.station.id, first: f, last: l })
+      else { if (f < t.first) t.first = f; if (l > t.last) t.last = l }
+    }
     for (const c of p.counters) counters.push({ lotId: s.lotId, step: s.step, ...c })
     for (const [moved, list] of [[p.demotedFirst, demoted], [p.promotedFirst, promoted]] as const) {
       if (!moved) continue
@@ -184,7 +224,36 @@ export function rowsAfter(plan: GroupPlan, runIds: Map<number, RunRef>) {
       rebuild.push({ lotId: s.lotId, step: s.step, revisionId: moved.revisionId, stationId: moved.stationId })
     }
   }
-  return { unitSteps, counters: mergeCounters(counters), demoted, promoted, rebuild, retests }
+  const { standings, unitCounters } = standingChanges(after, times, productSteps)
+  return { unitSteps, counters: mergeCounters(counters), demoted, promoted, rebuild, retests, standings, unitCounters }
+}
+
+/** Each written unit's standing after the write, and the counters' changes: after minus before, plus the run times. */
+function standingChanges(after: Map<LockedUnit, { steps: Map<string, StandingStep>; stationId: number }>,
+  times: Map<string, { lotId: number; stationId: number; first: Date; last: Date }>, productSteps: Map<number, readonly string[]>) {
+  const standings: { id: number; productId: number; lotId: number; serial: string; s: Standing }[] = []
+  const rows = new Map<string, CounterRow>()
+  const row = (lotId: number, stationId: number) => {
+    const k = `${lotId}:${stationId}`
+    let r = rows.get(k)
+    if (!r) { r = { lotId, stationId, counts: contribution(null), firstRunAt: null, lastRunAt: null }; rows.set(k, r) }
+    return r
+  }
+  for (const [unit, a] of after) {
+    const steps = productSteps.get(unit.productId) ?? []
+    const s = standingOf(a.steps.values(), steps)
+    standings.push({ id: unit.id, productId: unit.productId, lotId: unit.lotId, serial: unit.serial, s })
+    const was = contribution(unit.stood ? standingOf(unit.standing.values(), steps) : null)
+    const now = contribution(s)
+    const r = row(unit.lotId, a.stationId)
+    for (const c of Object.keys(now) as (keyof typeof now)[]) r.counts[c] += now[c] - was[c]
+  }
+  for (const t of times.values()) {
+    const r = row(t.lotId, t.stationId)
+    r.firstRunAt = t.first
+    r.lastRunAt = t.last
+  }
+  return { standings, unitCounters: [...rows.values()] }
 }
 
 function mergeCounters(rows: StepCounterRow[]): StepCounterRow[] {

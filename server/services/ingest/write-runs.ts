@@ -5,11 +5,12 @@ import type { Knex } from 'knex'
 import { isDatabaseUnavailable } from '../../utils/database-unavailable'
 import { sendStatements, withDriverConnection, type SendStatements, type Statement } from '../../database/raw-connection'
 import {
-  dropUnitWithoutRuns, firstAttemptFlags, insertedRunIdsCheck, insertedRunRef, lockUnitsWithSteps, rememberFirstRunId, measurementsInsert, pendingStatsInsert, renumberAttempts, runsInsert, statsRebuildMark,
+  dropUnitWithoutRuns, firstAttemptFlags, insertedRunIdsCheck, insertedRunRef, lockUnitsWithSteps, productStepsShared, rememberFirstRunId, measurementsInsert, pendingStatsInsert, renumberAttempts, runsInsert, statsRebuildMark,
   stepCountersAdd, storedAttempts, storedRunsByUuid, tracesInsert, unitStepsUpsert, unitsUpsert,
   type LockedUnitRow, type RunRef, type StoredAttemptRow, type StoredUuidRow,
 } from '../../database/repositories/run-writes'
 import { retestStatements } from '../../database/repositories/certificate-retests'
+import { standingsWrite, unitCountersAdd } from '../../database/repositories/unit-standing'
 import { batchCalibrationStatements } from '../calibration/run-links'
 import { lockedUnits, placeRuns, rowsAfter, runRowFor, screen, unitsToLock, type LockedUnit, type RunToWrite, type WriteOutcome } from './write-plan'
 
@@ -48,17 +49,19 @@ function traceStatements(rows: { runId: RunRef; name: string; points: string }[]
 
 async function lockAndScreen(send: SendStatements, items: RunToWrite[]) {
   const plan = unitsToLock(items)
-  const statements: (Statement | string)[] = ['START TRANSACTION']
-  for (const [productId, p] of plan) statements.push(unitsUpsert(productId, p.serials), lockUnitsWithSteps(productId, p.serials.map((s) => s.serial), p.steps))
+  // the products' steps first: a change of them takes the product row and then the units, in that order too
+  const statements: (Statement | string)[] = ['START TRANSACTION', productStepsShared([...plan.keys()])]
+  for (const [productId, p] of plan) statements.push(unitsUpsert(productId, p.serials), lockUnitsWithSteps(productId, p.serials.map((s) => s.serial)))
   statements.push(storedRunsByUuid([...new Set(items.map((i) => i.run.id))]))
   const results = await sendStatements(send, statements)
+  const productSteps = new Map((results[1] as { id: number; steps: unknown }[]).map((r) => [Number(r.id), (Array.isArray(r.steps) ? r.steps : JSON.parse(String(r.steps))) as string[]]))
   const units = new Map<string, LockedUnit>()
-  let k = 1
+  let k = 2
   for (const productId of plan.keys()) {
     lockedUnits(productId, results[k + 1] as LockedUnitRow[], units)
     k += 2
   }
-  return screen(items, units, results[k] as StoredUuidRow[])
+  return { ...screen(items, units, results[k] as StoredUuidRow[]), productSteps }
 }
 
 /**
@@ -102,7 +105,9 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[], mode: IdMode
         firstRunId = (results) => { const [row] = results[checkAt] as { first: number; inc: number }[]; return { first: Number(row!.first), inc: Number(row!.inc) } }
       }
 
-      const after = rowsAfter(plan, refs)
+      // a new run's id follows every stored one, in insert order
+      const rank = new Map(accepted.map(({ a }, k) => [a.index, typeof refs.get(a.index) === 'number' ? refs.get(a.index) as number : 2 ** 52 + k]))
+      const after = rowsAfter(plan, refs, (index) => rank.get(index)!, screened.productSteps)
       const writes: (Statement | string)[] = [
         ...head,
         ...traceStatements(accepted.flatMap(({ a }) => (a.item.run.traces ?? []).map((t) => ({ runId: refs.get(a.index)!, name: t.name, points: JSON.stringify(t.points) })))),
@@ -110,6 +115,8 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[], mode: IdMode
       if (after.demoted.length) writes.push(firstAttemptFlags(after.demoted, false))
       if (after.promoted.length) writes.push(firstAttemptFlags(after.promoted, true))
       writes.push(unitStepsUpsert(after.unitSteps), stepCountersAdd(after.counters))
+      // each written unit's standing, and the lot counters moved by the difference (services/ingest/unit-standing.ts)
+      writes.push(standingsWrite(after.standings), unitCountersAdd(after.unitCounters))
       writes.push(pendingStatsInsert(accepted.map(({ a }) => ({ runId: refs.get(a.index)!, lotId: a.item.ctx.lotId }))))
       // the instruments each run was taken with, and the guard that sends a run back for judging when the calibration
       // history changed after it was judged (services/calibration/run-links)

@@ -30,8 +30,7 @@ export async function dispatchShipment(db: Knex, actorId: number, shipmentId: nu
     const shipped: string[] = []
     for (const l of lots as any[]) {
       if (l.status !== 'released') continue
-      const steps = units.find((u) => u.lotId === l.id)!.steps
-      const state = await lotShipping(trx, l.id, steps)
+      const state = await lotShipping(trx, l.id)
       if (state.units === 0 || state.dispatchedUnits < state.units) continue
       await writeAudit(trx, { userId: actorId, action: 'ship', entity: 'lot', entityId: l.code, before: { status: 'released' }, after: { status: 'shipped', byShipment: s.code, dispatchedUnits: state.dispatchedUnits } })
       await updateLotStatus(trx, l.id, { status: 'shipped', shippedAt: now })
