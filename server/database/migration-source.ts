@@ -28,6 +28,7 @@ import * as m028 from './migrations/20261202_028_engineering_lots'
 import * as m029 from './migrations/20261202_029_import_uploads'
 import * as m030 from './migrations/20261202_030_session_version'
 import * as m031 from './migrations/20261202_031_unit_standing'
+import * as m032 from './migrations/20261202_032_param_populations'
 import * as m033 from './migrations/20261202_033_param_bins'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
@@ -63,6 +64,7 @@ const migrations: Record<string, Migration> = {
   '20261202_029_import_uploads': m029,
   '20261202_030_session_version': m030,
   '20261202_031_unit_standing': m031,
+  '20261202_032_param_populations': m032,
   '20261202_033_param_bins': m033,
 }
 

@@ -40,6 +40,13 @@ export type CapabilityRow = RevisionTag & {
 
 export type FailureParetoRow = { step: string; name: string; qualifier: number; label: string; count: number; percent: number; cumulativePercent: number }
 
+/**
+ * What the figures of a lot view do not include yet: runs stored before the view was asked for but not yet folded
+ * in (a fold of the lot was running), rows awaiting a rebuild after a retest became a unit's first attempt, and
+ * parameters whose moving ranges and drift await a repair after a late value. The background fold catches up.
+ */
+export type StatsBacklog = { asOf: string; runs: number; rebuilds: number; repairs: number }
+
 export type LotSummary = {
   lot: { code: string; partNumber: string; productName: string; status: string; plannedQty: number | null; unitsTested: number }
   population: Population
@@ -49,6 +56,8 @@ export type LotSummary = {
   revisions: JudgedRevision[]
   capability: CapabilityRow[]
   pareto: FailureParetoRow[]
+  /** null when the figures include every run stored before the summary was asked for */
+  backlog: StatsBacklog | null
 }
 
 export type ControlPoint = { index: number; runId: string; serial: string; station: string; startedAt: string; value: number; rules: number[] }
@@ -70,6 +79,9 @@ export type ParameterView = {
   /** null with fewer than driftMinUnits values: too few to extrapolate a slope per 1 000 units from */
   drift: { slopePer1000: number; interval: [number, number] | null; n: number } | null
   driftMinUnits: number
+  /** true when the drift is held back until a late value's repair (the background fold does it) */
+  driftPending: boolean
+  backlog: StatsBacklog | null
 }
 
 /**

@@ -20,6 +20,12 @@ export type ParamRow = ParamRowKey & {
   mrStale: boolean
   outOfSpec: number
   failAll: number
+} & AllAttemptSums
+
+/** The same sums over every plausible attempt (retests included): the second population of the row. */
+export type AllAttemptSums = {
+  aN: number; aShift: number; aSumD: number; aSumSqD: number; aMin: number; aMax: number
+  aMrSum: number; aMrN: number; aLastValue: number | null; aLastStartedAt: number | null; aMrStale: boolean; aOutOfSpec: number
 }
 
 export type StoredValue = {

@@ -8,6 +8,9 @@ import { validateRun } from '../../server/utils/run-validator'
 import { DEMO_PRODUCTS } from '../../fixtures/demo-catalogue'
 import { generateRun, mulberry32 } from '../../fixtures/run-generator'
 import { capabilityFromValues, movingRangeSum, sigmaFromMovingRange } from '../../shared/utils/capability'
+import { driftPer1000, slopeFromCentredSums } from '../../shared/utils/regression'
+import { centredTrendSums } from '../../server/services/ingest/param-trend-merge'
+import { parameterView } from '../../server/services/analytics/parameter-view'
 
 let db: Knex
 const lotCode = `AGG-${Date.now().toString(36)}`
@@ -40,15 +43,17 @@ beforeAll(async () => {
 
 afterAll(async () => { await db.destroy() })
 
+/** Each parameter and revision's values straight from the rows, in test order (start, then storage order). */
 async function recompute(firstOnly: boolean, code = lotCode) {
   const lot = await db('lots').where({ code }).first('id')
-  const q = db('measurements').where({ lot_id: lot.id, implausible: false }).orderBy('started_at').orderBy('id').select('step', 'name', 'qualifier', 'revision_id', 'station_id', 'value')
+  const q = db('measurements').where({ lot_id: lot.id, implausible: false }).orderBy('started_at').orderBy('id').select('step', 'name', 'qualifier', 'revision_id', 'station_id', 'value', 'lsl', 'usl')
   const rows = firstOnly ? await q.where('first_attempt', true) : await q
-  const groups = new Map<string, { all: number[]; byStation: Map<number, number[]> }>()
+  const groups = new Map<string, { all: number[]; byStation: Map<number, number[]>; outOfSpec: number }>()
   for (const r of rows) {
     const k = `${r.step}|${r.name}|${r.qualifier}|${r.revision_id}`
-    const g = groups.get(k) ?? { all: [], byStation: new Map() }
+    const g = groups.get(k) ?? { all: [], byStation: new Map(), outOfSpec: 0 }
     g.all.push(r.value)
+    if ((r.lsl !== null && r.value < r.lsl) || (r.usl !== null && r.value > r.usl)) g.outOfSpec++
     const s = g.byStation.get(r.station_id) ?? []
     s.push(r.value)
     g.byStation.set(r.station_id, s)
@@ -57,9 +62,10 @@ async function recompute(firstOnly: boolean, code = lotCode) {
   return groups
 }
 
-async function expectSummaryEqualsRecomputation(code: string) {
-  const summary = (await lotSummary(db, code, 'first'))!
-  const groups = await recompute(true, code)
+async function expectSummaryEqualsRecomputation(code: string, population: 'first' | 'all' = 'first') {
+  const summary = (await lotSummary(db, code, population))!
+  expect(summary.backlog).toBeNull()
+  const groups = await recompute(population === 'first', code)
   expect(summary.capability.length).toBe(groups.size)
   for (const c of summary.capability) {
     const g = groups.get(`${c.step}|${c.name}|${c.qualifier}|${c.revisionId}`)!
@@ -79,7 +85,39 @@ async function expectSummaryEqualsRecomputation(code: string) {
     }
     expect(c.min).toBe(Math.min(...g.all))
     expect(c.max).toBe(Math.max(...g.all))
+    expect(c.outOfSpec).toBe(g.outOfSpec)
   }
+}
+
+/** The drift sums of every parameter and revision, both populations, against a regression on the recomputed values. */
+async function expectDriftSumsEqualRecomputation(code: string) {
+  const lot = await db('lots').where({ code }).first('id')
+  for (const all of [false, true]) {
+    const groups = await recompute(!all, code)
+    const rows = await db('lot_param_trend').where({ lot_id: lot.id, all_attempts: all })
+    expect(rows.length).toBe(groups.size)
+    for (const r of rows) {
+      const values = groups.get(`${r.step}|${r.name}|${r.qualifier}|${r.revision_id}`)!.all
+      expect([r.n, !!r.stale]).toEqual([values.length, false])
+      const kept = slopeFromCentredSums(centredTrendSums({ n: r.n, sumRd: r.sum_rd, sumD: r.sum_d, sumSqD: r.sumsq_d }))
+      const ref = driftPer1000(values)
+      if (!ref) { expect(kept).toBeNull(); continue }
+      // the two-pass regression over x = index / 1000 (linearRegression) gives the same line
+      const tol = 1e-7 * (ref.slopeStdErr ?? Math.abs(ref.slope)) + 1e-12
+      expect(Math.abs(kept!.slope - ref.slope)).toBeLessThanOrEqual(tol)
+      if (ref.slopeInterval) expect(Math.abs(kept!.slopeInterval![0] - ref.slopeInterval[0])).toBeLessThanOrEqual(tol * 10)
+    }
+  }
+}
+
+/** The centred sums as the parameter view used to take them: numbering the values in SQL (ROW_NUMBER over test order). */
+async function trendSumsBySql(lotId: number, k: { step: string; name: string; qualifier: number; revisionId: number }, firstOnly: boolean, n: number, centre: number) {
+  const [rows] = await db.raw(`SELECT COUNT(*) AS n, SUM(dx * dx) AS sxx, SUM(dx * y) AS sxy, SUM(y) AS sy, SUM(y * y) AS syy FROM (
+      SELECT value - ? AS y, (ROW_NUMBER() OVER (ORDER BY started_at, id) - 1 - ?) / 1000 AS dx FROM measurements
+      WHERE lot_id = ? AND step = ? AND name = ? AND qualifier = ? AND revision_id = ? AND NOT implausible ${firstOnly ? 'AND first_attempt' : ''}) t`,
+  [centre, (n - 1) / 2, lotId, k.step, k.name, k.qualifier, k.revisionId])
+  const r = rows[0]
+  return { n: Number(r.n), sxx: Number(r.sxx), sxy: Number(r.sxy), sy: Number(r.sy), syy: Number(r.syy) }
 }
 
 describe('incremental lot aggregates', () => {
@@ -114,14 +152,36 @@ describe('incremental lot aggregates', () => {
     }
   })
 
-  it('the all-attempts population matches a recomputation too', async () => {
-    const summary = (await lotSummary(db, lotCode, 'all'))!
-    const groups = await recompute(false)
-    for (const c of summary.capability) {
-      const g = groups.get(`${c.step}|${c.name}|${c.qualifier}|${c.revisionId}`)!
-      expect(c.n).toBe(g.all.length)
-      const full = capabilityFromValues(g.all, { lsl: c.lsl, usl: c.usl })
-      expect(c.sigmaOverall! / full.sigmaOverall!).toBeCloseTo(1, 9)
+  it('the all-attempts population, kept in the same rows, matches a recomputation too', async () => {
+    await expectSummaryEqualsRecomputation(lotCode, 'all')
+    // retests add values: the populations differ somewhere
+    const [first, all] = [await recompute(true), await recompute(false)]
+    expect([...all].some(([k, g]) => g.all.length > first.get(k)!.all.length)).toBe(true)
+  })
+
+  it('keeps drift sums in test order equal to a regression on the stored values, both populations', async () => {
+    await expectDriftSumsEqualRecomputation(lotCode)
+  })
+
+  it('the parameter view reads moments and drift from the aggregates, equal to the SQL over the rows', async () => {
+    const lot = await db('lots').where({ code: lotCode }).first('id')
+    const params = await db('lot_param_trend').where({ lot_id: lot.id, all_attempts: true }).distinct('step', 'name', 'qualifier').limit(6)
+    expect(params.length).toBeGreaterThan(0)
+    for (const p of params) {
+      for (const attempts of ['first', 'all'] as const) {
+        const view = (await parameterView(db, { code: lotCode, step: p.step, name: p.name, qualifier: Number(p.qualifier), attempts, revision: null }))!
+        const revisionId = view.parameter.revisionId
+        const values = (await recompute(attempts === 'first')).get(`${p.step}|${p.name}|${p.qualifier}|${revisionId}`)!.all
+        const full = capabilityFromValues(values, {})
+        expect(view.n).toBe(values.length)
+        expect(view.normal!.mean / full.mean!).toBeCloseTo(1, 12)
+        expect(view.normal!.sigma / full.sigmaOverall!).toBeCloseTo(1, 9)
+        expect([view.driftPending, view.backlog]).toEqual([false, null])
+        const bySql = slopeFromCentredSums(await trendSumsBySql(lot.id, { ...p, qualifier: Number(p.qualifier), revisionId }, attempts === 'first', values.length, full.mean!))!
+        expect(view.drift!.n).toBe(bySql.n)
+        expect(Math.abs(view.drift!.slopePer1000 - bySql.slope)).toBeLessThanOrEqual(1e-7 * bySql.slopeStdErr!)
+        expect(Math.abs(view.drift!.interval![1] - bySql.slopeInterval![1])).toBeLessThanOrEqual(1e-6 * bySql.slopeStdErr!)
+      }
     }
   })
 })
@@ -143,6 +203,8 @@ describe('rebuilding the aggregates from the stored rows', () => {
       expect(c.sigmaOverall! / b.sigmaOverall!).toBeCloseTo(1, 9)
       expect(c.sigmaWithin! / b.sigmaWithin!).toBeCloseTo(1, 9)
     })
+    await expectSummaryEqualsRecomputation(lotCode, 'all')
+    await expectDriftSumsEqualRecomputation(lotCode)
   })
 })
 
@@ -178,6 +240,8 @@ describe('the queue of runs awaiting the fold', () => {
     storing = false
     await folder
     await expectSummaryEqualsRecomputation(code)
+    await expectSummaryEqualsRecomputation(code, 'all')
+    await expectDriftSumsEqualRecomputation(code)
     const lot = await db('lots').where({ code }).first('id')
     expect(await db('lot_stats_pending').where({ lot_id: lot.id }).count({ n: '*' }).first()).toMatchObject({ n: 0 })
   })
@@ -207,6 +271,8 @@ describe('the queue of runs awaiting the fold', () => {
     })
     // the summary folds the queued runs (unless a background folder got there first) and must count them once
     await expectSummaryEqualsRecomputation(lotCode)
+    await expectSummaryEqualsRecomputation(lotCode, 'all')
+    await expectDriftSumsEqualRecomputation(lotCode)
   })
 
   const queuedIn = async (lotCode: string) => {
@@ -229,6 +295,18 @@ describe('the queue of runs awaiting the fold', () => {
     await reader
     expect(await queuedIn(waiting)).toBe(0)
     await expectSummaryEqualsRecomputation(waiting)
+  })
+
+  it('a reader stops waiting on a long fold of its lot and says which stored runs its figures leave out', async () => {
+    const held = `${code}-L`
+    await holdingLease(held, async () => {
+      await postRuns(4, 5, 1, held)
+      // the lease stays held past the reader's wait: it reads the rows as they are instead of failing
+      const summary = (await lotSummary(db, held, 'first'))!
+      expect(summary.backlog!.runs).toBeGreaterThanOrEqual(4)
+      expect(Date.parse(summary.backlog!.asOf)).toBeLessThanOrEqual(Date.now())
+    })
+    await expectSummaryEqualsRecomputation(held)
   })
 
   it('folds of different lots do not wait for each other', async () => {

@@ -46,23 +46,34 @@ export async function newestLots(db: Knex, productId: number): Promise<{ id: num
 
 /**
  * The last `n` first-attempt, plausible values of one parameter over the given lots, oldest first: one statement,
- * each lot's tail read from measurements_param_idx. With `revisionId`, only values judged by that revision.
+ * each lot's tail of each revision read backwards from the end of its measurements_series_idx range. With
+ * `revisionId`, only values judged by that revision.
  */
 export async function lastValues(db: Knex, lotIds: readonly number[], k: { step: string; name: string; qualifier: number; revisionId?: number }, n: number): Promise<ValueRow[]> {
   if (!lotIds.length || n <= 0) return []
-  const rev = k.revisionId === undefined ? '' : ' AND m.revision_id = ?'
+  // the index orders by time within a revision: every revision's tail is read, then merged
+  const series = k.revisionId === undefined ? await revisionsOfParameter(db, lotIds, k) : lotIds.map((lotId) => ({ lotId, revisionId: k.revisionId! }))
+  if (!series.length) return []
   const part = `(SELECT m.id, m.value, m.started_at, m.run_id, m.station_id, m.lot_id FROM measurements m
-    WHERE m.lot_id = ? AND m.name = ? AND m.qualifier = ? AND m.step = ? AND m.first_attempt = 1 AND m.implausible = 0${rev}
+    WHERE m.lot_id = ? AND m.step = ? AND m.name = ? AND m.qualifier = ? AND m.revision_id = ? AND m.first_attempt = 1 AND m.implausible = 0
     ORDER BY m.started_at DESC, m.id DESC LIMIT ${Number(n)})`
-  const binds = lotIds.flatMap((id) => [id, k.name, k.qualifier, k.step, ...(k.revisionId === undefined ? [] : [k.revisionId])])
+  const binds = series.flatMap((s) => [s.lotId, k.step, k.name, k.qualifier, s.revisionId])
   const [rows] = await db.raw(
     `SELECT t.id, t.value, t.started_at, r.uuid, u.serial, t.station_id, s.name AS station, t.lot_id, l.code AS lot
-     FROM (${lotIds.map(() => part).join(' UNION ALL ')}) t
+     FROM (${series.map(() => part).join(' UNION ALL ')}) t
      JOIN test_runs r ON r.id = t.run_id JOIN units u ON u.id = r.unit_id JOIN stations s ON s.id = t.station_id JOIN lots l ON l.id = t.lot_id
      ORDER BY t.started_at DESC, t.id DESC LIMIT ${Number(n)}`, binds)
   return (rows as any[]).reverse().map((r) => ({
     id: Number(r.id), value: r.value, startedAt: r.started_at, runId: r.uuid, serial: r.serial, stationId: r.station_id, station: r.station, lotId: r.lot_id, lot: r.lot,
   }))
+}
+
+/** The revisions a parameter's values were judged by in each lot: a loose scan of measurements_series_idx (one probe per revision). */
+async function revisionsOfParameter(db: Knex, lotIds: readonly number[], k: { step: string; name: string; qualifier: number }): Promise<{ lotId: number; revisionId: number }[]> {
+  const [rows] = await db.raw(
+    `SELECT DISTINCT lot_id, revision_id FROM measurements WHERE lot_id IN (${lotIds.map(() => '?').join(', ')}) AND step = ? AND name = ? AND qualifier = ?`,
+    [...lotIds, k.step, k.name, k.qualifier])
+  return (rows as any[]).map((r) => ({ lotId: Number(r.lot_id), revisionId: Number(r.revision_id) }))
 }
 
 /** The last `n` first attempts at a step over the given lots (attempt 1 is the first by test time), oldest first. */

@@ -29,9 +29,10 @@ export async function markFolded(trx: Knex.Transaction, lotId: number): Promise<
   await trx.raw('UPDATE lot_fold_leases SET folds = folds + 1, folded_at = NOW(3) WHERE lot_id = ?', [lotId])
 }
 
-/** Lots with queued runs or rows awaiting a rebuild, for the background folder. */
+/** Lots with queued runs, rows awaiting a rebuild or groups awaiting a repair, for the background folder. */
 export async function lotsToFold(db: Knex, limit: number): Promise<number[]> {
   const [rows] = await db.raw(
-    `(SELECT DISTINCT lot_id FROM lot_stats_pending LIMIT ${Number(limit)}) UNION (SELECT DISTINCT lot_id FROM lot_stats_rebuild LIMIT ${Number(limit)})`)
+    `(SELECT DISTINCT lot_id FROM lot_stats_pending LIMIT ${Number(limit)}) UNION (SELECT DISTINCT lot_id FROM lot_stats_rebuild LIMIT ${Number(limit)})
+     UNION (SELECT DISTINCT lot_id FROM lot_stats_repair LIMIT ${Number(limit)})`)
   return (rows as { lot_id: number }[]).map((r) => Number(r.lot_id))
 }

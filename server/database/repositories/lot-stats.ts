@@ -34,21 +34,7 @@ export async function paramStats(db: Knex, lotId: number): Promise<ParamStatsRow
   return (await db('lot_param_stats').where({ lot_id: lotId })).map(paramRowFromDb)
 }
 
-/**
- * Every attempt, straight from the measurements, one row per parameter and revision judged (moving ranges within
- * each station's sequence of that revision): the population switch and the reference the aggregates are tested against.
- */
-export async function paramStatsAllAttempts(db: Knex, lotId: number): Promise<(Omit<ParamStatsRow, 'stationId' | 'shift' | 'sumD' | 'sumSqD' | 'mrStale'> & { mean: number; sd: number | null })[]> {
-  const [rows] = await db.raw(
-    `SELECT step, name, qualifier, revision_id, MIN(unit) AS unit, COUNT(*) AS n, AVG(value) AS mean, STDDEV_SAMP(value) AS sd, MIN(value) AS min_value, MAX(value) AS max_value,
-            SUM(mr) AS mr_sum, COUNT(mr) AS mr_n, SUM(verdict = 'fail') AS fail_all,
-            SUM((lsl IS NOT NULL AND value < lsl) OR (usl IS NOT NULL AND value > usl)) AS out_of_spec
-     FROM (SELECT step, name, qualifier, revision_id, unit, value, verdict, lsl, usl,
-                  ABS(value - LAG(value) OVER (PARTITION BY step, name, qualifier, revision_id, station_id ORDER BY started_at, id)) AS mr
-           FROM measurements WHERE lot_id = ? AND NOT implausible) m
-     GROUP BY step, name, qualifier, revision_id`, [lotId])
-  return rows.map((r: any) => ({
-    step: r.step, name: r.name, qualifier: r.qualifier, revisionId: Number(r.revision_id), unit: r.unit, n: Number(r.n), mean: Number(r.mean), sd: r.sd === null ? null : Number(r.sd),
-    min: r.min_value, max: r.max_value, mrSum: Number(r.mr_sum ?? 0), mrN: Number(r.mr_n), outOfSpec: Number(r.out_of_spec), failAll: Number(r.fail_all),
-  }))
+/** The rows of one parameter of a lot (every revision and station). */
+export async function paramStatsOfParameter(db: Knex, lotId: number, k: { step: string; name: string; qualifier: number }): Promise<ParamStatsRow[]> {
+  return (await db('lot_param_stats').where({ lot_id: lotId, step: k.step, name: k.name, qualifier: k.qualifier })).map(paramRowFromDb)
 }

@@ -11,26 +11,6 @@ export async function queuedRunsOfLot(trx: Knex.Transaction, lotId: number, limi
   return (await q.select('run_id')).map((r: any) => Number(r.run_id))
 }
 
-/** The newest queued run of each lot: a reader folds up to it, not whatever keeps arriving after it started. */
-export async function newestQueuedRun(db: Knex, lotId: number): Promise<number | null> {
-  const r = await db('lot_stats_pending').where({ lot_id: lotId }).max<{ id: number | null }[]>({ id: 'run_id' })
-  return r[0]?.id == null ? null : Number(r[0].id)
-}
-
-export async function anyRebuildMarks(db: Knex, lotId: number): Promise<boolean> {
-  return (await db('lot_stats_rebuild').where({ lot_id: lotId }).first('lot_id')) !== undefined
-}
-
-/** Rows of the lot whose moving range a late value left stale. */
-export async function staleParamRows(trx: Knex.Transaction, lotId: number): Promise<ParamRowKey[]> {
-  const rows = await trx('lot_param_stats').where({ lot_id: lotId, mr_stale: true }).select('lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id')
-  return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), stationId: Number(r.station_id) }))
-}
-
-export async function anyStaleParamRows(db: Knex, lotId: number): Promise<boolean> {
-  return (await db('lot_param_stats').where({ lot_id: lotId, mr_stale: true }).first('lot_id')) !== undefined
-}
-
 export async function forgetQueuedRuns(trx: Knex.Transaction, runIds: number[]): Promise<void> {
   if (runIds.length) await trx('lot_stats_pending').whereIn('run_id', runIds).del()
 }
@@ -61,6 +41,9 @@ export function paramRowFromDb(r: any): ParamRow {
     mrSum: Number(r.mr_sum), mrN: Number(r.mr_n), lastValue: r.last_value == null ? null : Number(r.last_value),
     lastStartedAt: r.last_started_at == null ? null : new Date(r.last_started_at).getTime(), mrStale: !!r.mr_stale,
     outOfSpec: Number(r.out_of_spec), failAll: Number(r.fail_all),
+    aN: Number(r.a_n), aShift: Number(r.a_shift), aSumD: Number(r.a_sum_d), aSumSqD: Number(r.a_sumsq_d), aMin: Number(r.a_min_value), aMax: Number(r.a_max_value),
+    aMrSum: Number(r.a_mr_sum), aMrN: Number(r.a_mr_n), aLastValue: r.a_last_value == null ? null : Number(r.a_last_value),
+    aLastStartedAt: r.a_last_started_at == null ? null : new Date(r.a_last_started_at).getTime(), aMrStale: !!r.a_mr_stale, aOutOfSpec: Number(r.a_out_of_spec),
   }
 }
 
@@ -71,36 +54,25 @@ export async function paramRowsOfLot(trx: Knex.Transaction, lotId: number, stati
 }
 
 const COLUMNS = ['lot_id', 'step', 'name', 'qualifier', 'revision_id', 'station_id', 'unit', 'n', 'shift', 'sum_d', 'sumsq_d', 'min_value', 'max_value',
-  'mr_sum', 'mr_n', 'last_value', 'last_started_at', 'mr_stale', 'out_of_spec', 'fail_all']
+  'mr_sum', 'mr_n', 'last_value', 'last_started_at', 'mr_stale', 'out_of_spec', 'fail_all',
+  'a_n', 'a_shift', 'a_sum_d', 'a_sumsq_d', 'a_min_value', 'a_max_value', 'a_mr_sum', 'a_mr_n', 'a_last_value', 'a_last_started_at', 'a_mr_stale', 'a_out_of_spec']
 const ROWS_PER_STATEMENT = 1000
 
 /** Writes whole rows back: new ones are inserted, existing ones take the values computed under the lease. */
 export async function writeParamRows(trx: Knex.Transaction, rows: ParamRow[]): Promise<void> {
   const tail = COLUMNS.slice(6).map((c) => `${c} = VALUES(${c})`).join(', ')
-  // every value a literal: a fold writes some twenty values for each of hundreds of rows
+  const time = (ms: number | null) => ms === null ? 'NULL' : utcLiteral(new Date(ms))
+  // every value a literal: a fold writes some thirty values for each of hundreds of rows
   const tuple = (r: ParamRow) => `(${r.lotId},${textLiteral(r.step)},${textLiteral(r.name)},${numberLiteral(r.qualifier)},${r.revisionId},${r.stationId},${textLiteral(r.unit)},`
     + `${r.n},${numberLiteral(r.shift)},${numberLiteral(r.sumD)},${numberLiteral(r.sumSqD)},${numberLiteral(r.min)},${numberLiteral(r.max)},${numberLiteral(r.mrSum)},${r.mrN},`
-    + `${numberLiteral(r.lastValue)},${r.lastStartedAt === null ? 'NULL' : utcLiteral(new Date(r.lastStartedAt))},${r.mrStale ? 1 : 0},${r.outOfSpec},${r.failAll})`
+    + `${numberLiteral(r.lastValue)},${time(r.lastStartedAt)},${r.mrStale ? 1 : 0},${r.outOfSpec},${r.failAll},`
+    + `${r.aN},${numberLiteral(r.aShift)},${numberLiteral(r.aSumD)},${numberLiteral(r.aSumSqD)},${numberLiteral(r.aMin)},${numberLiteral(r.aMax)},${numberLiteral(r.aMrSum)},${r.aMrN},`
+    + `${numberLiteral(r.aLastValue)},${time(r.aLastStartedAt)},${r.aMrStale ? 1 : 0},${r.aOutOfSpec})`
   for (let i = 0; i < rows.length; i += ROWS_PER_STATEMENT) {
     const part = rows.slice(i, i + ROWS_PER_STATEMENT)
-    if (!part.every((r) => [r.lotId, r.revisionId, r.stationId, r.n, r.mrN, r.outOfSpec, r.failAll].every(Number.isInteger))) throw new TypeError('statistics row keys and counts must be integers')
+    if (!part.every((r) => [r.lotId, r.revisionId, r.stationId, r.n, r.mrN, r.outOfSpec, r.failAll, r.aN, r.aMrN, r.aOutOfSpec].every(Number.isInteger))) throw new TypeError('statistics row keys and counts must be integers')
     await trx.raw(`INSERT INTO lot_param_stats (${COLUMNS.join(', ')}) VALUES ${part.map(tuple).join(',')} ON DUPLICATE KEY UPDATE ${tail}`)
   }
-}
-
-const rowWhere = (k: ParamRowKey) => ({ lot_id: k.lotId, step: k.step, name: k.name, qualifier: k.qualifier, revision_id: k.revisionId, station_id: k.stationId })
-
-/** The row's sample values in test order, leaving out runs still queued for the fold (it applies them after). */
-export async function foldedSampleValues(trx: Knex.Transaction, key: ParamRowKey): Promise<{ value: number; startedAt: Date }[]> {
-  const rows = await trx('measurements').where({ ...rowWhere(key), first_attempt: true, implausible: false })
-    .whereNotIn('run_id', trx('lot_stats_pending').where({ lot_id: key.lotId }).select('run_id'))
-    .orderBy('started_at').orderBy('id').select('value', 'started_at')
-  return rows.map((r: any) => ({ value: Number(r.value), startedAt: r.started_at }))
-}
-
-export async function writeMovingRange(trx: Knex.Transaction, key: ParamRowKey, mr: { sum: number; count: number }, last: { value: number; startedAt: Date } | undefined): Promise<void> {
-  await trx('lot_param_stats').where(rowWhere(key))
-    .update({ mr_sum: mr.sum, mr_n: mr.count, last_value: last?.value ?? null, last_started_at: last?.startedAt ?? null, mr_stale: false })
 }
 
 export type RebuildScope = { lotId: number; step?: string; revisionId?: number; stationId?: number }
@@ -108,10 +80,11 @@ export type RebuildScope = { lotId: number; step?: string; revisionId?: number; 
 const PARTITION = 'PARTITION BY step, name, qualifier, revision_id, station_id'
 // the sample: plausible first attempts
 const SAMPLE = '(first_attempt AND NOT implausible)'
+const OUT_OF_SPEC = '((lsl IS NOT NULL AND value < lsl) OR (usl IS NOT NULL AND value > usl))'
 
 /**
- * Recomputes the parameter rows of a lot (or of one step, revision and station of it) from the stored
- * measurements. Runs still queued for the fold are left out, and left in the queue, so the fold adds them once.
+ * Recomputes the parameter rows of a lot (or of one step, revision and station of it), both populations, from the
+ * stored measurements. Runs still queued for the fold are left out, and left in the queue, so the fold adds them once.
  */
 export async function rebuildParamRows(trx: Knex.Transaction, scope: RebuildScope): Promise<void> {
   const where: Record<string, string | number> = { lot_id: scope.lotId }
@@ -123,17 +96,25 @@ export async function rebuildParamRows(trx: Knex.Transaction, scope: RebuildScop
   const vals = Object.values(where)
   await trx.raw(
     `INSERT INTO lot_param_stats (lot_id, step, name, qualifier, revision_id, station_id, unit, n, shift, sum_d, sumsq_d, min_value, max_value,
-       mr_sum, mr_n, last_value, last_started_at, mr_stale, out_of_spec, fail_all)
+       mr_sum, mr_n, last_value, last_started_at, mr_stale, out_of_spec, fail_all,
+       a_n, a_shift, a_sum_d, a_sumsq_d, a_min_value, a_max_value, a_mr_sum, a_mr_n, a_last_value, a_last_started_at, a_mr_stale, a_out_of_spec)
      SELECT ?, step, name, qualifier, revision_id, station_id, MIN(unit), SUM(sample), COALESCE(MIN(shift), MIN(value)),
        COALESCE(SUM(IF(sample, value - shift, 0)), 0), COALESCE(SUM(IF(sample, (value - shift) * (value - shift), 0)), 0),
        COALESCE(MIN(IF(sample, value, NULL)), MIN(value)), COALESCE(MAX(IF(sample, value, NULL)), MAX(value)),
        COALESCE(SUM(mr), 0), COUNT(mr), MAX(last_value), MAX(IF(sample, started_at, NULL)), 0,
-       SUM(sample AND ((lsl IS NOT NULL AND value < lsl) OR (usl IS NOT NULL AND value > usl))), SUM(verdict = 'fail')
+       SUM(sample AND ${OUT_OF_SPEC}), SUM(verdict = 'fail'),
+       SUM(plausible), COALESCE(MIN(a_shift), MIN(value)),
+       COALESCE(SUM(IF(plausible, value - a_shift, 0)), 0), COALESCE(SUM(IF(plausible, (value - a_shift) * (value - a_shift), 0)), 0),
+       COALESCE(MIN(IF(plausible, value, NULL)), MIN(value)), COALESCE(MAX(IF(plausible, value, NULL)), MAX(value)),
+       COALESCE(SUM(a_mr), 0), COUNT(a_mr), MAX(a_last_value), MAX(IF(plausible, started_at, NULL)), 0, SUM(plausible AND ${OUT_OF_SPEC})
      FROM (
-       SELECT step, name, qualifier, revision_id, station_id, unit, value, lsl, usl, verdict, started_at, ${SAMPLE} AS sample,
+       SELECT step, name, qualifier, revision_id, station_id, unit, value, lsl, usl, verdict, started_at, ${SAMPLE} AS sample, NOT implausible AS plausible,
          AVG(IF(${SAMPLE}, value, NULL)) OVER (${PARTITION}) AS shift,
          IF(${SAMPLE}, ABS(value - LAG(value) OVER (${PARTITION}, ${SAMPLE} ORDER BY started_at, id)), NULL) AS mr,
-         IF(${SAMPLE} AND ROW_NUMBER() OVER (${PARTITION}, ${SAMPLE} ORDER BY started_at DESC, id DESC) = 1, value, NULL) AS last_value
+         IF(${SAMPLE} AND ROW_NUMBER() OVER (${PARTITION}, ${SAMPLE} ORDER BY started_at DESC, id DESC) = 1, value, NULL) AS last_value,
+         AVG(IF(NOT implausible, value, NULL)) OVER (${PARTITION}) AS a_shift,
+         IF(NOT implausible, ABS(value - LAG(value) OVER (${PARTITION}, implausible ORDER BY started_at, id)), NULL) AS a_mr,
+         IF(NOT implausible AND ROW_NUMBER() OVER (${PARTITION}, implausible ORDER BY started_at DESC, id DESC) = 1, value, NULL) AS a_last_value
        FROM measurements WHERE ${cond} AND run_id NOT IN (SELECT run_id FROM lot_stats_pending WHERE lot_id = ?)
      ) t
      GROUP BY step, name, qualifier, revision_id, station_id`, [scope.lotId, ...vals, scope.lotId])
@@ -141,7 +122,7 @@ export async function rebuildParamRows(trx: Knex.Transaction, scope: RebuildScop
 
 export type RebuildMark = { lotId: number; step: string; revisionId: number; stationId: number }
 
-export async function rebuildMarksOfLot(trx: Knex.Transaction, lotId: number): Promise<RebuildMark[]> {
+export async function rebuildMarksOfLot(trx: Knex, lotId: number): Promise<RebuildMark[]> {
   const rows = await trx('lot_stats_rebuild').where({ lot_id: lotId }).select('lot_id', 'step', 'revision_id', 'station_id')
   return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, revisionId: Number(r.revision_id), stationId: Number(r.station_id) }))
 }

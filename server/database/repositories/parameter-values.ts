@@ -10,9 +10,15 @@ function scope(db: Knex, k: ParamKey) {
   return k.firstOnly ? q.where('m.first_attempt', true) : q
 }
 
+export type RevisionMoments = { revisionId: number; n: number; mean: number | null; sd: number | null; min: number | null; max: number | null }
+
 export type PointRow = { value: number; startedAt: Date; runId: string; serial: string; station: string }
 
-/** Points in test order: the first `head` (baseline) or the last `tail` (chart), with serial and station. */
+/**
+ * Points in test order: the first `head` (baseline) or the last `tail` (chart), with serial and station. With the
+ * revision given this reads measurements_series_idx forwards or backwards from one end, the attempt and plausibility
+ * filtered on the few rows read.
+ */
 export async function parameterPoints(db: Knex, k: ParamKey, opts: { head?: number; tail?: number }): Promise<PointRow[]> {
   const q = scope(db, k).join('test_runs as r', 'r.id', 'm.run_id').join('units as u', 'u.id', 'r.unit_id').join('stations as s', 's.id', 'm.station_id')
     .select('m.value', 'm.started_at', 'r.uuid', 'u.serial', 's.name as station')
@@ -20,25 +26,6 @@ export async function parameterPoints(db: Knex, k: ParamKey, opts: { head?: numb
     ? await q.orderBy([{ column: 'm.started_at' }, { column: 'm.id' }]).limit(opts.head)
     : (await q.orderBy([{ column: 'm.started_at', order: 'desc' }, { column: 'm.id', order: 'desc' }]).limit(opts.tail ?? 2000)).reverse()
   return rows.map((r: any) => ({ value: r.value, startedAt: r.started_at, runId: r.uuid, serial: r.serial, station: r.station }))
-}
-
-export type RevisionMoments = { revisionId: number; n: number; mean: number | null; sd: number | null; min: number | null; max: number | null }
-
-/** Count, mean, sample sd and range of the parameter's values per revision judged, in one pass over its index range. */
-export async function parameterMomentsByRevision(db: Knex, k: Omit<ParamKey, 'revisionId'>): Promise<RevisionMoments[]> {
-  const rows = await scope(db, k).groupBy('m.revision_id')
-    .select('m.revision_id', db.raw('COUNT(*) AS n, AVG(value) AS mean, STDDEV_SAMP(value) AS sd, MIN(value) AS min, MAX(value) AS max'))
-  return rows.map((r: any) => ({
-    revisionId: Number(r.revision_id), n: Number(r.n), mean: r.mean === null ? null : Number(r.mean), sd: r.sd === null ? null : Number(r.sd),
-    min: r.min === null ? null : Number(r.min), max: r.max === null ? null : Number(r.max),
-  }))
-}
-
-/** Centred regression sums of value against test order (x = rank / 1000), one pass in the database. */
-export async function parameterTrendSums(db: Knex, k: ParamKey, n: number, centre: number) {
-  const inner = scope(db, k).select(db.raw('value - ? AS y, (ROW_NUMBER() OVER (ORDER BY m.started_at, m.id) - 1 - ?) / 1000 AS dx', [centre, (n - 1) / 2]))
-  const r = await db.from(inner.as('t')).first(db.raw('COUNT(*) AS n, SUM(dx * dx) AS sxx, SUM(dx * y) AS sxy, SUM(y) AS sy, SUM(y * y) AS syy'))
-  return { n: Number(r.n), sxx: Number(r.sxx), sxy: Number(r.sxy), sy: Number(r.sy), syy: Number(r.syy) }
 }
 
 export async function findBaseline(db: Knex, k: Omit<ParamKey, 'firstOnly' | 'revisionId'>) {

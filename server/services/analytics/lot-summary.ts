@@ -3,10 +3,11 @@ import { capabilityFromStats, sigmaFromMovingRange } from '../../../shared/utils
 import { parameterLabel } from '../../../shared/utils/value-format'
 import { emptyMoments, mergeMoments, momentsFromShiftedSums, stdDev } from '../../../shared/utils/moments'
 import { paretoFailures, rolledThroughputYield, wilsonInterval } from '../../../shared/utils/yield'
-import { findLotHeader, paramStats, paramStatsAllAttempts, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
+import { findLotHeader, paramStats, stepStats, type LotHeader, type ParamStatsRow } from '../../database/repositories/lot-stats'
 import type { CapabilityRow, LotSummary, Population as LotSummaryPopulation } from '../../../shared/types/capability'
 import { freshenLotStats } from '../ingest/fold-param-stats'
 import { qualifierFields } from '../ingest/run-view'
+import { inPopulation, statsBacklog } from './param-populations'
 import { byRevision, revisionBook, type RevisionBook } from './revision-limits'
 
 export type Population = LotSummaryPopulation
@@ -56,13 +57,10 @@ export function sampledGroups<G extends { step: string; name: string; qualifier:
   })
 }
 
-async function firstAttemptStats(db: Knex, lotId: number): Promise<Merged[]> {
-  await freshenLotStats(db, [lotId])
-  return mergeStationRows(await paramStats(db, lotId))
-}
-
-async function allAttemptStats(db: Knex, lotId: number): Promise<Merged[]> {
-  return (await paramStatsAllAttempts(db, lotId)).map((r) => ({ ...r, mean: r.n > 0 ? r.mean : null }))
+/** The lot's parameter rows in the population asked for, its station rows merged, after a bounded fold of its queue. */
+async function parameterStats(db: Knex, lotId: number, population: Population) {
+  const [backlog] = await freshenLotStats(db, [lotId])
+  return { merged: mergeStationRows(inPopulation(await paramStats(db, lotId), population)), backlog: statsBacklog(backlog) }
 }
 
 function stepOrder(lot: LotHeader, step: string) {
@@ -86,17 +84,13 @@ function capabilityRow(p: Merged, book: RevisionBook, revisionsOfParameter: numb
 }
 
 /**
- * Yield, capability and failure Pareto of a lot, from the running aggregates (no scan of measurements by default).
+ * Yield, capability and failure Pareto of a lot, from the running aggregates (either population; no scan of measurements).
  * Capability is one row per parameter and revision judged, each against that revision's limits.
  */
 export async function lotSummary(db: Knex, code: string, population: Population = 'first'): Promise<LotSummary | undefined> {
   const lot = await findLotHeader(db, code)
   if (!lot) return undefined
-  const [steps, params, book] = await Promise.all([
-    stepStats(db, lot.id),
-    population === 'first' ? firstAttemptStats(db, lot.id) : allAttemptStats(db, lot.id),
-    revisionBook(db, lot.productId),
-  ])
+  const [steps, { merged: params, backlog }, book] = await Promise.all([stepStats(db, lot.id), parameterStats(db, lot.id, population), revisionBook(db, lot.productId)])
   const stepRows = steps.sort((a, b) => stepOrder(lot, a.step) - stepOrder(lot, b.step)).map((s) => ({
     ...s, finalPass: s.latestPass,
     firstPassYield: wilsonInterval(s.firstPass, s.units), finalYield: wilsonInterval(s.latestPass, s.units),
@@ -123,5 +117,6 @@ export async function lotSummary(db: Knex, code: string, population: Population 
     revisions: book.judged(capability.map((c) => c.revisionId)),
     capability,
     pareto,
+    backlog,
   }
 }

@@ -3,7 +3,8 @@ import { ewma, individualsLimits, westernElectricHits } from '../../../shared/ut
 import { qualifierKind } from '../../../shared/utils/measurement-names'
 import { MIN_DRIFT_UNITS, slopeFromCentredSums } from '../../../shared/utils/regression'
 import { findLotHeader } from '../../database/repositories/lot-stats'
-import { findBaseline, parameterMomentsByRevision, parameterPoints, parameterTrendSums, type ParamKey, type RevisionMoments } from '../../database/repositories/parameter-values'
+import { findBaseline, parameterPoints, type ParamKey, type RevisionMoments } from '../../database/repositories/parameter-values'
+import { parameterDriftSums, parameterMoments } from './parameter-aggregates'
 import type { ParameterView, RevisionCount } from '../../../shared/types/capability'
 import { RuleError } from '../rule-error'
 import { parameterLabel } from '../../../shared/utils/value-format'
@@ -38,7 +39,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
   const lot = await findLotHeader(db, q.code)
   if (!lot) return undefined
   const all = { lotId: lot.id, step: q.step, name: q.name, qualifier: q.qualifier, firstOnly: q.attempts === 'first' }
-  const [groups, book, frozen] = await Promise.all([parameterMomentsByRevision(db, all), revisionBook(db, lot.productId), findBaseline(db, all)])
+  const [{ groups, backlog }, book, frozen] = await Promise.all([parameterMoments(db, all, q.attempts), revisionBook(db, lot.productId), findBaseline(db, all)])
   const revisions = book.judged(groups.filter((g) => g.n > 0).map((g) => g.revisionId))
     .map((r) => ({ revisionId: r.revisionId, revision: r.revision, approvedAt: r.approvedAt, n: groups.find((g) => g.revisionId === r.revisionId)!.n }))
   const moments = chooseRevision(q, lot.partNumber, book, revisions, groups)
@@ -49,7 +50,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
     step: q.step, name: q.name, qualifier: q.qualifier, label: parameterLabel(q.name, q.qualifier), unit: limit?.unit ?? null,
     lsl: limit?.lsl ?? null, usl: limit?.usl ?? null, target: limit?.target ?? null, qualifierKind: qualifierKind(q.name),
   }
-  if (moments.n === 0) return { lot: { code: lot.code, partNumber: lot.partNumber }, parameter, revisions, n: 0, histogram: null, normal: null, control: null, ewma: null, drift: null, driftMinUnits: MIN_DRIFT_UNITS }
+  if (moments.n === 0) return { lot: { code: lot.code, partNumber: lot.partNumber }, parameter, revisions, n: 0, histogram: null, normal: null, control: null, ewma: null, drift: null, driftMinUnits: MIN_DRIFT_UNITS, driftPending: false, backlog }
 
   const lo = Math.min(moments.min!, parameter.lsl ?? Infinity)
   const hi = Math.max(moments.max!, parameter.usl ?? -Infinity)
@@ -57,7 +58,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
     keptHistogram(db, { ...key, revisionId: moments.revisionId }, lo, hi, BINS),
     parameterPoints(db, key, { tail: CHART_POINTS }),
     frozen ? Promise.resolve([]) : parameterPoints(db, key, { head: BASELINE_POINTS }),
-    parameterTrendSums(db, key, moments.n, moments.mean!),
+    parameterDriftSums(db, { ...all, revisionId: moments.revisionId }, q.attempts),
   ])
 
   const base = frozen
@@ -75,7 +76,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
     const e = ewma(points.map((p) => p.value), { lambda: 0.2, L: 3, mu0: base.centre, sigma: base.sigma })
     ewmaView = { lambda: e.lambda, L: e.L, asymptoticUcl: e.asymptoticUcl, asymptoticLcl: e.asymptoticLcl, points: e.points.map((p, i) => ({ index: firstIndex + i, z: p.z, ucl: p.ucl, lcl: p.lcl, signal: p.signal })) }
   }
-  const slope = slopeFromCentredSums(sums)
+  const slope = sums.sums && slopeFromCentredSums(sums.sums)
   return {
     lot: { code: lot.code, partNumber: lot.partNumber },
     parameter,
@@ -87,5 +88,7 @@ export async function parameterView(db: Knex, q: ParameterQuery): Promise<Parame
     ewma: ewmaView,
     drift: slope && slope.n >= MIN_DRIFT_UNITS ? { slopePer1000: slope.slope, interval: slope.slopeInterval, n: slope.n } : null,
     driftMinUnits: MIN_DRIFT_UNITS,
+    driftPending: sums.pending,
+    backlog,
   }
 }

@@ -4,6 +4,7 @@ import { rebuildParamRows } from '../../database/repositories/param-stats'
 import { recountStepStats } from '../../database/repositories/step-stats'
 import { rebuildLotBins } from '../ingest/fold-bins'
 import { rebuildUnitStandings } from '../../database/repositories/unit-standing'
+import { rebuildTrendOfLot } from '../ingest/param-trend-fold'
 
 /**
  * Recomputes a lot's aggregate rows from its stored runs and measurements inside `trx`, whose caller holds the
@@ -14,6 +15,7 @@ export async function rebuildLotAggregatesIn(trx: Knex.Transaction, lotId: numbe
   await rebuildParamRows(trx, { lotId })
   await rebuildLotBins(trx, lotId)
   await trx('lot_stats_rebuild').where({ lot_id: lotId }).del()
+  await rebuildTrendOfLot(trx, lotId)
   await recountStepStats(trx, lotId)
   await rebuildUnitStandings(trx, lotId)
   await markFolded(trx, lotId)

@@ -2,23 +2,27 @@
 // transaction only queues it (one small row), so stations posting into one lot never wait on the statistics rows,
 // and the database updates each row once per fold instead of once per run. A fold holds its lot's lease row for the
 // length of its transaction: folds of one lot take turns, folds of different lots run side by side. Readers fold
-// their lot first, so what they show includes every run stored before they asked.
+// their lot first, up to the newest run queued when they asked; heavy repairs are left to the background.
 import type { Knex } from 'knex'
-import { movingRangeSum } from '../../../shared/utils/capability'
 import { markProductOfLot } from '../../database/repositories/alert-marks'
 import { ensureFoldLease, lotsToFold, markFolded, takeFoldLease } from '../../database/repositories/fold-leases'
 import {
-  anyRebuildMarks, anyStaleParamRows, foldedSampleValues, staleParamRows, forgetQueuedRuns, forgetRebuildMark, newestQueuedRun, paramRowsOfLot, queuedRunsOfLot,
-  rebuildMarksOfLot, rebuildParamRows, valuesOfRuns, writeMovingRange, writeParamRows,
+  forgetQueuedRuns, forgetRebuildMark, paramRowsOfLot, queuedRunsOfLot, rebuildMarksOfLot, rebuildParamRows, valuesOfRuns, writeParamRows,
 } from '../../database/repositories/param-stats'
-import { RetryLater } from '../rule-error'
 import { addValuesToBins, rebuildMarkedBins } from './fold-bins'
 import { addValue, emptyParamRow, inTimeOrder, type ParamRow, type ParamRowKey } from './param-stats-merge'
+import { foldTrendValues, queueStaleGroups, repairQueuedGroups } from './param-trend-fold'
+import { queueRepairsOfRevision } from '../../database/repositories/param-trend'
+import { lotBacklog, rebuildSize, smallRepairsWaiting, type LotBacklog } from './fold-backlog'
 
 const RUNS_PER_FOLD = 500
 const RETRIES = 4
-// a reader waits this long for a fold of its lot in progress; a slice of 500 runs takes well under a second
-const READER_WAIT_SECONDS = 30
+// a reader waits this long for a fold of its lot in progress (a slice of 500 runs takes well under a second), then
+// reads the rows as they are and says what they do not include yet
+const READER_WAIT_SECONDS = 2
+// a reader rebuilds or repairs a group itself only up to this many values (one index range, some tens of ms);
+// larger ones are left to the background fold
+const READER_REPAIR_VALUES = 20_000
 const LOTS_PER_PASS = 50
 
 const keyText = (k: ParamRowKey) => `${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.revisionId}\u0000${k.stationId}`
@@ -26,19 +30,17 @@ const keyText = (k: ParamRowKey) => `${k.step}\u0000${k.name}\u0000${k.qualifier
 type Slice = { folded: number; more: boolean } | 'busy' | 'missing'
 
 /**
- * One transaction on one lot: take its lease, add up to RUNS_PER_FOLD queued runs to its rows, recompute the rows
- * marked for rebuild, drop the folded runs from the queue. With `repair` (a reader's fold) the moving ranges that
- * late values left stale are taken again too: that reads every value of the row, so the background leaves it to
- * the next reader rather than repeating it after every late arrival.
+ * One transaction on one lot: take its lease, add up to RUNS_PER_FOLD queued runs to its rows (both populations and
+ * the drift sums), drop them from the queue, recompute the rows marked for rebuild, and once the last slice is in,
+ * repair the groups whose moving ranges or drift sums late values left stale. Marks and repairs larger than
+ * `maxRepairValues` are left for a later fold (a reader's limit; the background's is unbounded).
  */
-async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: boolean, upTo?: number): Promise<Slice> {
+async function foldSlice(db: Knex, lotId: number, waitSeconds: number, maxRepairValues: number, upTo?: number): Promise<Slice> {
   return db.transaction(async (trx) => {
     const lease = await takeFoldLease(trx, lotId, waitSeconds)
     if (lease !== 'taken') return lease
     const runIds = await queuedRunsOfLot(trx, lotId, RUNS_PER_FOLD, upTo)
     const marks = await rebuildMarksOfLot(trx, lotId)
-    let stale: ParamRowKey[] = repair && !runIds.length ? await staleParamRows(trx, lotId) : []
-    if (!runIds.length && !marks.length && !stale.length) return { folded: 0, more: false }
     if (runIds.length) {
       const values = await valuesOfRuns(trx, runIds)
       const rows = new Map<string, ParamRow>()
@@ -56,25 +58,29 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, repair: b
       const written = [...touched].map((k) => rows.get(k)!)
       await writeParamRows(trx, written)
       await addValuesToBins(trx, values)
+      await foldTrendValues(trx, lotId, values)
+      await queueStaleGroups(trx, written)
       await forgetQueuedRuns(trx, runIds)
-      // a reader repairs once its last slice is in, not after every slice
-      if (repair && runIds.length < RUNS_PER_FOLD) stale = await staleParamRows(trx, lotId)
-    }
-    // a value older than the row's latest arrived: the moving range is taken again in test order
-    for (const key of stale) {
-      const values = await foldedSampleValues(trx, key)
-      await writeMovingRange(trx, key, movingRangeSum(values.map((v) => v.value)), values.at(-1))
     }
     // a run that became a unit's first attempt moved values into or out of the sample
+    const rebuiltMarks = []
     for (const m of marks) {
+      if (maxRepairValues !== Infinity && await rebuildSize(trx, m) > maxRepairValues) continue
       await rebuildParamRows(trx, m)
+      await queueRepairsOfRevision(trx, m.lotId, m.step, m.revisionId)
       await forgetRebuildMark(trx, m)
+      rebuiltMarks.push(m)
     }
-    await rebuildMarkedBins(trx, marks)
+    const rebuilt = rebuiltMarks.length
+    await rebuildMarkedBins(trx, rebuiltMarks)
+    // once the last slice is in (not after every slice), late values' moving ranges and drift sums are taken again
+    const last = runIds.length < RUNS_PER_FOLD
+    const repaired = last ? await repairQueuedGroups(trx, lotId, maxRepairValues) : 0
+    if (!runIds.length && !rebuilt && !repaired) return { folded: 0, more: false }
     // the product's alert rules look at the new results; last, so the product's mark row is held only until commit
-    if (runIds.length || marks.length) await markProductOfLot(trx, lotId)
+    if (runIds.length || rebuilt) await markProductOfLot(trx, lotId)
     await markFolded(trx, lotId)
-    return { folded: runIds.length, more: runIds.length === RUNS_PER_FOLD }
+    return { folded: runIds.length, more: !last }
   })
 }
 
@@ -89,12 +95,10 @@ async function withRetries<T>(work: () => Promise<T>): Promise<T> {
 }
 
 /** Folds one lot's queue; a background fold gives way when another fold of the lot is running. */
-async function foldLot(db: Knex, lotId: number, background: boolean): Promise<number | 'busy'> {
-  // a reader folds what was queued when it asked, not what keeps arriving while it folds
-  const upTo = background ? undefined : (await newestQueuedRun(db, lotId)) ?? undefined
+async function foldLot(db: Knex, lotId: number, background: boolean, upTo?: number): Promise<number | 'busy'> {
   let total = 0
   for (;;) {
-    const slice = await withRetries(() => foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, !background, upTo))
+    const slice = await withRetries(() => foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, background ? Infinity : READER_REPAIR_VALUES, upTo))
     if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
     if (slice === 'busy') return total || 'busy'
     total += slice.folded
@@ -117,18 +121,26 @@ export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; back
 }
 
 /**
- * Brings the lots' parameter rows up to date before a reader reads them: runs queued so far are folded in, rows a
- * late run left for a rebuild are recomputed and stale moving ranges are taken again. Answers 503 when a fold of the lot holds its lease too long.
+ * Brings the lots' parameter rows up to date before a reader reads them: runs queued so far are folded in, and rows
+ * a late run left for a rebuild or a repair are recomputed when small. A reader folds at most what was queued when it
+ * asked, waits at most READER_WAIT_SECONDS on a fold in progress, and leaves large rebuilds and repairs to the
+ * background: it answers with what its lot's rows do not include yet, so the view can say so.
  */
-export async function freshenLotStats(db: Knex, lotIds: number[]): Promise<void> {
+export async function freshenLotStats(db: Knex, lotIds: number[]): Promise<LotBacklog[]> {
+  const asked = new Date()
+  const result: LotBacklog[] = []
   for (const lotId of lotIds) {
-    const [queued, marked, stale] = await Promise.all([newestQueuedRun(db, lotId), anyRebuildMarks(db, lotId), anyStaleParamRows(db, lotId)])
-    if (queued === null && !marked && !stale) continue
+    const before = await lotBacklog(db, lotId, asked)
+    // nothing queued and nothing small enough for a reader: the background has it, no need to wait on the lease
+    if (!before.runs && !(await smallRepairsWaiting(db, lotId, READER_REPAIR_VALUES))) { result.push(before); continue }
     try {
-      await foldLot(db, lotId, false)
+      // what was queued when the reader asked, not what keeps arriving while it folds
+      await foldLot(db, lotId, false, before.upTo ?? 0)
     } catch (e: any) {
-      if (e?.code === 'ER_LOCK_WAIT_TIMEOUT') throw new RetryLater('The lot statistics are being updated; retry in a moment.')
-      throw e
+      // a fold of the lot holds its lease for longer: the rows are read as they are
+      if (e?.code !== 'ER_LOCK_WAIT_TIMEOUT') throw e
     }
+    result.push(await lotBacklog(db, lotId, asked, before.upTo))
   }
+  return result
 }

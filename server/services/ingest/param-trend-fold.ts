@@ -1,0 +1,85 @@
+// The fold's part for the drift sums and the repairs: values in time order take the next rank of their parameter
+// and revision (both populations; first attempts count in both), a value older than the group's last marks it for a
+// repair, and a repair takes the group's moving ranges and drift sums again from one index range.
+import type { Knex } from 'knex'
+import { movingRangeSum } from '../../../shared/utils/capability'
+import type { ParamRow } from '../../../shared/types/param-stats'
+import type { ValueOfRow } from '../../database/repositories/param-stats'
+import {
+  forgetRepair, forgetTrendOfLot, groupsOfLot, groupValues, queuedRepairs, queueRepairs, trendRowsOfLot, writeStationRanges, writeTrendRows,
+  type GroupValue, type StationRanges,
+} from '../../database/repositories/param-trend'
+import { addTrendValue, emptyTrendRow, trendRowFromValues, type TrendGroup, type TrendRow } from './param-trend-merge'
+
+const groupText = (g: TrendGroup) => `${g.step}\u0000${g.name}\u0000${g.qualifier}\u0000${g.revisionId}`
+const groupOf = (r: TrendGroup): TrendGroup => ({ lotId: r.lotId, step: r.step, name: r.name, qualifier: r.qualifier, revisionId: r.revisionId })
+
+/** Adds a fold's values (already in time order) to the lot's drift sums and queues the groups that went stale. */
+export async function foldTrendValues(trx: Knex.Transaction, lotId: number, inTimeOrder: ValueOfRow[]): Promise<void> {
+  const plausible = inTimeOrder.filter(({ value }) => !value.implausible && Number.isFinite(value.value))
+  if (!plausible.length) return
+  const rows = new Map<string, TrendRow>()
+  for (const r of await trendRowsOfLot(trx, lotId, [...new Set(plausible.map((v) => v.key.step))])) rows.set(`${groupText(r)}\u0000${r.allAttempts}`, r)
+  const touched = new Set<TrendRow>()
+  for (const { key, value } of plausible) {
+    for (const all of value.firstAttempt ? [true, false] : [true]) {
+      const k = `${groupText(key)}\u0000${all}`
+      let row = rows.get(k)
+      if (!row) { row = emptyTrendRow(groupOf(key), all, value.value); rows.set(k, row) }
+      addTrendValue(row, { value: value.value, startedAt: value.startedAt, id: value.id })
+      touched.add(row)
+    }
+  }
+  await writeTrendRows(trx, [...touched])
+  await queueStaleGroups(trx, [...touched].filter((r) => r.stale))
+}
+
+/** Queues the groups of parameter rows whose moving range a late value left stale. */
+export async function queueStaleGroups(trx: Knex.Transaction, rows: (TrendGroup & Partial<Pick<ParamRow, 'mrStale' | 'aMrStale'>> & { stale?: boolean })[]): Promise<void> {
+  const stale = rows.filter((r) => r.stale || r.mrStale || r.aMrStale)
+  const groups = new Map(stale.map((r) => [groupText(r), groupOf(r)]))
+  await queueRepairs(trx, [...groups.values()])
+}
+
+function stationRanges(values: GroupValue[]): StationRanges[] {
+  const byStation = new Map<number, GroupValue[]>()
+  for (const v of values) {
+    const list = byStation.get(v.stationId)
+    if (list) list.push(v); else byStation.set(v.stationId, [v])
+  }
+  return [...byStation].map(([stationId, vs]) => {
+    const ranges = (xs: GroupValue[]) => {
+      const mr = movingRangeSum(xs.map((x) => x.value))
+      const last = xs.at(-1)
+      return { sum: mr.sum, count: mr.count, last: last ? { value: last.value, startedAt: last.startedAt } : null }
+    }
+    return { stationId, first: ranges(vs.filter((v) => v.firstAttempt)), all: ranges(vs) }
+  })
+}
+
+/** Takes one group's moving ranges (each station, both populations) and drift sums again from its stored values. */
+export async function repairGroup(trx: Knex.Transaction, g: TrendGroup): Promise<void> {
+  const values = await groupValues(trx, g)
+  await writeStationRanges(trx, g, stationRanges(values))
+  const rows = [trendRowFromValues(g, true, values), trendRowFromValues(g, false, values.filter((v) => v.firstAttempt))].filter((r) => r.n > 0)
+  await trx('lot_param_trend').where({ lot_id: g.lotId, step: g.step, name: g.name, qualifier: g.qualifier, revision_id: g.revisionId }).del()
+  await writeTrendRows(trx, rows)
+  await forgetRepair(trx, g)
+}
+
+/** Repairs the lot's queued groups of at most `maxValues` values each; returns how many it repaired. */
+export async function repairQueuedGroups(trx: Knex.Transaction, lotId: number, maxValues: number): Promise<number> {
+  let repaired = 0
+  for (const g of await queuedRepairs(trx, lotId)) {
+    if (g.values > maxValues) continue
+    await repairGroup(trx, g)
+    repaired++
+  }
+  return repaired
+}
+
+/** Recomputes every drift sum of a lot from its stored values (the caller holds the lot's lease). */
+export async function rebuildTrendOfLot(trx: Knex.Transaction, lotId: number): Promise<void> {
+  await forgetTrendOfLot(trx, lotId)
+  for (const g of await groupsOfLot(trx, lotId)) await repairGroup(trx, g)
+}
