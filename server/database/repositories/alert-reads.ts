@@ -68,12 +68,13 @@ export async function lastValues(db: Knex, lotIds: readonly number[], k: { step:
   }))
 }
 
-/** The revisions a parameter's values were judged by in each lot: a loose scan of measurements_series_idx (one probe per revision). */
+/**
+ * The revisions a parameter's folded values were judged by in each lot, from the statistics rows. A run of a new
+ * revision not yet folded is missed until its fold, which marks the product for another evaluation anyway.
+ */
 async function revisionsOfParameter(db: Knex, lotIds: readonly number[], k: { step: string; name: string; qualifier: number }): Promise<{ lotId: number; revisionId: number }[]> {
-  const [rows] = await db.raw(
-    `SELECT DISTINCT lot_id, revision_id FROM measurements WHERE lot_id IN (${lotIds.map(() => '?').join(', ')}) AND step = ? AND name = ? AND qualifier = ?`,
-    [...lotIds, k.step, k.name, k.qualifier])
-  return (rows as any[]).map((r) => ({ lotId: Number(r.lot_id), revisionId: Number(r.revision_id) }))
+  const rows = await db('lot_param_stats').whereIn('lot_id', lotIds).where({ step: k.step, name: k.name, qualifier: k.qualifier }).where('n', '>', 0).distinct('lot_id', 'revision_id')
+  return rows.map((r: any) => ({ lotId: Number(r.lot_id), revisionId: Number(r.revision_id) }))
 }
 
 /** The last `n` first attempts at a step over the given lots (attempt 1 is the first by test time), oldest first. */

@@ -19,7 +19,7 @@ const RUNS_PER_FOLD = 500
 const RETRIES = 4
 // a reader waits this long for a fold of its lot in progress (a slice of 500 runs takes well under a second), then
 // reads the rows as they are and says what they do not include yet
-const READER_WAIT_SECONDS = 2
+const READER_WAIT_SECONDS = 5
 // a reader rebuilds or repairs a group itself only up to this many values (one index range, some tens of ms);
 // larger ones are left to the background fold
 const READER_REPAIR_VALUES = 20_000
