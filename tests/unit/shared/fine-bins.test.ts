@@ -133,7 +133,8 @@ describe('quantiles from fine bins', () => {
       const got = quantileFromBins(fine, e, p, { min, max })
       const exact = ssQuantileSorted(sorted, p)
       if (!Number.isFinite(exact)) return true
-      return Math.abs(got - exact) <= 2 ** e
+      // one fine width, plus the rounding of the two interpolations (a few units in the last place of the values)
+      return Math.abs(got - exact) <= 2 ** e + 4 * Number.EPSILON * Math.max(Math.abs(min), Math.abs(max))
     }), { numRuns: 3000 })
   })
 
