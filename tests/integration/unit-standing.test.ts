@@ -1,6 +1,7 @@
 // Each unit's standing on its row and the lot's unit counters, after shuffled arrivals (late runs, retests, several
 // stations and steps, concurrent groups), equal a recomputation written here from the stored runs alone; so do they
 // after a rebuild from the rows, and after a run's calibration flag is judged again.
+import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createKnex, connectionFromEnv } from '../../server/database/connection'
@@ -59,7 +60,7 @@ afterAll(async () => { await db.destroy() })
 type Run = { id: number; unit_id: number; station_id: number; step: string; uuid: string; started_at: Date; finished_at: Date; server_verdict: 'pass' | 'fail'; calibration_lapsed: number }
 
 /** The standing of every unit and the lot's counts, computed from the lot's runs alone. */
-async function recompute(lotId: number) {
+async function recompute(lotId: number, productSteps: readonly string[] = STEPS) {
   const runs: Run[] = await db('test_runs').where({ lot_id: lotId }).select('id', 'unit_id', 'station_id', 'step', 'uuid', 'started_at', 'finished_at', 'server_verdict', 'calibration_lapsed')
   const units = await db('units').where({ lot_id: lotId }).select('id', 'serial')
   const testOrder = (a: Run, b: Run) => +a.started_at - +b.started_at || +a.finished_at - +b.finished_at || (a.uuid < b.uuid ? -1 : a.uuid > b.uuid ? 1 : 0)
@@ -72,7 +73,7 @@ async function recompute(lotId: number) {
       return { step, attempts: sorted.length, first: sorted[0]!, latest: sorted.at(-1)! }
     })
     const anyFail = steps.some((s) => s.latest.server_verdict === 'fail')
-    const atLast = steps.some((s) => s.step === 'final')
+    const atLast = steps.some((s) => s.step === productSteps.at(-1))
     const last = steps.length ? steps.reduce((a, b) => (b.latest.id > a.latest.id ? b : a)) : null
     const at = new Map(steps.map((s) => [s.step, s]))
     expected.set(u.id, {
@@ -84,8 +85,8 @@ async function recompute(lotId: number) {
       runs: steps.reduce((n, s) => n + s.attempts, 0),
       last_step: last?.step ?? null, last_station_id: last?.latest.station_id ?? null,
       last_tested_at: last ? new Date(last.latest.finished_at).toISOString() : null, latest_run_id: last?.latest.id ?? null,
-      ready: STEPS.every((s) => at.get(s)?.latest.server_verdict === 'pass' && !at.get(s)!.latest.calibration_lapsed) ? 1 : 0,
-      passed_all: !anyFail && STEPS.every((s) => at.get(s)?.latest.server_verdict === 'pass') ? 1 : 0,
+      ready: productSteps.every((s) => at.get(s)?.latest.server_verdict === 'pass' && !at.get(s)!.latest.calibration_lapsed) ? 1 : 0,
+      passed_all: !anyFail && productSteps.length > 0 && productSteps.every((s) => at.get(s)?.latest.server_verdict === 'pass') ? 1 : 0,
     })
   }
   const all = [...expected.values()]
@@ -99,9 +100,9 @@ async function recompute(lotId: number) {
   return { expected, counts }
 }
 
-async function expectStoredEqualsRecomputation() {
-  const lot = await db('lots').where({ code: lotCode }).first('id')
-  const { expected, counts } = await recompute(lot.id)
+async function expectStoredEqualsRecomputation(code = lotCode, productSteps: readonly string[] = STEPS) {
+  const lot = await db('lots').where({ code }).first('id')
+  const { expected, counts } = await recompute(lot.id, productSteps)
   const rows = await db('units').where({ lot_id: lot.id }).select('id', ...Object.keys(expected.values().next().value!))
   expect(rows).toHaveLength(expected.size)
   for (const r of rows) {
@@ -180,5 +181,39 @@ describe('unit standings and lot unit counters', () => {
       expect(serials, `${sort} ${dir}`).toEqual(expected)
     }
     await expect(lotUnitsCsv(db, 'NO-SUCH-LOT-UST', { sort: 'serial', dir: 'asc' })).rejects.toMatchObject({ status: 404 })
+  })
+})
+
+describe('a change of the product\'s steps', () => {
+  it('stands every unit of its lots again by the new steps', async () => {
+    const { createProduct, changeProduct } = await import('../../server/services/catalogue')
+    const { rebuildLotAggregates } = await import('../../server/services/analytics/rebuild-aggregates')
+    const admin = await db('users').orderBy('id').first('id')
+    const station = await db('stations').orderBy('id').first('id')
+    const partNumber = `UST-${Date.now().toString(36)}`.toUpperCase()
+    const product = await createProduct(db, admin.id, { partNumber, name: 'Standing check', multiplier: 3, inputHz: 125e6, steps: ['tune', 'final'] })
+    const code = `${partNumber}-L`
+    const [lotId] = await db('lots').insert({ product_id: product.id, code })
+    // rows written as a bulk load would: runs and step rows, then a rebuild stands the units
+    const t0 = Date.now() - 3600_000
+    const units: [string, [string, 'pass' | 'fail'][]][] = [['A', [['tune', 'pass'], ['final', 'pass']]], ['B', [['tune', 'pass']]], ['C', [['tune', 'pass'], ['final', 'fail']]]]
+    for (const [k, [serial, runs]] of units.entries()) {
+      const [unitId] = await db('units').insert({ product_id: product.id, lot_id: lotId, serial: `${code}-${serial}` })
+      for (const [j, [step, verdict]] of runs.entries()) {
+        const at = new Date(t0 + k * 60_000 + j * 10_000)
+        const [runId] = await db('test_runs').insert({
+          uuid: randomUUID(), body_hash: '0'.repeat(64), unit_id: unitId, lot_id: lotId, station_id: station.id, step, attempt: 1,
+          started_at: at, finished_at: new Date(+at + 5000), server_verdict: verdict,
+        })
+        await db('unit_steps').insert({ unit_id: unitId, step, attempts: 1, first_verdict: verdict, latest_verdict: verdict, latest_run_id: runId })
+      }
+    }
+    await rebuildLotAggregates(db, lotId!)
+    const before = await expectStoredEqualsRecomputation(code, ['tune', 'final'])
+    expect(before).toMatchObject({ units: 3, passed: 1, failed: 1, in_progress: 1, not_ready: 2, passed_all: 1 })
+    await changeProduct(db, admin.id, partNumber, { steps: ['tune', 'final', 'pack'] })
+    const after = await expectStoredEqualsRecomputation(code, ['tune', 'final', 'pack'])
+    // nothing has reached the new last step: no unit is complete, ready or passed every step any more
+    expect(after).toMatchObject({ units: 3, completed: 0, passed: 0, failed: 1, in_progress: 2, not_ready: 3, passed_all: 0 })
   })
 })
