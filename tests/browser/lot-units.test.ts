@@ -44,6 +44,19 @@ describe('lot units page', () => {
     await page.context().close()
   })
 
+  it('renders the first page of units on the server, so the page hydrates without a mismatch', async () => {
+    const page = await signInPage(browser, baseUrl(), ROLE_ACCOUNTS.engineer)
+    const html = await (await page.request.get(`${baseUrl()}/lots/T3-2612-B/units`)).text()
+    expect(html).toContain('href="/units/T32612-0001"')
+    const errors: string[] = []
+    page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()) })
+    await page.goto(`${baseUrl()}/lots/T3-2612-B/units`)
+    await hydrated(page)
+    await page.locator('[data-test=units-table] tbody tr').first().waitFor()
+    expect(errors.filter((e) => /hydration/i.test(e))).toEqual([])
+    await page.context().close()
+  })
+
   it('keeps filters, sort and page in the address: a reload and back from a unit restore them', async () => {
     const page = await signInPage(browser, baseUrl(), ROLE_ACCOUNTS.engineer)
     await page.goto(`${baseUrl()}/lots/T3-2612-B/units`)
