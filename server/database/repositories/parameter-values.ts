@@ -20,11 +20,13 @@ export type PointRow = { value: number; startedAt: Date; runId: string; serial: 
  * filtered on the few rows read.
  */
 export async function parameterPoints(db: Knex, k: ParamKey, opts: { head?: number; tail?: number }): Promise<PointRow[]> {
-  const q = scope(db, k).join('test_runs as r', 'r.id', 'm.run_id').join('units as u', 'u.id', 'r.unit_id').join('stations as s', 's.id', 'm.station_id')
-    .select('m.value', 'm.started_at', 'r.uuid', 'u.serial', 's.name as station')
-  const rows = opts.head !== undefined
-    ? await q.orderBy([{ column: 'm.started_at' }, { column: 'm.id' }]).limit(opts.head)
-    : (await q.orderBy([{ column: 'm.started_at', order: 'desc' }, { column: 'm.id', order: 'desc' }]).limit(opts.tail ?? 2000)).reverse()
+  const dir = opts.head !== undefined ? 'asc' : 'desc'
+  // the few points are taken from the index first and only then joined to their runs, units and stations, so the
+  // join order cannot turn the read into a pass over the lot
+  const picked = scope(db, k).select('m.id', 'm.value', 'm.started_at', 'm.run_id', 'm.station_id')
+    .orderBy([{ column: 'm.started_at', order: dir }, { column: 'm.id', order: dir }]).limit(opts.head ?? opts.tail ?? 2000)
+  const rows = await db.from(picked.as('p')).join('test_runs as r', 'r.id', 'p.run_id').join('units as u', 'u.id', 'r.unit_id').join('stations as s', 's.id', 'p.station_id')
+    .select('p.value', 'p.started_at', 'r.uuid', 'u.serial', 's.name as station').orderBy([{ column: 'p.started_at' }, { column: 'p.id' }])
   return rows.map((r: any) => ({ value: r.value, startedAt: r.started_at, runId: r.uuid, serial: r.serial, station: r.station }))
 }
 
