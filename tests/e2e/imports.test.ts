@@ -510,17 +510,19 @@ describe('resuming a stuck import by hand', () => {
 
 // last: spawnSync blocks this process's event loop, so sockets the server closes meanwhile look open to the next request
 describe('memory', () => {
-  it('a 5,000-run import (over 30 MB) grows the server by less than 150 MB', () => {
+  // the peak counts garbage not yet collected: 135–141 MB on a quiet machine, up to about 150 MB on a loaded one.
+  // Holding the file whole would add several times its size on top, which this bound still catches.
+  it('a 5,000-run import (over 30 MB) grows the server by less than 175 MB', () => {
     const db = `${process.env.TERCET_TEST_DB || 'tercet_test'}_memcheck`
     const r = spawnSync(resolve(process.cwd(), 'node_modules/.bin/jiti'), [
-      'scripts/import-memory-check.ts', '--runs=5000', '--measurements=5', '--trace-points=400', '--max-growth-mb=150', `--db=${db}`,
+      'scripts/import-memory-check.ts', '--runs=5000', '--measurements=5', '--trace-points=400', '--max-growth-mb=175', `--db=${db}`,
     ], { cwd: process.cwd(), encoding: 'utf8', env: process.env, timeout: 280_000 })
     const line = r.stdout.trim().split('\n').reverse().find((l) => l.startsWith('{'))
     expect(line, r.stderr).toBeDefined()
     const m = JSON.parse(line!)
     expect(m).toMatchObject({ runs: 5000, status: 'done', runsCreated: 5000, runsRejected: 0 })
     expect(m.fileMb).toBeGreaterThan(30)
-    expect(m.rssGrowthMb).toBeLessThan(150)
+    expect(m.rssGrowthMb).toBeLessThan(175)
     expect(r.status).toBe(0)
   }, 300_000)
 })
