@@ -2,6 +2,7 @@
 // samples or has spent 60 s (at least 3 samples, unless one request alone takes 30 s), so that a route that takes
 // minutes shows as capped instead of stalling the bench.
 import { performance } from 'node:perf_hooks'
+import { quantileSorted } from '../../shared/utils/percentiles'
 
 export type RouteFigure = {
   route: string; p50Ms: number | null; p95Ms: number | null; measurements: number; samples: number
@@ -11,12 +12,6 @@ export type RouteFigure = {
 }
 
 export const ROUTE_CAP = { samples: 20, seconds: 60, minSamples: 3, slowSingleSeconds: 30, requestTimeoutSeconds: 180 }
-
-export function percentile(sorted: number[], p: number): number {
-  const i = (sorted.length - 1) * p
-  const lo = Math.floor(i)
-  return sorted[lo]! + (sorted[Math.min(lo + 1, sorted.length - 1)]! - sorted[lo]!) * (i - lo)
-}
 
 /** One full request: the whole body read; throws on an answer other than 2xx. */
 export async function fullRequest(url: string, cookie: string): Promise<void> {
@@ -68,7 +63,7 @@ export async function timeRoute(route: string, once: () => Promise<void>, measur
     if (ms > ROUTE_CAP.slowSingleSeconds * 1000) capped = true
   }
   times.sort((a, b) => a - b)
-  const fig = (p: number) => (times.length ? +percentile(times, p).toFixed(1) : null)
+  const fig = (p: number) => (times.length ? +quantileSorted(times, p).toFixed(1) : null)
   return {
     route, p50Ms: fig(0.5), p95Ms: fig(0.95), measurements: await measurements(), samples: times.length,
     ...(capped ? { capped: true as const } : {}), ...(error ? { error } : {}),

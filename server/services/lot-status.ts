@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import { writeAudit } from '../database/repositories/audit'
-import { lockLotByCode, notReadyUnitSteps, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
+import { lockLotByCode, unitStepsOfLot, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
 import { findProductById } from '../database/repositories/products'
 import { invalidateLotCache } from './ingest/caches'
 import { lotReadiness } from './lot-readiness'
@@ -41,7 +41,7 @@ const LISTED = 50
 async function releaseDeviation(trx: Knex.Transaction, lot: LotRow, deviation: string | undefined) {
   const product = await findProductById(trx, lot.productId)
   // only the units the write path marked not ready are read; the count of all comes from the lot's counters
-  const readiness = { units: (await lotUnitCounts(trx, lot.id)).units, notReady: lotReadiness(await notReadyUnitSteps(trx, lot.id), product?.steps ?? []).notReady }
+  const readiness = { units: (await lotUnitCounts(trx, lot.id)).units, notReady: lotReadiness(await unitStepsOfLot(trx, lot.id, { notReadyOnly: true }), product?.steps ?? []).notReady }
   if (readiness.units === 0) throw new RuleError(409, 'The lot has no tested units to release.')
   if (!readiness.notReady.length) return null
   if (!deviation) {

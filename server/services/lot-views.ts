@@ -23,7 +23,7 @@ export async function lotDetail(db: Knex, code: string): Promise<LotView | undef
   // before a release, how many units the release check would hold back
   const readiness = lot.status === 'open' || lot.status === 'on_hold' ? { units: c.units, notReady: c.not_ready } : null
   // a lot ships with its units' shipments: of its passing units, how many have left in a dispatched shipment
-  const shipping = await lotShipping(db, lot.id)
+  const shipping = await lotShipping(db, lot.id, c.passed_all)
   const { id: _id, productId: _p, ...rest } = lot
   return {
     ...rest,

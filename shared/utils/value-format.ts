@@ -141,6 +141,16 @@ export function formatBytes(n: number | null | undefined): string {
   return `${formatFixed(v, i === 0 ? 0 : 1)}\u00A0${units[i]}`
 }
 
+/**
+ * A bound stated to someone (a resolution, a "within" figure) in its display unit, rounded up to two significant
+ * digits so the stated bound never understates it: 0.007 813 dB → "0.0079".
+ */
+export function formatUpperBound(v: number | null | undefined, display: DisplayUnit): string {
+  if (!finite(v) || v <= 0) return DASH
+  const step = 10 ** (Math.floor(Math.log10(v * display.factor)) - 1)
+  return formatNumber((Math.ceil((v * display.factor) / step) * step) / display.factor, { ...display, decimals: Math.max(0, Math.round(-Math.log10(step))) })
+}
+
 /** A wait a person is told about: seconds up to a minute and a half, then whole minutes rounded up. */
 export function formatWait(seconds: number): string {
   if (seconds <= 90) return `${Math.max(1, Math.ceil(seconds))} s`

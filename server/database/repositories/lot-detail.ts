@@ -41,21 +41,16 @@ export async function updateLotKind(trx: Knex, id: number, engineering: boolean)
   await trx('lots').where({ id }).update({ engineering, engineering_source: 'hand' })
 }
 
-/** Each unit of the lot with its latest result per step tested, for the release check. */
-export async function unitStepsOfLot(db: Knex, lotId: number): Promise<UnitStepRow[]> {
-  const rows = await db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').leftJoin('test_runs as r', 'r.id', 'us.latest_run_id')
-    .where('u.lot_id', lotId).select('u.serial', 'us.step', 'us.latest_verdict', 'r.calibration_lapsed')
-  return rows.map((r: any) => ({ serial: r.serial, step: r.step ?? null, latestVerdict: r.latest_verdict ?? null, calibrationLapsed: !!r.calibration_lapsed }))
-}
-
 /**
- * The step rows of the lot's units that the release check would hold back (`ready` kept on the unit's row by the
- * write path), read through the (lot_id, ready, serial) index: what lotReadiness needs to name their problems.
+ * Each unit of the lot with its latest result per step tested, for the release check. With `notReadyOnly`, only the
+ * units the release check would hold back (`ready` kept on the unit's row by the write path), read through the
+ * (lot_id, ready, serial) index: what lotReadiness needs to name their problems.
  */
-export async function notReadyUnitSteps(db: Knex, lotId: number): Promise<UnitStepRow[]> {
-  const rows = await db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').leftJoin('test_runs as r', 'r.id', 'us.latest_run_id')
-    .where('u.lot_id', lotId).where('u.ready', false).select('u.serial', 'us.step', 'us.latest_verdict', 'r.calibration_lapsed')
-  return rows.map((r: any) => ({ serial: r.serial, step: r.step ?? null, latestVerdict: r.latest_verdict ?? null, calibrationLapsed: !!r.calibration_lapsed }))
+export async function unitStepsOfLot(db: Knex, lotId: number, { notReadyOnly = false } = {}): Promise<UnitStepRow[]> {
+  const q = db('units as u').leftJoin('unit_steps as us', 'us.unit_id', 'u.id').leftJoin('test_runs as r', 'r.id', 'us.latest_run_id')
+    .where('u.lot_id', lotId).select('u.serial', 'us.step', 'us.latest_verdict', 'r.calibration_lapsed')
+  if (notReadyOnly) q.where('u.ready', false)
+  return (await q).map((r: any) => ({ serial: r.serial, step: r.step ?? null, latestVerdict: r.latest_verdict ?? null, calibrationLapsed: !!r.calibration_lapsed }))
 }
 
 /** Runs stored after the given moment (the (lot_id, received_at) index): for a released lot, what arrived after its release. */

@@ -38,3 +38,15 @@ export async function paramStats(db: Knex, lotId: number): Promise<ParamStatsRow
 export async function paramStatsOfParameter(db: Knex, lotId: number, k: { step: string; name: string; qualifier: number }): Promise<ParamStatsRow[]> {
   return (await db('lot_param_stats').where({ lot_id: lotId, step: k.step, name: k.name, qualifier: k.qualifier })).map(paramRowFromDb)
 }
+
+export type SampleSummary = { name: string; qualifier: number; n: number; mean: number; min: number; max: number }
+
+/**
+ * Count, mean and extremes of the first-attempt sample of the given names at one step and revision of a lot, pooled
+ * over the stations' statistics rows (rows without sample values hold no extremes of it).
+ */
+export async function sampleSummaries(db: Knex | Knex.Transaction, key: { lotId: number; step: string; revisionId: number; names: string[] }): Promise<SampleSummary[]> {
+  const rows = await db('lot_param_stats').where({ lot_id: key.lotId, step: key.step, revision_id: key.revisionId }).whereIn('name', key.names).andWhere('n', '>', 0)
+    .groupBy('name', 'qualifier').select('name', 'qualifier', db.raw('SUM(n) AS n, SUM(n * shift + sum_d) AS total, MIN(min_value) AS min_value, MAX(max_value) AS max_value'))
+  return rows.map((r: any) => ({ name: r.name, qualifier: Number(r.qualifier), n: Number(r.n), mean: Number(r.total) / Number(r.n), min: Number(r.min_value), max: Number(r.max_value) }))
+}

@@ -104,6 +104,12 @@ export function decodeUnitCursor(text: string, sort: UnitSort): UnitCursor | und
   }
 }
 
+/** The lot's station names by id, and the station filter's name as an id (null: no such station; undefined: no filter). */
+function stationLookup(q: UnitQuery, stations: { id: number; name: string }[]) {
+  const stationId = q.station === undefined ? undefined : stations.find((s) => s.name === q.station)?.id ?? null
+  return { names: new Map(stations.map((s) => [s.id, s.name])), stationId }
+}
+
 /** A count stops here when the counters cannot answer it: past it the list says "more than". */
 export const COUNT_BOUND = 10_000
 
@@ -116,8 +122,7 @@ export type UnitsListing = { total: number; totalExact: boolean; rows: UnitListR
  */
 export async function listLotUnits(db: Knex, lotId: number, q: UnitQuery, page: { limit: number; offset: number; after?: UnitCursor },
   counts: Record<Counter, number>, stations: { id: number; name: string }[]): Promise<UnitsListing> {
-  const names = new Map(stations.map((s) => [s.id, s.name]))
-  const stationId = q.station === undefined ? undefined : stations.find((s) => s.name === q.station)?.id ?? null
+  const { names, stationId } = stationLookup(q, stations)
   let total: number
   let totalExact = true
   const onlyVerdicts = !q.serial && !q.minAttempts && q.station === undefined && !q.from && !q.to
@@ -148,8 +153,7 @@ export async function listLotUnits(db: Knex, lotId: number, q: UnitQuery, page: 
 
 /** Every row of the list in its order, `batch` at a time by keyset (for the CSV, written as it is read). */
 export async function* eachLotUnit(db: Knex, lotId: number, q: UnitQuery, stations: { id: number; name: string }[], batch = 2000): AsyncGenerator<UnitListRow[]> {
-  const names = new Map(stations.map((s) => [s.id, s.name]))
-  const stationId = q.station === undefined ? undefined : stations.find((s) => s.name === q.station)?.id ?? null
+  const { names, stationId } = stationLookup(q, stations)
   const col = SORT_COLUMN[q.sort]
   let after: UnitCursor | undefined
   for (;;) {

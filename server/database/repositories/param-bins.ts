@@ -1,7 +1,7 @@
 // The fine bins of each lot parameter (lot_param_bins) with their exponent and extremes (lot_param_bin_groups), kept
 // by the statistics fold under the lot's lease, and the reads of the views that derive histograms and quantiles.
 import type { Knex } from 'knex'
-import { binSql } from '../../../shared/utils/fine-bins'
+import { binExponent, binSql } from '../../../shared/utils/fine-bins'
 import { numberLiteral, textLiteral } from '../sql-literals'
 
 /** One lot parameter judged by one revision: the unit of binning. */
@@ -56,11 +56,11 @@ export type BinScope = { lotId: number; step?: string; revisionId?: number }
 
 /**
  * Recounts the bins of a lot (or of one step and revision of it) from the stored measurements: the extremes of each
- * group's plausible values give its exponent (`exponentOf`, the same function the fold applies), then one grouped
+ * group's plausible values give its exponent (`binExponent`, as in the fold), then one grouped
  * statement counts FLOOR(value / 2^e). Runs still queued for the fold are left out, and left in the queue, so the
  * fold adds them once.
  */
-export async function rebuildBins(trx: Knex.Transaction, scope: BinScope, exponentOf: (min: number, max: number) => number): Promise<void> {
+export async function rebuildBins(trx: Knex.Transaction, scope: BinScope): Promise<void> {
   const where: Record<string, string | number> = { lot_id: scope.lotId }
   if (scope.step !== undefined) where.step = scope.step
   if (scope.revisionId !== undefined) where.revision_id = scope.revisionId
@@ -73,7 +73,7 @@ export async function rebuildBins(trx: Knex.Transaction, scope: BinScope, expone
     GROUP BY m.step, m.name, m.qualifier, m.revision_id`, [...vals, scope.lotId])
   const groups: BinGroup[] = (extremes as any[]).map((r) => ({
     lotId: scope.lotId, step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id),
-    min: Number(r.min_value), max: Number(r.max_value), exponent: exponentOf(Number(r.min_value), Number(r.max_value)),
+    min: Number(r.min_value), max: Number(r.max_value), exponent: binExponent(Number(r.min_value), Number(r.max_value)),
   }))
   for (let i = 0; i < groups.length; i += ROWS_PER_STATEMENT) await writeBinGroups(trx, groups.slice(i, i + ROWS_PER_STATEMENT))
   if (!groups.length) return
@@ -100,16 +100,4 @@ export async function keptBins(db: Knex | Knex.Transaction, key: { lotId: number
   for (const r of groups) { const g = groupFromDb(r); out.set(`${g.name}\u0000${g.qualifier}`, { ...g, bins: [] }) }
   for (const r of bins as any[]) out.get(`${r.name}\u0000${Number(r.qualifier)}`)?.bins.push({ k: Number(r.k), nFirst: Number(r.n_first), nAll: Number(r.n_all) })
   return [...out.values()]
-}
-
-export type SampleSummary = { name: string; qualifier: number; n: number; mean: number; min: number; max: number }
-
-/**
- * Count, mean and extremes of the first-attempt sample of the given names at one step and revision of a lot, pooled
- * over the stations' statistics rows (rows without sample values hold no extremes of it).
- */
-export async function sampleSummaries(db: Knex | Knex.Transaction, key: { lotId: number; step: string; revisionId: number; names: string[] }): Promise<SampleSummary[]> {
-  const rows = await db('lot_param_stats').where({ lot_id: key.lotId, step: key.step, revision_id: key.revisionId }).whereIn('name', key.names).andWhere('n', '>', 0)
-    .groupBy('name', 'qualifier').select('name', 'qualifier', db.raw('SUM(n) AS n, SUM(n * shift + sum_d) AS total, MIN(min_value) AS min_value, MAX(max_value) AS max_value'))
-  return rows.map((r: any) => ({ name: r.name, qualifier: Number(r.qualifier), n: Number(r.n), mean: Number(r.total) / Number(r.n), min: Number(r.min_value), max: Number(r.max_value) }))
 }

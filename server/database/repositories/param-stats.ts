@@ -122,8 +122,13 @@ export async function rebuildParamRows(trx: Knex.Transaction, scope: RebuildScop
 
 export type RebuildMark = { lotId: number; step: string; revisionId: number; stationId: number }
 
-export async function rebuildMarksOfLot(trx: Knex, lotId: number): Promise<RebuildMark[]> {
-  const rows = await trx('lot_stats_rebuild').where({ lot_id: lotId }).select('lot_id', 'step', 'revision_id', 'station_id')
+/**
+ * The lot's rebuild marks. A fold takes them `forUpdate`: a write that marks the same rows again while the fold
+ * recomputes them then waits until the fold has dropped the old mark, so its own mark survives for the next fold.
+ */
+export async function rebuildMarksOfLot(trx: Knex, lotId: number, opts: { forUpdate?: boolean } = {}): Promise<RebuildMark[]> {
+  const q = trx('lot_stats_rebuild').where({ lot_id: lotId }).select('lot_id', 'step', 'revision_id', 'station_id')
+  const rows = await (opts.forUpdate ? q.forUpdate() : q)
   return rows.map((r: any) => ({ lotId: Number(r.lot_id), step: r.step, revisionId: Number(r.revision_id), stationId: Number(r.station_id) }))
 }
 

@@ -62,11 +62,6 @@ export async function queuedRepairs(trx: Knex, lotId: number): Promise<QueuedRep
   return (rows as any[]).map((r) => ({ lotId: Number(r.lot_id), step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id), values: Number(r.n_values) }))
 }
 
-export async function repairsQueued(db: Knex, lotId: number): Promise<number> {
-  const r = await db('lot_stats_repair').where({ lot_id: lotId }).count<{ n: number }[]>({ n: '*' })
-  return Number(r[0]?.n ?? 0)
-}
-
 /** Whether one group of a lot awaits a repair. */
 export async function repairQueued(db: Knex, g: TrendGroup): Promise<boolean> {
   return (await db('lot_stats_repair').where(groupWhere(g)).first('lot_id')) !== undefined
@@ -112,6 +107,11 @@ export async function writeStationRanges(trx: Knex.Transaction, g: TrendGroup, s
 export async function groupsOfLot(trx: Knex.Transaction, lotId: number): Promise<TrendGroup[]> {
   const rows = await trx('lot_param_stats').where({ lot_id: lotId }).distinct('step', 'name', 'qualifier', 'revision_id')
   return rows.map((r: any) => ({ lotId, step: r.step, name: r.name, qualifier: Number(r.qualifier), revisionId: Number(r.revision_id) }))
+}
+
+/** Drops one group's drift rows (both populations) before they are written again from its values. */
+export async function forgetTrendOfGroup(trx: Knex.Transaction, g: TrendGroup): Promise<void> {
+  await trx('lot_param_trend').where(groupWhere(g)).del()
 }
 
 export async function forgetTrendOfLot(trx: Knex.Transaction, lotId: number): Promise<void> {

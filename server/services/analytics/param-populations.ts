@@ -3,14 +3,13 @@
 import type { ParamStatsRow } from '../../database/repositories/lot-stats'
 import type { LotBacklog } from '../ingest/fold-backlog'
 import type { Population, StatsBacklog } from '../../../shared/types/capability'
+import { ALL_ATTEMPT_FIELDS } from '../ingest/param-stats-merge'
 
 /** The rows with the chosen population's sums in the main fields (failures count every attempt in both). */
 export function inPopulation<R extends ParamStatsRow>(rows: R[], population: Population): R[] {
   if (population === 'first') return rows
-  return rows.map((r) => ({
-    ...r, n: r.aN, shift: r.aShift, sumD: r.aSumD, sumSqD: r.aSumSqD, min: r.aMin, max: r.aMax,
-    mrSum: r.aMrSum, mrN: r.aMrN, mrStale: r.aMrStale, outOfSpec: r.aOutOfSpec,
-  }))
+  const fields = Object.entries(ALL_ATTEMPT_FIELDS) as [string, keyof R][]
+  return rows.map((r) => ({ ...r, ...Object.fromEntries(fields.map(([main, a]) => [main, r[a]])) }))
 }
 
 /** What a view's figures do not include yet, null when they include everything stored before the reader asked. */

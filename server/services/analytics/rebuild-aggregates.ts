@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import { ensureFoldLease, markFolded, takeFoldLease } from '../../database/repositories/fold-leases'
-import { rebuildParamRows } from '../../database/repositories/param-stats'
+import { forgetRebuildMark, rebuildMarksOfLot, rebuildParamRows } from '../../database/repositories/param-stats'
 import { recountStepStats } from '../../database/repositories/step-stats'
 import { rebuildLotBins } from '../ingest/fold-bins'
 import { rebuildUnitStandings } from '../../database/repositories/unit-standing'
@@ -12,9 +12,11 @@ import { rebuildTrendOfLot } from '../ingest/param-trend-fold'
  * once, afterwards.
  */
 export async function rebuildLotAggregatesIn(trx: Knex.Transaction, lotId: number): Promise<void> {
+  // the marks present now are what this rebuild answers; a write marking rows meanwhile keeps its mark for the fold
+  const marks = await rebuildMarksOfLot(trx, lotId, { forUpdate: true })
   await rebuildParamRows(trx, { lotId })
   await rebuildLotBins(trx, lotId)
-  await trx('lot_stats_rebuild').where({ lot_id: lotId }).del()
+  for (const m of marks) await forgetRebuildMark(trx, m)
   await rebuildTrendOfLot(trx, lotId)
   await recountStepStats(trx, lotId)
   await rebuildUnitStandings(trx, lotId)

@@ -60,10 +60,10 @@ export async function addValuesToBins(trx: Knex.Transaction, values: ValueOfRow[
 export async function rebuildMarkedBins(trx: Knex.Transaction, marks: RebuildMark[]): Promise<void> {
   const scopes = new Map<string, RebuildMark>()
   for (const m of marks) scopes.set(`${m.lotId}\u0000${m.step}\u0000${m.revisionId}`, m)
-  for (const m of scopes.values()) await rebuildBins(trx, { lotId: m.lotId, step: m.step, revisionId: m.revisionId }, binExponent)
+  for (const m of scopes.values()) await rebuildBins(trx, { lotId: m.lotId, step: m.step, revisionId: m.revisionId })
 }
 
 /** Every bin of a lot recounted from its rows (bulk loads, repair), leaving queued runs to the fold. */
 export async function rebuildLotBins(trx: Knex.Transaction, lotId: number): Promise<void> {
-  await rebuildBins(trx, { lotId }, binExponent)
+  await rebuildBins(trx, { lotId })
 }

@@ -40,7 +40,7 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, maxRepair
     const lease = await takeFoldLease(trx, lotId, waitSeconds)
     if (lease !== 'taken') return lease
     const runIds = await queuedRunsOfLot(trx, lotId, RUNS_PER_FOLD, upTo)
-    const marks = await rebuildMarksOfLot(trx, lotId)
+    const marks = await rebuildMarksOfLot(trx, lotId, { forUpdate: true })
     if (runIds.length) {
       const values = await valuesOfRuns(trx, runIds)
       const rows = new Map<string, ParamRow>()

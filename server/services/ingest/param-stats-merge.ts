@@ -17,6 +17,21 @@ export function emptyParamRow(key: ParamRowKey, first: StoredValue): ParamRow {
 
 const outOfSpec = (m: StoredValue) => (m.lsl != null && m.value < m.lsl) || (m.usl != null && m.value > m.usl)
 
+/** The fields of one population's sums; the first-attempt ones are the row's own, the all-attempt ones a-prefixed. */
+type SampleField = 'n' | 'shift' | 'sumD' | 'sumSqD' | 'min' | 'max' | 'mrSum' | 'mrN' | 'lastValue' | 'lastStartedAt' | 'mrStale' | 'outOfSpec'
+type SampleFields = Record<SampleField, keyof ParamRow>
+
+const FIRST_ATTEMPT_FIELDS = {
+  n: 'n', shift: 'shift', sumD: 'sumD', sumSqD: 'sumSqD', min: 'min', max: 'max', mrSum: 'mrSum', mrN: 'mrN',
+  lastValue: 'lastValue', lastStartedAt: 'lastStartedAt', mrStale: 'mrStale', outOfSpec: 'outOfSpec',
+} as const satisfies SampleFields
+
+/** Where the all-attempt population keeps each of the sums (readers swap them in to read that population). */
+export const ALL_ATTEMPT_FIELDS = {
+  n: 'aN', shift: 'aShift', sumD: 'aSumD', sumSqD: 'aSumSqD', min: 'aMin', max: 'aMax', mrSum: 'aMrSum', mrN: 'aMrN',
+  lastValue: 'aLastValue', lastStartedAt: 'aLastStartedAt', mrStale: 'aMrStale', outOfSpec: 'aOutOfSpec',
+} as const satisfies SampleFields
+
 /**
  * Adds one stored measurement to the row, in place. Plausible first attempts enter the first-attempt sample, every
  * plausible value the all-attempt one; every failure counts.
@@ -25,37 +40,27 @@ export function addValue(row: ParamRow, m: StoredValue): void {
   if (!Number.isFinite(m.value)) return
   if (m.failed) row.failAll++
   if (m.implausible) return
-  addToAllAttempts(row, m)
-  if (!m.firstAttempt) return
-  if (outOfSpec(m)) row.outOfSpec++
-  if (row.n === 0) { row.min = m.value; row.max = m.value } else { row.min = Math.min(row.min, m.value); row.max = Math.max(row.max, m.value) }
-  const d = m.value - row.shift
-  row.sumD += d
-  row.sumSqD += d * d
-  row.n++
-  if (row.lastStartedAt === null || m.startedAt >= row.lastStartedAt) {
-    if (row.lastStartedAt !== null && row.lastValue !== null) { row.mrSum += Math.abs(m.value - row.lastValue); row.mrN++ }
-    row.lastValue = m.value
-    row.lastStartedAt = m.startedAt
-  } else {
-    row.mrStale = true
-  }
+  // a value is never taken out of the all-attempt population, so only its moving range can go stale
+  addToSample(row, ALL_ATTEMPT_FIELDS, m)
+  if (m.firstAttempt) addToSample(row, FIRST_ATTEMPT_FIELDS, m)
 }
 
-/** The all-attempt half of addValue: a value is never taken out of this population, so only its moving range goes stale. */
-function addToAllAttempts(row: ParamRow, m: StoredValue): void {
-  if (outOfSpec(m)) row.aOutOfSpec++
-  if (row.aN === 0) { row.aMin = m.value; row.aMax = m.value } else { row.aMin = Math.min(row.aMin, m.value); row.aMax = Math.max(row.aMax, m.value) }
-  const d = m.value - row.aShift
-  row.aSumD += d
-  row.aSumSqD += d * d
-  row.aN++
-  if (row.aLastStartedAt === null || m.startedAt >= row.aLastStartedAt) {
-    if (row.aLastStartedAt !== null && row.aLastValue !== null) { row.aMrSum += Math.abs(m.value - row.aLastValue); row.aMrN++ }
-    row.aLastValue = m.value
-    row.aLastStartedAt = m.startedAt
+/** One population's sums, extremes, moving range and out-of-spec count take the value. */
+function addToSample(row: ParamRow, f: SampleFields, m: StoredValue): void {
+  // the two populations' fields have the same types, name for name
+  const r = row as unknown as Record<keyof ParamRow, any>
+  if (outOfSpec(m)) r[f.outOfSpec]++
+  if (r[f.n] === 0) { r[f.min] = m.value; r[f.max] = m.value } else { r[f.min] = Math.min(r[f.min], m.value); r[f.max] = Math.max(r[f.max], m.value) }
+  const d = m.value - r[f.shift]
+  r[f.sumD] += d
+  r[f.sumSqD] += d * d
+  r[f.n]++
+  if (r[f.lastStartedAt] === null || m.startedAt >= r[f.lastStartedAt]) {
+    if (r[f.lastStartedAt] !== null && r[f.lastValue] !== null) { r[f.mrSum] += Math.abs(m.value - r[f.lastValue]); r[f.mrN]++ }
+    r[f.lastValue] = m.value
+    r[f.lastStartedAt] = m.startedAt
   } else {
-    row.aMrStale = true
+    r[f.mrStale] = true
   }
 }
 

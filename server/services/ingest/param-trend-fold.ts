@@ -6,7 +6,7 @@ import { movingRangeSum } from '../../../shared/utils/capability'
 import type { ParamRow } from '../../../shared/types/param-stats'
 import type { ValueOfRow } from '../../database/repositories/param-stats'
 import {
-  forgetRepair, forgetTrendOfLot, groupsOfLot, groupValues, queuedRepairs, queueRepairs, trendRowsOfLot, writeStationRanges, writeTrendRows,
+  forgetRepair, forgetTrendOfGroup, forgetTrendOfLot, groupsOfLot, groupValues, queuedRepairs, queueRepairs, trendRowsOfLot, writeStationRanges, writeTrendRows,
   type GroupValue, type StationRanges,
 } from '../../database/repositories/param-trend'
 import { addTrendValue, emptyTrendRow, trendRowFromValues, type TrendGroup, type TrendRow } from './param-trend-merge'
@@ -57,13 +57,17 @@ function stationRanges(values: GroupValue[]): StationRanges[] {
   })
 }
 
+/** The group's drift rows of both populations from its values in test order (a population without values has none). */
+function trendRowsOfGroup(g: TrendGroup, values: GroupValue[]): TrendRow[] {
+  return [trendRowFromValues(g, true, values), trendRowFromValues(g, false, values.filter((v) => v.firstAttempt))].filter((r) => r.n > 0)
+}
+
 /** Takes one group's moving ranges (each station, both populations) and drift sums again from its stored values. */
-export async function repairGroup(trx: Knex.Transaction, g: TrendGroup): Promise<void> {
+async function repairGroup(trx: Knex.Transaction, g: TrendGroup): Promise<void> {
   const values = await groupValues(trx, g)
   await writeStationRanges(trx, g, stationRanges(values))
-  const rows = [trendRowFromValues(g, true, values), trendRowFromValues(g, false, values.filter((v) => v.firstAttempt))].filter((r) => r.n > 0)
-  await trx('lot_param_trend').where({ lot_id: g.lotId, step: g.step, name: g.name, qualifier: g.qualifier, revision_id: g.revisionId }).del()
-  await writeTrendRows(trx, rows)
+  await forgetTrendOfGroup(trx, g)
+  await writeTrendRows(trx, trendRowsOfGroup(g, values))
   await forgetRepair(trx, g)
 }
 
@@ -78,8 +82,11 @@ export async function repairQueuedGroups(trx: Knex.Transaction, lotId: number, m
   return repaired
 }
 
-/** Recomputes every drift sum of a lot from its stored values (the caller holds the lot's lease). */
+/**
+ * Recomputes every drift sum of a lot from its stored values (the caller holds the lot's lease, and has rebuilt the
+ * statistics rows, moving ranges included, so only the drift rows are written here) and clears its queued repairs.
+ */
 export async function rebuildTrendOfLot(trx: Knex.Transaction, lotId: number): Promise<void> {
   await forgetTrendOfLot(trx, lotId)
-  for (const g of await groupsOfLot(trx, lotId)) await repairGroup(trx, g)
+  for (const g of await groupsOfLot(trx, lotId)) await writeTrendRows(trx, trendRowsOfGroup(g, await groupValues(trx, g)))
 }

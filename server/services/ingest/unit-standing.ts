@@ -4,6 +4,7 @@
 // over the lot's units of `contribution` (the recount in repositories/unit-standing.ts does the same in SQL).
 import type { Counter, Standing } from '../../database/repositories/unit-standing'
 import type { RunRef } from '../../database/repositories/run-writes'
+import { overallVerdict } from '../shipments/unit-verdict'
 
 export type StandingStep = {
   step: string; attempts: number; firstVerdict: 'pass' | 'fail'; latestVerdict: 'pass' | 'fail'
@@ -32,7 +33,7 @@ export function standingOf(steps: Iterable<StandingStep>, productSteps: readonly
     runs: list.reduce((n, s) => n + s.attempts, 0),
     lastStep: latest?.step ?? null, lastStationId: latest?.stationId ?? null, lastTestedAt: latest?.finishedAt ?? null, latestRunId: latest?.latestRunId ?? null,
     ready: productSteps.every((p) => at.get(p)?.latestVerdict === 'pass' && !at.get(p)!.lapsed),
-    passedAll: !anyFail && productSteps.length > 0 && productSteps.every((p) => at.get(p)?.latestVerdict === 'pass'),
+    passedAll: overallVerdict(productSteps, list) === 'pass',
   }
 }
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import {
   displayUnitFor, formatCount, formatDefectPpm, formatFixed, formatIndex, formatIndexInterval, formatNumber, formatPercent,
-  formatBytes, formatFigure, formatLimits, formatWait, formatPValue, formatQuantity, formatRange, formatSigned, formatYield, fromInputUnit, inputUnitFor, parameterLabel, toInputUnit,
+  formatBytes, formatFigure, formatLimits, formatUpperBound, formatWait, formatPValue, formatQuantity, formatRange, formatSigned, formatYield, fromInputUnit, inputUnitFor, parameterLabel, toInputUnit,
 } from '../../../shared/utils/value-format'
 
 // Expected strings are written by hand. Digit grouping in threes on both sides of the decimal point, with a narrow
@@ -166,5 +166,15 @@ describe('formatBytes and formatWait: sizes and waits as people read them', () =
     expect(formatWait(90)).toBe('90 s')
     expect(formatWait(91)).toBe('2 minutes')
     expect(formatWait(897)).toBe('15 minutes')
+  })
+})
+
+describe('formatUpperBound: a stated bound rounded up, never down', () => {
+  it('keeps two significant digits in the display unit and rounds up', () => {
+    // 2^-7 dB = 0.0078125 dB; 1.41e-17 s = 0.0141 fs
+    expect(formatUpperBound(2 ** -7, displayUnitFor('dB'))).toBe('0.0079')
+    expect(formatUpperBound(1.41e-17, displayUnitFor('s'))).toBe('0.015')
+    expect(formatUpperBound(0.25, displayUnitFor('dB'))).toBe('0.25')
+    expect(formatUpperBound(null, displayUnitFor('dB'))).toBe('—')
   })
 })
