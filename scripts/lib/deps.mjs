@@ -22,7 +22,15 @@ function apt(args) {
 
 /** Installs a Debian package when the command it provides is missing. */
 export function ensureDebianPackage(command, pkg) {
-  if (hasCommand(command)) return
+  if (!hasCommand(command)) installDebianPackage(pkg)
+}
+
+/** Installs a Debian package when a file it provides (a library, say) is missing. */
+export function ensureDebianFile(path, pkg) {
+  if (!existsSync(path)) installDebianPackage(pkg)
+}
+
+function installDebianPackage(pkg) {
   log(`installing ${pkg} from Debian…`)
   if (!aptUpdated) { apt(['update', '-qq']); aptUpdated = true }
   apt(['install', '-y', '-qq', pkg])
