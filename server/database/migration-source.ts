@@ -30,6 +30,7 @@ import * as m030 from './migrations/20261202_030_session_version'
 import * as m031 from './migrations/20261202_031_unit_standing'
 import * as m032 from './migrations/20261202_032_param_populations'
 import * as m033 from './migrations/20261202_033_param_bins'
+import * as m034 from './migrations/20261203_034_cache_versions'
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> }
 
@@ -66,6 +67,7 @@ const migrations: Record<string, Migration> = {
   '20261202_031_unit_standing': m031,
   '20261202_032_param_populations': m032,
   '20261202_033_param_bins': m033,
+  '20261203_034_cache_versions': m034,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

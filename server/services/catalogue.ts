@@ -3,8 +3,9 @@ import { writeAudit } from '../database/repositories/audit'
 import { restandProductLots } from '../database/repositories/unit-standing'
 import { findProductByPartNumber, insertProduct, updateProduct, type ProductFields, type ProductRecord } from '../database/repositories/products'
 import { findSourceRevision, stepsInUse } from '../database/repositories/spec-revisions'
-import { invalidateSpecCache } from './ingest/caches'
+import { bumpCacheVersion } from '../database/repositories/cache-versions'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 export type NewProduct = Omit<ProductFields, 'jitterBandLoHz' | 'jitterBandHiHz'> & { jitterBandLoHz?: number; jitterBandHiHz?: number }
 export type ProductChange = Partial<Omit<ProductFields, 'partNumber'>>
@@ -23,16 +24,16 @@ function checkBand(lo: number, hi: number): void {
 export async function createProduct(db: Knex, actorId: number, input: NewProduct): Promise<ProductRecord> {
   const fields: ProductFields = { ...input, jitterBandLoHz: input.jitterBandLoHz ?? 1e3, jitterBandHiHz: input.jitterBandHiHz ?? 1e6 }
   checkBand(fields.jitterBandLoHz, fields.jitterBandHiHz)
-  const created = await db.transaction(async (trx) => {
+  const created = await writeTransaction(db, async (trx) => {
     if (await findProductByPartNumber(trx, fields.partNumber)) {
       throw new RuleError(409, `The part number ${fields.partNumber} already exists.`, [{ pointer: '/partNumber', message: 'already in use' }])
     }
     await insertProduct(trx, fields)
+    await bumpCacheVersion(trx, 'catalogue')
     const product = (await findProductByPartNumber(trx, fields.partNumber))!
     await writeAudit(trx, { userId: actorId, action: 'create', entity: 'product', entityId: product.partNumber, after: auditView(product) })
     return product
   })
-  invalidateSpecCache(created.id)
   return created
 }
 
@@ -41,7 +42,7 @@ export async function createProduct(db: Knex, actorId: number, input: NewProduct
  * the transaction takes the audit row back with it.
  */
 export async function changeProduct(db: Knex, actorId: number, partNumber: string, change: ProductChange, now = new Date()): Promise<ProductRecord | undefined> {
-  const changed = await db.transaction(async (trx) => {
+  const changed = await writeTransaction(db, async (trx) => {
     const before = await findProductByPartNumber(trx, partNumber, { forUpdate: true })
     if (!before) return undefined
     const next = {
@@ -65,10 +66,10 @@ export async function changeProduct(db: Knex, actorId: number, partNumber: strin
       before: auditView(before), after: auditView({ ...next, partNumber, outputHz: next.multiplier * next.inputHz }),
     })
     await updateProduct(trx, before.id, next)
+    await bumpCacheVersion(trx, 'catalogue')
     // the units' standings read the product's steps (writes wait on the product row we hold)
     if (JSON.stringify(next.steps) !== JSON.stringify(before.steps)) await restandProductLots(trx, before.id)
     return findProductByPartNumber(trx, partNumber)
   })
-  if (changed) invalidateSpecCache(changed.id)
   return changed
 }

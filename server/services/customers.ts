@@ -5,6 +5,7 @@ import {
   contactsOf, deleteContact, findContact, findCustomer, insertContact, insertCustomer, updateContact, updateCustomer, type ContactFields,
 } from '../database/repositories/customers'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 export type CustomerFields = { code: string; name: string }
 export type CustomerChange = Partial<CustomerFields & { active: boolean }>
@@ -21,7 +22,7 @@ export async function customerDetail(db: Knex, id: number): Promise<CustomerDeta
 export async function createCustomer(db: Knex, actorId: number, input: CustomerFields): Promise<CustomerDetail> {
   const fields = { code: input.code.trim().toUpperCase(), name: input.name.trim() }
   try {
-    return await db.transaction(async (trx) => {
+    return await writeTransaction(db, async (trx) => {
       const id = await insertCustomer(trx, fields)
       await writeAudit(trx, { userId: actorId, action: 'create', entity: 'customer', entityId: id, after: { ...fields, active: true } })
       return (await customerDetail(trx, id))!
@@ -39,7 +40,7 @@ export async function changeCustomer(db: Knex, actorId: number, id: number, chan
   if (change.name !== undefined) fields.name = change.name.trim()
   if (change.active !== undefined) fields.active = change.active
   try {
-    return await db.transaction(async (trx) => {
+    return await writeTransaction(db, async (trx) => {
       const before = await findCustomer(trx, id, { forUpdate: true })
       if (!before) throw new RuleError(404, 'No such customer.')
       const action = fields.active === false && before.active ? 'deactivate' : fields.active === true && !before.active ? 'activate' : 'update'
@@ -58,7 +59,7 @@ function contactFields(c: ContactInput): ContactFields {
 }
 
 export async function addContact(db: Knex, actorId: number, customerId: number, input: ContactInput): Promise<CustomerContact> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     if (!await findCustomer(trx, customerId, { forUpdate: true })) throw new RuleError(404, 'No such customer.')
     const fields = contactFields(input)
     const id = await insertContact(trx, customerId, fields)
@@ -68,7 +69,7 @@ export async function addContact(db: Knex, actorId: number, customerId: number, 
 }
 
 export async function changeContact(db: Knex, actorId: number, customerId: number, contactId: number, input: Partial<ContactInput>): Promise<CustomerContact> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const before = await findContact(trx, customerId, contactId)
     if (!before) throw new RuleError(404, 'No such contact.')
     const fields: Partial<ContactFields> = {}
@@ -84,7 +85,7 @@ export async function changeContact(db: Knex, actorId: number, customerId: numbe
 }
 
 export async function removeContact(db: Knex, actorId: number, customerId: number, contactId: number): Promise<void> {
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const before = await findContact(trx, customerId, contactId)
     if (!before) throw new RuleError(404, 'No such contact.')
     await writeAudit(trx, { userId: actorId, action: 'remove_contact', entity: 'customer', entityId: customerId, before })

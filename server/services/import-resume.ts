@@ -10,6 +10,7 @@ import { dropLease, takeLease } from '../database/repositories/job-leases'
 import { IMPORT_WORKER_ID, importLeaseMs } from './import-lease'
 import { activeImports, discardUnreceivedUpload, importJobView, runImport } from './imports'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 /** At most this many imports run in one process at once; the others wait for a free worker anywhere. */
 const MAX_ACTIVE = 2
@@ -30,7 +31,7 @@ async function takeOver(db: Knex, id: string, actorId: number | null, now: Date)
 
 async function claim(db: Knex, id: string, actorId: number | null, now: Date): Promise<boolean> {
   const lease = importLeaseName(id)
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     if (!(await takeLease(trx, lease, IMPORT_WORKER_ID, importLeaseMs(), now))) return false
     const job = await findImportJob(trx, id)
     if (!job || job.status !== 'running') {

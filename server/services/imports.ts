@@ -27,6 +27,7 @@ import { IMPORT_WORKER_ID, ImportLeaseLost, importLeaseMs, keepLease } from './i
 import { MAX_LINE_BYTES, receiveUpload } from './import-upload'
 import { RuleError } from './rule-error'
 import { isDatabaseUnavailable } from '../utils/database-unavailable'
+import { writeTransaction } from '../database/write-retries'
 
 const FLUSH_EVERY_RUNS = 200
 // runs are written in slices of the file (at most 100 runs or 256 KiB of lines): attempts follow test time, so slices
@@ -105,7 +106,7 @@ async function processImport(db: Knex, job: ImportJobRow, upload: StoredUpload):
   // rejections and the counters that include them move together; each progress write also looks for a cancel
   const flush = async (): Promise<boolean> => {
     const batch = pending
-    const cancel = await db.transaction(async (trx) => {
+    const cancel = await writeTransaction(db, async (trx) => {
       await fence(trx)
       await insertRejections(trx, ctx.jobId, batch)
       await updateImportProgress(trx, ctx.jobId, counts)
@@ -122,7 +123,7 @@ async function processImport(db: Knex, job: ImportJobRow, upload: StoredUpload):
   }
 
   const finish = async (status: 'done' | 'failed' | 'cancelled', error: string | null) => {
-    await db.transaction(async (trx) => {
+    await writeTransaction(db, async (trx) => {
       await fence(trx)
       await insertRejections(trx, ctx.jobId, pending)
       await finishImportJob(trx, ctx.jobId, status, counts, error)
@@ -226,7 +227,7 @@ export async function runImport(db: Knex, jobId: string): Promise<void> {
 
 /** Removes an upload that never arrived whole, with its stored slices and its lease, in one transaction. */
 export async function discardUnreceivedUpload(db: Knex, jobId: string): Promise<void> {
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     await deleteUnreceivedImport(trx, jobId)
     await dropLease(trx, importLeaseName(jobId))
   })
@@ -241,7 +242,7 @@ export type ImportRequest = { userId: number; station: StationRef; fileName: str
 export async function startImport(db: Knex, req: ImportRequest, source: Readable): Promise<ImportJobRow> {
   const jobId = randomUUID()
   const lease = importLeaseName(jobId)
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     await insertImportJob(trx, { id: jobId, createdBy: req.userId, stationId: req.station.id, fileName: req.fileName, format: req.format })
     await takeLease(trx, lease, IMPORT_WORKER_ID, importLeaseMs())
   })
@@ -267,7 +268,7 @@ const STALLED_MS = 2 * 60_000
  * the same transaction (a worker that took it on meanwhile then loses its lease and stops). Runs stored stay.
  */
 export async function cancelImport(db: Knex, actorId: number, id: string, now = new Date()): Promise<ImportJob> {
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const job = (await lockImportJob(trx, id)) ? await findImportJob(trx, id) : undefined
     if (!job) throw new RuleError(404, 'No such import.')
     if (job.status !== 'running') throw new RuleError(409, `The import has already ${job.status === 'done' ? 'finished' : job.status === 'failed' ? 'stopped' : 'been cancelled'}.`, [], { importStatus: job.status })

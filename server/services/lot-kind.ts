@@ -7,6 +7,7 @@ import { engineeringPatternOf, findProductByPartNumber, updateEngineeringPattern
 import { normaliseLotPatterns, parseLotPatterns } from '../../shared/utils/lot-kind'
 import type { EngineeringPatternView, LotKindView } from '../../shared/types/lot-kind'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 export async function engineeringPattern(db: Knex, partNumber: string): Promise<EngineeringPatternView> {
   const p = await findProductByPartNumber(db, partNumber)
@@ -19,7 +20,7 @@ export async function engineeringPattern(db: Knex, partNumber: string): Promise<
 export async function setEngineeringPattern(db: Knex, actorId: number, partNumber: string, input: { pattern: string | null }): Promise<EngineeringPatternView> {
   const { patterns, problems } = parseLotPatterns(input.pattern)
   if (problems.length) throw new RuleError(422, 'The lot patterns are not valid.', problems.map((message) => ({ pointer: '/pattern', message })))
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const p = await findProductByPartNumber(trx, partNumber, { forUpdate: true })
     if (!p) throw new RuleError(404, `No part ${partNumber}.`)
     const before = (await engineeringPatternOf(trx, p.id)).pattern
@@ -34,7 +35,7 @@ export async function setEngineeringPattern(db: Knex, actorId: number, partNumbe
 /** Marks a lot engineering (or production again) by hand, with the reason in the audit row; the same state again changes nothing. */
 export async function setLotKind(db: Knex, actorId: number, code: string, input: { engineering: boolean; reason: string }): Promise<LotKindView> {
   if (input.reason.trim().length < 3) throw new RuleError(422, 'Give a reason for the change.', [{ pointer: '/reason', message: 'at least 3 characters besides spaces' }])
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const lot = await lockLotByCode(trx, code)
     if (!lot) throw new RuleError(404, `No lot ${code}.`)
     if (lot.engineering === input.engineering) return { code, engineering: lot.engineering, engineeringSource: lot.engineeringSource, changed: false }

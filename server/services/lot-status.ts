@@ -2,11 +2,11 @@ import type { Knex } from 'knex'
 import { writeAudit } from '../database/repositories/audit'
 import { lockLotByCode, unitStepsOfLot, updateLotStatus, type LotRow, type LotStatus } from '../database/repositories/lot-detail'
 import { findProductById } from '../database/repositories/products'
-import { invalidateLotCache } from './ingest/caches'
 import { lotReadiness } from './lot-readiness'
 import { lotUnitCounts } from '../database/repositories/unit-standing'
 import { RuleError } from './rule-error'
 import type { Signature } from '../utils/signature'
+import { writeTransaction } from '../database/write-retries'
 
 export type LotAction = 'hold' | 'resume' | 'release'
 
@@ -58,7 +58,7 @@ async function releaseDeviation(trx: Knex.Transaction, lot: LotRow, deviation: s
  * release the deviation it is made under.
  */
 export async function changeLotStatus(db: Knex, actorId: number, code: string, action: LotAction, reason?: string, now = new Date(), signed?: Signature): Promise<LotStatus> {
-  const status = await db.transaction(async (trx) => {
+  const status = await writeTransaction(db, async (trx) => {
     const lot = await lockLotByCode(trx, code)
     if (!lot) throw new RuleError(404, `No lot ${code}.`)
     if (!FROM[action].includes(lot.status)) throw new RuleError(409, REFUSAL[action][lot.status] ?? `A lot that is ${lot.status} cannot ${action}.`, [], { lotStatus: lot.status })
@@ -75,6 +75,5 @@ export async function changeLotStatus(db: Knex, actorId: number, code: string, a
     await updateLotStatus(trx, lot.id, change)
     return change.status
   })
-  invalidateLotCache()
   return status
 }

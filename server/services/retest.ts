@@ -4,6 +4,7 @@ import { findProductByPartNumber } from '../database/repositories/products'
 import { insertDisposition, policiesOf, replacePolicies } from '../database/repositories/retest'
 import { RuleError } from './rule-error'
 import type { RetestPolicy } from '../../shared/types/spec'
+import { writeTransaction } from '../database/write-retries'
 
 export type PolicyInput = { policies: { step: string; maxAttempts: number | null }[] }
 export type DispositionInput = { step: string; kind: 'scrap' | 'rework' | 'deviation'; reason: string }
@@ -17,7 +18,7 @@ export async function retestPolicy(db: Knex, partNumber: string): Promise<Retest
 
 /** Sets the attempts allowed at each step (null: no limit), replacing the product's whole policy. */
 export async function setRetestPolicy(db: Knex, actorId: number, partNumber: string, input: PolicyInput): Promise<RetestPolicy> {
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const p = await findProductByPartNumber(trx, partNumber, { forUpdate: true })
     if (!p) throw new RuleError(404, `No part ${partNumber}.`)
     const errors = input.policies.flatMap((x, i) => (p.steps.includes(x.step) ? [] : [{ pointer: `/policies/${i}/step`, message: `not a step of ${partNumber} (${p.steps.join(', ')})` }]))
@@ -34,7 +35,7 @@ export async function setRetestPolicy(db: Knex, actorId: number, partNumber: str
 
 /** Quality's decision about a unit at one step, made at its current number of attempts there. */
 export async function addDisposition(db: Knex, actorId: number, partNumber: string, serial: string, input: DispositionInput, now = new Date()) {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const p = await findProductByPartNumber(trx, partNumber)
     if (!p) throw new RuleError(404, `No part ${partNumber}.`)
     const unit = await trx('units').where({ product_id: p.id, serial }).forUpdate().first('id')

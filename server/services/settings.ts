@@ -7,6 +7,7 @@ import { canonicalTimeZone, DEFAULT_PLANT_TIME_ZONE } from '../../shared/utils/p
 import { writeAudit } from '../database/repositories/audit'
 import { lockSetting, readSettings, writeSetting, type SettingRow } from '../database/repositories/app-settings'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 const DUE_SOON = 'calibration_due_soon_days'
 const PLANT_ZONE = 'plant_time_zone'
@@ -46,7 +47,7 @@ export async function appSettings(db: Knex): Promise<AppSettingsDto> {
 }
 
 export async function setCalibrationDueSoonDays(db: Knex, actorId: number, days: number, now = new Date()): Promise<AppSettingsDto> {
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const before = await lockSetting(trx, DUE_SOON)
     await writeSetting(trx, DUE_SOON, String(days), actorId, now)
     await writeAudit(trx, { userId: actorId, action: 'update', entity: 'app_setting', entityId: DUE_SOON, before: before ? { days: asDays(before.value) } : null, after: { days } })
@@ -60,7 +61,7 @@ export async function setPlantTimeZone(db: Knex, actorId: number, zone: string, 
   if (!name) {
     throw new RuleError(422, `"${zone}" is not a time zone name this server knows (use an IANA name such as Europe/Berlin or UTC).`, [{ pointer: '/zone', message: 'is not a known IANA time zone name' }])
   }
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const before = await lockSetting(trx, PLANT_ZONE)
     await writeSetting(trx, PLANT_ZONE, name, actorId, now)
     await writeAudit(trx, { userId: actorId, action: 'update', entity: 'app_setting', entityId: PLANT_ZONE, before: before ? { zone: before.value } : null, after: { zone: name } })

@@ -9,8 +9,9 @@ import {
 } from '../database/repositories/spec-revisions'
 import { normalizeSpecLimit, specLimitsFromCsv, validateSpecLimits, type SpecLimitRow } from '../../shared/utils/spec-limits'
 import type { LimitsImportApplied, LimitsImportPreview } from '../../shared/types/spec'
-import { invalidateSpecCache } from './ingest/caches'
+import { bumpCacheVersion } from '../database/repositories/cache-versions'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 // Clock skew allowed between a browser's "now" and the server's when an approval names its effective time.
 const PAST_TOLERANCE_MS = 60_000
@@ -19,7 +20,7 @@ export type LimitInput = Partial<SpecLimitRow> & Pick<SpecLimitRow, 'step' | 'na
 
 /** A new draft holding a copy of the limits in force (or of the next revision to take effect, or none). */
 export async function createDraftRevision(db: Knex, actorId: number, partNumber: string, now = new Date()): Promise<{ id: number; revision: number }> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     // the product row lock serialises two engineers opening a draft at the same moment
     const product = await findProductByPartNumber(trx, partNumber, { forUpdate: true })
     if (!product) throw new RuleError(404, `No product ${partNumber}.`)
@@ -51,7 +52,7 @@ async function lockDraft(trx: Knex, revisionId: number) {
  * A submitted draft goes back to a plain draft: what the reviewer was asked to approve no longer exists.
  */
 export async function replaceDraftLimits(db: Knex, actorId: number, revisionId: number, input: LimitInput[], action = 'limits_replace'): Promise<SpecLimitRow[]> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const { rev, product } = await lockDraft(trx, revisionId)
     const errors = validateSpecLimits(input, product.steps)
     if (errors.length) throw new RuleError(422, 'Some limits are not valid.', errors)
@@ -70,7 +71,7 @@ export async function replaceDraftLimits(db: Knex, actorId: number, revisionId: 
 
 /** Read-only check that a draft could take these limits, for a preview. */
 export async function checkDraftAccepts(db: Knex, revisionId: number): Promise<{ steps: string[] }> {
-  return db.transaction(async (trx) => ({ steps: (await lockDraft(trx, revisionId)).product.steps }))
+  return writeTransaction(db, async (trx) => ({ steps: (await lockDraft(trx, revisionId)).product.steps }))
 }
 
 /**
@@ -97,7 +98,7 @@ export async function importDraftLimits(db: Knex, actorId: number, revisionId: n
  */
 export async function approveRevision(db: Knex, actor: UserRecord, revisionId: number, opts: { effectiveAt?: Date; note?: string; signed?: Signature } = {}, now = new Date()) {
   if (actor.role !== 'quality') throw new RuleError(403, 'Only a quality engineer can approve a specification revision.')
-  const result = await db.transaction(async (trx) => {
+  const result = await writeTransaction(db, async (trx) => {
     const rev = await lockRevision(trx, revisionId)
     if (!rev) throw new RuleError(404, 'No such revision.')
     if (rev.status !== 'draft') throw new RuleError(409, `Revision ${rev.revision} is already ${rev.status}.`)
@@ -118,6 +119,8 @@ export async function approveRevision(db: Knex, actor: UserRecord, revisionId: n
     }
     await markApproved(trx, revisionId, { approvedBy: actor.id, approvedAt: now, effectiveAt, note: opts.note })
     const superseded = await supersedeApproved(trx, product.id, revisionId)
+    // every instance's cached limits of the catalogue are dropped once this commits
+    await bumpCacheVersion(trx, 'catalogue')
     await writeAudit(trx, {
       userId: actor.id, action: 'approve', entity: 'spec_revision', entityId: revisionId,
       before: { status: 'draft', partNumber: product.partNumber, revision: rev.revision, effectiveAt: null, supersedes: [], submittedAt: rev.submittedAt },
@@ -131,6 +134,5 @@ export async function approveRevision(db: Knex, actor: UserRecord, revisionId: n
     }
     return { productId: product.id, revision: rev.revision, effectiveAt, superseded: superseded.map((s) => s.id) }
   })
-  invalidateSpecCache(result.productId)
   return result
 }

@@ -7,6 +7,7 @@ import { listAwaitingApproval, listLimitsOf, lockRevision, markDiscarded, markSu
 import { validateSpecLimits } from '../../shared/utils/spec-limits'
 import type { AwaitingApproval, RevisionStep } from '../../shared/types/spec-workflow'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 const WRITERS = ['admin', 'engineer']
 
@@ -23,7 +24,7 @@ async function lockOpenDraft(trx: Knex, revisionId: number) {
  */
 export async function submitRevision(db: Knex, actor: UserRecord, revisionId: number, opts: { note?: string; reviewerId?: number }, now = new Date()): Promise<RevisionStep> {
   if (!WRITERS.includes(actor.role)) throw new RuleError(403, 'Only an engineer or an administrator submits a draft.')
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const rev = await lockOpenDraft(trx, revisionId)
     if (rev.submittedAt) throw new RuleError(409, `Revision ${rev.revision} was already submitted ${rev.submittedAt.toISOString()}.`)
     const product = (await findProductById(trx, rev.productId))!
@@ -54,7 +55,7 @@ export async function submitRevision(db: Knex, actor: UserRecord, revisionId: nu
 
 /** Gives up a draft: kept, read-only, listed apart. Its author, an administrator or a quality user may. */
 export async function discardRevision(db: Knex, actor: UserRecord, revisionId: number, opts: { note?: string }, now = new Date()): Promise<RevisionStep> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const rev = await lockOpenDraft(trx, revisionId)
     if (actor.role === 'engineer' && rev.authorId !== actor.id) {
       throw new RuleError(403, 'Only the author of a draft, an administrator or a quality user can discard it.')

@@ -2,10 +2,11 @@ import type { Knex } from 'knex'
 import { writeAudit } from '../database/repositories/audit'
 import { findStation, stationOwnerCandidates, updateStationOwner } from '../database/repositories/stations'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 /** Sets (or clears, with null) the person responsible for a station: an active staff user. */
 export async function setStationOwner(db: Knex, actorId: number, stationId: number, ownerUserId: number | null, now = new Date()) {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const station = await findStation(trx, stationId, now)
     if (!station) throw new RuleError(404, 'No such station.')
     if (ownerUserId !== null && !(await stationOwnerCandidates(trx)).some((u) => u.id === ownerUserId)) {

@@ -5,6 +5,7 @@ import { writeAudit } from '../database/repositories/audit'
 import { recentStationRuns, stationExists } from '../database/repositories/station-runs'
 import type { StationRecentRun } from '../../shared/types/station-runs'
 import { insertToken, revokeTokens } from '../database/repositories/station-tokens'
+import { bumpCacheVersion } from '../database/repositories/cache-versions'
 import {
   activeTokenHints, findStation, insertStation, listStations, listTokens, lockStation, type StationRow, type TokenRow,
 } from '../database/repositories/stations'
@@ -12,6 +13,7 @@ import { generateStationToken } from '../utils/station-token'
 import { plantToday } from './plant-day'
 import { currentInstrumentsOfStations, type CurrentInstrument } from './calibration/views'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 export type NewStation = { name: string; location?: string | null; description?: string | null }
 
@@ -60,9 +62,10 @@ export async function createStation(db: Knex, actorId: number | null, input: New
   if (!name) throw refused(400, 'The station name must not be blank.', '/name')
   const t = generateStationToken()
   try {
-    return await db.transaction(async (trx) => {
+    return await writeTransaction(db, async (trx) => {
       const id = await insertStation(trx, { name, location: blankToNull(input.location), description: blankToNull(input.description) })
       await insertToken(trx, { stationId: id, tokenHash: t.hash, hint: t.hint, createdBy: actorId })
+      await bumpCacheVersion(trx, 'tokens')
       const created = (await stationView(trx, id))!
       await writeAudit(trx, {
         userId: actorId, action: 'create', entity: 'station', entityId: id,
@@ -79,11 +82,13 @@ export async function createStation(db: Knex, actorId: number | null, input: New
 /** Revokes every active token and issues a new one; undefined for an unknown station. */
 export async function rotateStationToken(db: Knex, actorId: number | null, stationId: number): Promise<{ token: string; hint: string } | undefined> {
   const t = generateStationToken()
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     if (!(await lockStation(trx, stationId))) return undefined
     const revoked = await activeTokenHints(trx, stationId)
     await revokeTokens(trx, stationId)
     await insertToken(trx, { stationId, tokenHash: t.hash, hint: t.hint, createdBy: actorId })
+    // every instance's verified tokens are dropped once this commits
+    await bumpCacheVersion(trx, 'tokens')
     await writeAudit(trx, { userId: actorId, action: 'token_rotate', entity: 'station', entityId: stationId, before: { activeTokenHints: revoked }, after: { activeTokenHints: [t.hint] } })
     return { token: t.token, hint: t.hint }
   })
@@ -91,10 +96,11 @@ export async function rotateStationToken(db: Knex, actorId: number | null, stati
 
 /** Revokes every active token: the station can no longer post until a new token is issued. */
 export async function revokeStationTokens(db: Knex, actorId: number | null, stationId: number): Promise<{ revoked: number } | undefined> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     if (!(await lockStation(trx, stationId))) return undefined
     const hints = await activeTokenHints(trx, stationId)
     const revoked = await revokeTokens(trx, stationId)
+    await bumpCacheVersion(trx, 'tokens')
     await writeAudit(trx, { userId: actorId, action: 'token_revoke', entity: 'station', entityId: stationId, before: { activeTokenHints: hints }, after: { activeTokenHints: [] } })
     return { revoked }
   })

@@ -6,6 +6,7 @@ import { writeAudit } from '../database/repositories/audit'
 import { findCustomer } from '../database/repositories/customers'
 import { passwordProblem } from '../../shared/utils/password-rule'
 import { RuleError } from './rule-error'
+import { writeTransaction } from '../database/write-retries'
 
 export type NewUser = { email: string; name: string; role: Role; customerId?: number | null; password: string }
 export type UserChange = Partial<{ name: string; role: Role; customerId: number | null; disabled: boolean; password: string }>
@@ -49,7 +50,7 @@ export async function createUser(db: Knex, actorId: number, input: NewUser, hash
   checkCustomerLink(input.role, input.customerId)
   checkPasswordRule(input.password, input)
   const passwordHash = await hash(input.password)
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     await checkCustomerExists(trx, input.customerId)
     const id = await insertUser(trx, { email: input.email, name: input.name, role: input.role, customerId: input.customerId ?? null, passwordHash }).catch((e) => {
       if (e?.code === 'ER_DUP_ENTRY') throw new RuleError(409, 'A user with this e-mail address already exists.', [{ pointer: '/email', message: 'already in use' }])
@@ -67,7 +68,7 @@ export async function changeUser(db: Knex, actorId: number, id: number, change: 
     if (current) checkPasswordRule(change.password, { email: current.email, name: change.name ?? current.name })
   }
   const passwordHash = change.password ? await hash(change.password) : undefined
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const before = await findUserById(trx, id)
     if (!before) return undefined
     const role = change.role ?? before.role

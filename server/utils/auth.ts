@@ -1,11 +1,13 @@
 import type { H3Event } from 'h3'
 import type { Role } from '../../shared/utils/roles'
 import { findActiveTokensByHint } from '../database/repositories/station-tokens'
+import { cacheVersions, VersionedCache } from '../services/cache-versions'
 import type { UserRecord } from '../database/repositories/users'
 import { hashToken, hashesEqual, tokenHint, tokenLooksValid } from './station-token'
 import { problem } from './problem'
 
-export type StationPrincipal = { id: number; name: string; tokenId: number }
+/** `seenAt`: when the request was checked (performance.now()); later cache checks of the request may share its counter read. */
+export type StationPrincipal = { id: number; name: string; tokenId: number; seenAt?: number }
 
 declare module 'h3' {
   interface H3EventContext {
@@ -44,25 +46,24 @@ export async function authenticateStation(event: H3Event): Promise<StationPrinci
   if (!m || !tokenLooksValid(m[1]!)) throw problem(401, 'The Authorization header must be "Bearer <station token>".')
   const token = m[1]!
   const hash = hashToken(token)
-  const cached = tokenCache.get(hash)
-  if (cached && Date.now() - cached.at < TOKEN_CACHE_MS) return cached.principal
-  const candidates = await findActiveTokensByHint(useDb(), tokenHint(token))
-  const hit = candidates.find((c) => hashesEqual(c.tokenHash, hash))
-  if (!hit) throw problem(401, 'The station token is unknown or has been revoked.')
-  noteTokenUse(hit.tokenId)
-  const principal = { id: hit.stationId, name: hit.stationName, tokenId: hit.tokenId }
-  tokenCache.set(hash, { at: Date.now(), principal })
-  return principal
+  const seenAt = performance.now()
+  const db = useDb()
+  const { tokens } = await cacheVersions(db, seenAt)
+  const principal = await tokenCache.get(hash, tokens, async () => {
+    const candidates = await findActiveTokensByHint(db, tokenHint(token))
+    const hit = candidates.find((c) => hashesEqual(c.tokenHash, hash))
+    return hit ? { id: hit.stationId, name: hit.stationName, tokenId: hit.tokenId } : undefined
+  })
+  if (!principal) throw problem(401, 'The station token is unknown or has been revoked.')
+  noteTokenUse(principal.tokenId)
+  return { ...principal, seenAt }
 }
 
-// Stations post several runs a second; a verified token is trusted for a few seconds.
-// Rotation and revocation in this process clear it at once.
-const TOKEN_CACHE_MS = 5000
-const tokenCache = new Map<string, { at: number; principal: StationPrincipal }>()
-
-export function forgetStationTokens(): void {
-  tokenCache.clear()
-}
+// Stations post several runs a second: a verified token is trusted until the `tokens` counter moves, which every
+// rotation and revocation does in its own transaction, so a revoked token is refused on every instance at its next
+// request (services/cache-versions.ts). Unknown tokens are cached too (as undefined), so guessing costs no lookups;
+// their number is capped like every such cache.
+const tokenCache = new VersionedCache<string, Omit<StationPrincipal, 'seenAt'> | undefined>()
 
 const tokenTouched = new Map<number, number>()
 /** last_used_at moves at most once a minute per token, off the request's path. */

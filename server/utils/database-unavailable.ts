@@ -12,10 +12,12 @@ const UNAVAILABLE_CODES = new Set([
   'ER_SERVER_SHUTDOWN', 'ER_NORMAL_SHUTDOWN', 'ER_SHUTDOWN_COMPLETE', 'ER_CONNECTION_KILLED', 'ER_QUERY_INTERRUPTED',
   'ER_CON_COUNT_ERROR', 'ER_TOO_MANY_USER_CONNECTIONS', 'ER_LOCK_WAIT_TIMEOUT', 'ER_LOCK_DEADLOCK',
   'CR_SERVER_GONE_ERROR', 'CR_SERVER_LOST', 'CR_CONNECTION_ERROR', 'CR_CONN_HOST_ERROR',
+  // a Galera node not (or no longer) part of the primary component: "WSREP has not yet prepared node for application use"
+  'ER_UNKNOWN_COM_ERROR',
 ])
 
 /** The same by server error number, for errors that carry only `errno` (MariaDB 1927 is "connection killed"). */
-const UNAVAILABLE_ERRNOS = new Set([1040, 1053, 1077, 1079, 1080, 1203, 1205, 1213, 1317, 1927, 2002, 2003, 2006, 2013, 2055])
+const UNAVAILABLE_ERRNOS = new Set([1040, 1047, 1053, 1077, 1079, 1080, 1203, 1205, 1213, 1317, 1927, 2002, 2003, 2006, 2013, 2055])
 
 /** Messages of the driver and the pool that come without a code. */
 const UNAVAILABLE_MESSAGES = [
@@ -26,6 +28,7 @@ const UNAVAILABLE_MESSAGES = [
   /This socket has been ended by the other party/i,
   /Pool is closed/i,
   /read ECONNRESET|write EPIPE|connect ECONNREFUSED/i,
+  /WSREP has not yet prepared node for application use/i,
 ]
 
 type ErrorLike = { code?: unknown; errno?: unknown; message?: unknown; name?: unknown; fatal?: unknown; cause?: unknown; errors?: unknown; originalError?: unknown; sqlMessage?: unknown }

@@ -1,6 +1,6 @@
 import type { H3Event } from 'h3'
 import type { TLSSocket } from 'node:tls'
-import { findUserById, readSessionVersion, type UserRecord } from '../database/repositories/users'
+import { findSessionUser, readSessionVersion, type UserRecord } from '../database/repositories/users'
 
 /** The session cookie's name (nuxt-auth-utils' default, kept so the module's own readers find it). */
 export const SESSION_COOKIE = 'nuxt-session'
@@ -58,7 +58,7 @@ export async function checkSession(event: H3Event): Promise<SessionCheck> {
   if (!hasSessionCookie(event)) return { user: undefined, reason: 'none' }
   const session = await getUserSession(event)
   if (!session.user) return { user: undefined, reason: 'none' }
-  const user = await findUserById(useDb(), session.user.id)
+  const user = await findSessionUser(useDb(), session.user.id)
   return sessionAlive(user, session.version) ? { user } : { user: undefined, reason: 'ended' }
 }
 
@@ -69,7 +69,7 @@ function sessionAlive(user: UserRecord | undefined, version: unknown): user is U
 
 /** Whether a session checked earlier with this version is still alive (for long-lived answers such as streams). */
 export async function sessionStillValid(userId: number, version: number): Promise<boolean> {
-  return sessionAlive(await findUserById(useDb(), userId), version)
+  return sessionAlive(await findSessionUser(useDb(), userId), version)
 }
 
 export async function currentSessionVersion(userId: number): Promise<number> {

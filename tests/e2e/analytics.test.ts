@@ -323,7 +323,10 @@ describe('floor', () => {
       expect(gotRun).toBe(true)
       const run = state.events.find((e) => e.event === 'run' && e.data.serial === fresh.serial)!
       expect(run.data).toMatchObject({ serial: fresh.serial, part: 'VFW-T3-375', lot: LOT, station: STATION_A, step: 'final', attempt: 1, verdict: fresh.verdict })
-      expect(Number(run.id)).toBeGreaterThan(snapshot.lastRunId)
+      // the event id is the feed's position (received at, then id): here the run's own, past the snapshot's
+      expect(run.id).toBe(`${Date.parse(run.data.receivedAt)}.${run.data.id}`)
+      const [snapAt, snapId] = state.events.find((e) => e.event === 'snapshot')!.id!.split('.').map(Number)
+      expect(Date.parse(run.data.receivedAt) > snapAt! || (Date.parse(run.data.receivedAt) === snapAt && run.data.id > snapId!)).toBe(true)
 
       const gotLots = await readEvents(reader, state, () => state.events.some((e) => e.event === 'lots' && e.data.lots.some((l: any) => l.code === LOT && l.steps.find((s: any) => s.step === 'final')?.units === ALL_POWER.length + 1)), 10_000)
       expect(gotLots).toBe(true)

@@ -42,17 +42,20 @@ export async function useFloorStream() {
   }
 
   let source: EventSource | null = null
+  // the feed's position (the last event id): a new stream started after the old one was refused goes on from it
+  let after = ''
   let retry: ReturnType<typeof setTimeout> | undefined
   let clock: ReturnType<typeof setInterval> | undefined
   const read = <T>(e: Event) => JSON.parse((e as MessageEvent).data) as T
 
   function connect() {
     source?.close()
-    const es = new EventSource('/api/floor/stream')
+    const es = new EventSource(after ? `/api/floor/stream?after=${encodeURIComponent(after)}` : '/api/floor/stream')
     source = es
     es.onopen = () => { link.value = 'live' }
-    es.addEventListener('snapshot', (e) => { applySnapshot(read<FloorSnapshot>(e)); link.value = 'live' })
-    es.addEventListener('run', (e) => addRun(read<FloorRunEvent>(e)))
+    const keep = (e: Event) => { const id = (e as MessageEvent).lastEventId; if (id) after = id }
+    es.addEventListener('snapshot', (e) => { keep(e); applySnapshot(read<FloorSnapshot>(e)); link.value = 'live' })
+    es.addEventListener('run', (e) => { keep(e); addRun(read<FloorRunEvent>(e)) })
     es.addEventListener('lots', (e) => { lots.value = read<FloorLotsEvent>(e).lots })
     es.addEventListener('stations', (e) => { stations.value = read<FloorStationsEvent>(e).stations })
     es.onerror = () => {

@@ -1,7 +1,7 @@
 import type { EventStream } from 'h3'
 import type { FloorLotsEvent, FloorRunEvent, FloorSnapshot, FloorStationsEvent } from '../../../shared/types/floor'
-import { floorLotYields, floorSnapshot, floorStationView, pollRuns } from '../../services/analytics/floor'
-import type { FeedCursor } from '../../services/analytics/floor-cursor'
+import { floorLotYields, floorSnapshot, floorStationView, pollRuns, resumeCursor } from '../../services/analytics/floor'
+import { cursorText, parseCursorText, type FeedCursor } from '../../services/analytics/floor-cursor'
 import { trackStream } from '../../services/analytics/floor-streams'
 import { sessionStillValid } from '../../utils/session'
 import { databaseFaults } from '../../utils/database-faults'
@@ -22,6 +22,9 @@ export default defineEventHandler((event) => {
   const user = event.context.user!
   // ?once=1 sends the snapshot and ends the stream, for tools that cannot hold a connection open.
   const once = getQuery(event).once === '1'
+  // a client that lost its stream (the instance behind it gone) comes back with the last event id it received, which
+  // the browser sends as Last-Event-ID (or the page as ?after= when it starts a new stream): the feed goes on from there
+  const resumeFrom = parseCursorText(getHeader(event, 'last-event-id') ?? getQuery(event).after)
   const stream = createEventStream(event)
   let closed = false
   let poll: ReturnType<typeof setTimeout> | undefined
@@ -40,8 +43,8 @@ export default defineEventHandler((event) => {
 
   // each event's data is typed by the shared contract the floor page reads
   type Events = { run: FloorRunEvent; lots: FloorLotsEvent; stations: FloorStationsEvent }
-  const send = <K extends keyof Events>(name: K, data: Events[K], id?: number) =>
-    stream.push({ event: name, data: JSON.stringify(data), ...(id !== undefined ? { id: String(id) } : {}) })
+  const send = <K extends keyof Events>(name: K, data: Events[K], id?: string) =>
+    stream.push({ event: name, data: JSON.stringify(data), ...(id !== undefined ? { id } : {}) })
 
   const tick = async () => {
     if (closed) return
@@ -49,7 +52,7 @@ export default defineEventHandler((event) => {
       const next = await pollRuns(db, cursor)
       cursor = next.cursor
       if (next.runs.length && !closed) {
-        for (const r of next.runs) await send('run', r, r.id)
+        for (const r of next.runs) await send('run', r.run, r.eventId)
         const [lots, stations] = await Promise.all([floorLotYields(db), floorStationView(db, new Date())])
         await send('lots', { lots })
         await send('stations', { stations })
@@ -65,8 +68,8 @@ export default defineEventHandler((event) => {
   setImmediate(async () => {
     try {
       const first = await floorSnapshot(db)
-      cursor = first.cursor
-      await stream.push({ event: 'snapshot', data: JSON.stringify(first.snapshot satisfies FloorSnapshot), retry: RETRY_MS })
+      cursor = resumeFrom ? await resumeCursor(db, resumeFrom) : first.cursor
+      await stream.push({ event: 'snapshot', data: JSON.stringify(first.snapshot satisfies FloorSnapshot), retry: RETRY_MS, id: cursorText(cursor) })
       if (once) { await stream.close(); return }
     } catch (e) {
       // the browser's EventSource connects again after the retry delay

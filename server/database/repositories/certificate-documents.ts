@@ -2,6 +2,7 @@
 // A lease is the row's render_lease_owner / render_lease_until, taken in a short transaction; the document is stored
 // only by the owner of a live lease, so two renders never both store.
 import type { Knex } from 'knex'
+import { writeTransaction } from '../write-retries'
 
 export type CertificateRef = {
   id: number; number: string; customerId: number; status: 'valid' | 'superseded' | 'revoked'
@@ -26,7 +27,7 @@ export async function certificateByNumber(db: Knex, number: string): Promise<Cer
 
 /** Up to `limit` unrendered certificates whose lease (or error backoff) has run out, leased to `owner`. */
 export async function leaseUnrendered(db: Knex, owner: string, now: Date, until: Date, limit: number): Promise<number[]> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const rows = await trx.raw(
       `SELECT id FROM certificates WHERE rendered_at IS NULL AND (render_lease_until IS NULL OR render_lease_until < ?)
        ORDER BY id LIMIT ? FOR UPDATE SKIP LOCKED`, [now, limit])
@@ -68,7 +69,7 @@ export async function snapshotsOf(db: Knex, ids: readonly number[]): Promise<{ i
  * when it does not (the lease ran out and another took it).
  */
 export async function storeDocument(db: Knex, id: number, owner: string, pdf: Buffer, sha256: string, now: Date): Promise<boolean> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const [results] = await trx.raw(
       `UPDATE certificates SET sha256 = ?, byte_length = ?, rendered_at = ?, render_lease_owner = NULL, render_lease_until = NULL, render_error = NULL
          WHERE id = ? AND render_lease_owner = ? AND rendered_at IS NULL;

@@ -72,17 +72,27 @@ function toRun(r: any): FloorRunRow {
   }
 }
 
-/** Runs with an id above `afterId` or among `alsoIds`, in id order (primary-key range). */
-export async function runsAfter(db: Knex, afterId: number, alsoIds: number[], limit: number): Promise<FloorRunRow[]> {
-  const q = runsQuery(db).where((w) => {
-    w.where('r.id', '>', afterId)
-    if (alsoIds.length) w.orWhereIn('r.id', alsoIds)
-  })
-  return (await q.orderBy('r.id').limit(limit)).map(toRun)
+/** Runs after the key (received at, then id) in that order: a range of the received_at index. */
+export async function runsAfterKey(db: Knex, at: Date, id: number, limit: number): Promise<FloorRunRow[]> {
+  const q = runsQuery(db).where((w) => { w.where('r.received_at', '>', at).orWhere((x) => x.where('r.received_at', at).where('r.id', '>', id)) })
+  return (await q.orderBy('r.received_at').orderBy('r.id').limit(limit)).map(toRun)
 }
 
+/** Ids and times of the runs received in [from, to], newest first (index only: the received_at index holds the id). */
+export async function runKeysReceivedBetween(db: Knex, from: Date, to: Date, limit: number): Promise<{ id: number; at: number }[]> {
+  const rows = await db('test_runs').where('received_at', '>=', from).where('received_at', '<=', to)
+    .orderBy('received_at', 'desc').orderBy('id', 'desc').limit(limit).select('id', 'received_at')
+  return rows.map((r: any) => ({ id: Number(r.id), at: new Date(r.received_at).getTime() }))
+}
+
+export async function runsByIds(db: Knex, ids: number[]): Promise<FloorRunRow[]> {
+  if (!ids.length) return []
+  return (await runsQuery(db).whereIn('r.id', ids)).map(toRun)
+}
+
+/** The latest runs by arrival (received at, then id), newest first. */
 export async function latestRuns(db: Knex, limit: number): Promise<FloorRunRow[]> {
-  return (await runsQuery(db).orderBy('r.id', 'desc').limit(limit)).map(toRun)
+  return (await runsQuery(db).orderBy('r.received_at', 'desc').orderBy('r.id', 'desc').limit(limit)).map(toRun)
 }
 
 export async function maxRunId(db: Knex): Promise<number> {

@@ -1,4 +1,5 @@
 import type { Knex } from 'knex'
+import { writeTransaction } from '../write-retries'
 
 export type LeasedMail = { id: number; messageId: string; to: string[]; subject: string; text: string; html: string; attempts: number; resend: boolean }
 
@@ -11,7 +12,7 @@ const toList = (v: unknown): string[] => (typeof v === 'string' ? JSON.parse(v) 
  * An expired lease counts as an attempt, so a message that keeps killing its sender ends failed like any other.
  */
 export async function leaseDueMail(db: Knex, owner: string, now: Date, leaseMs: number, limit: number, maxAttempts: number): Promise<LeasedMail[]> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const due = await trx('mail_outbox')
       .where((q) => q.where({ status: 'queued' }).andWhere('next_try_at', '<=', now))
       .orWhere((q) => q.where({ status: 'sending' }).andWhere('lease_until', '<', now))

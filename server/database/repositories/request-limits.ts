@@ -1,5 +1,6 @@
 // Fixed-window request counters shared by every app instance.
 import type { Knex } from 'knex'
+import { withWriteRetries } from '../write-retries'
 
 /**
  * Counts one request of `client` in `bucket` and returns the window's count and start. A window that ended before
@@ -8,11 +9,12 @@ import type { Knex } from 'knex'
  */
 export async function countRequest(db: Knex, bucket: string, client: string, now: Date, windowMs: number): Promise<{ hits: number; windowStart: Date }> {
   const expired = new Date(now.getTime() - windowMs)
-  const [results] = await db.raw(
+  // attempts spread over cluster nodes update the same row: the one the cluster aborts counts again
+  const [results] = await withWriteRetries(() => db.raw(
     `INSERT INTO request_limits (bucket, client_key, window_start, hits) VALUES (?, ?, ?, 1)
        ON DUPLICATE KEY UPDATE hits = IF(window_start <= ?, 1, hits + 1), window_start = IF(window_start <= ?, VALUES(window_start), window_start);
      SELECT hits, window_start FROM request_limits WHERE bucket = ? AND client_key = ?`,
-    [bucket, client, now, expired, expired, bucket, client])
+    [bucket, client, now, expired, expired, bucket, client]))
   const row = (results as any[])[1][0]
   return { hits: Number(row.hits), windowStart: new Date(row.window_start) }
 }

@@ -1,5 +1,6 @@
 import type { Knex } from 'knex'
 import type { Role } from '../../../shared/utils/roles'
+import { causalQuery } from '../causal-read'
 
 export type UserRecord = {
   id: number
@@ -35,6 +36,12 @@ export async function listUsers(db: Knex): Promise<UserRecord[]> {
 
 export async function findUserById(db: Knex, id: number): Promise<UserRecord | undefined> {
   const r = await base(db).where('u.id', id).first()
+  return r ? toUser(r) : undefined
+}
+
+/** The user behind a session, as a causal read on a cluster: disabling or a new session version holds at once everywhere. */
+export async function findSessionUser(db: Knex, id: number): Promise<UserRecord | undefined> {
+  const [r] = await causalQuery(db, base(db).where('u.id', id).limit(1))
   return r ? toUser(r) : undefined
 }
 

@@ -4,6 +4,7 @@ import { closeOpenResets, findReset, insertReset } from '../../database/reposito
 import { checkNewPassword, writePassword, type Hasher } from './set-password'
 import { hashResetToken, newResetToken, resetLink, RESET_LIFETIME_MS } from './reset-token'
 import { RuleError } from '../rule-error'
+import { writeTransaction } from '../../database/write-retries'
 
 /** Sends the link inside the transaction that stores its token (the mail outbox). */
 export type LinkSender = (trx: Knex, user: UserRecord, link: string, expiresInMinutes: number) => Promise<void>
@@ -23,7 +24,7 @@ export async function requestPasswordReset(db: Knex, o: { email: string; address
   const tokenHash = hashResetToken(token)
   const user = await findUserForSignIn(db, o.email.trim().toLowerCase())
   if (!user || user.disabled) return
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     await insertReset(trx, { tokenHash, userId: user.id, createdAt: now, expiresAt: new Date(now.getTime() + RESET_LIFETIME_MS), requestedFrom: o.address })
     await send(trx, user, resetLink(o.siteUrl, token), RESET_LIFETIME_MS / 60_000)
   })
@@ -46,7 +47,7 @@ export async function confirmPasswordReset(db: Knex, o: { token: string; newPass
   if (!user || user.disabled) throw linkNotValid()
   checkNewPassword(o.newPassword, user, '/newPassword')
   const passwordHash = await hash(o.newPassword)
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const row = await findReset(trx, tokenHash, true)
     if (!usable(row, now)) throw linkNotValid()
     const closed = await closeOpenResets(trx, user.id, now)

@@ -3,6 +3,7 @@ import { findUserById, readSessionVersion, updateUser } from '../../database/rep
 import { writeAudit } from '../../database/repositories/audit'
 import { passwordProblem } from '../../../shared/utils/password-rule'
 import { RuleError } from '../rule-error'
+import { writeTransaction } from '../../database/write-retries'
 
 export type Hasher = (plain: string) => Promise<string>
 
@@ -35,7 +36,7 @@ export async function changeOwnPassword(db: Knex, userId: number, newPassword: s
   if (!user) throw refused('No such user.', '/newPassword')
   checkNewPassword(newPassword, user, '/newPassword')
   const passwordHash = await hash(newPassword)
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     await writePassword(trx, userId, passwordHash, { actorId: userId, action: 'password_change' })
     return { sessionVersion: await readSessionVersion(trx, userId) }
   })

@@ -6,6 +6,7 @@ import { writeAudit } from '../../database/repositories/audit'
 import { countFirings, findFiring, insertComment, listFirings, lockFiring, markAcknowledged } from '../../database/repositories/alert-firings'
 import { findProductByPartNumber } from '../../database/repositories/products'
 import { RuleError } from '../rule-error'
+import { writeTransaction } from '../../database/write-retries'
 
 export type AlertQuery = { state: AlertState; mine: boolean; kind?: AlertKind; partNumber?: string; stationId?: number; cursor?: string; limit: number }
 
@@ -40,7 +41,7 @@ export async function alertCount(db: Knex, userId: number): Promise<AlertCount> 
 
 /** Acknowledges an open firing, with the optional comment, in one transaction with its audit row. */
 export async function acknowledgeAlert(db: Knex, userId: number, id: number, comment?: string): Promise<AlertFiringDto> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const firing = await lockFiring(trx, id)
     if (!firing) throw new RuleError(404, 'No such alert.')
     if (firing.acknowledgedAt) throw new RuleError(409, `This alert was already acknowledged at ${new Date(firing.acknowledgedAt).toISOString()}.`)
@@ -53,7 +54,7 @@ export async function acknowledgeAlert(db: Knex, userId: number, id: number, com
 }
 
 export async function commentOnAlert(db: Knex, userId: number, id: number, body: string): Promise<AlertFiringDto> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     if (!await lockFiring(trx, id)) throw new RuleError(404, 'No such alert.')
     const commentId = await insertComment(trx, id, userId, body.trim())
     await writeAudit(trx, { userId, action: 'comment', entity: 'alert_firing', entityId: id, after: { commentId, body: body.trim() } })

@@ -8,6 +8,7 @@ import { insertFiring, lockEnabledRule, stationOwner, subscribers, type Recipien
 import { enqueueMail } from '../mail/outbox'
 import { alertRaised, calibrationDue } from '../mail/templates'
 import type { Outcome } from './outcome'
+import { writeTransaction } from '../../database/write-retries'
 
 /** Seconds between two firings of one rule about one subject (TERCET_ALERT_THROTTLE_S overrides, for tests). */
 export function throttleSeconds(env: NodeJS.ProcessEnv = process.env): number {
@@ -20,7 +21,7 @@ export function throttleSeconds(env: NodeJS.ProcessEnv = process.env): number {
  * names one episode); the firing id, or null.
  */
 export async function raise(db: Knex, rule: RuleRow, o: Outcome, now: Date, throttleS: number): Promise<number | null> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     if (!(await lockEnabledRule(trx, rule.id))) return null
     const last = (await lastFiring(trx, rule.id, o.subject))?.raisedAt
     if (last && (o.once || now.getTime() - last.getTime() < throttleS * 1000)) return null

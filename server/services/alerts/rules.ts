@@ -11,6 +11,7 @@ import { findSourceRevision, listLimitsOf } from '../../database/repositories/sp
 import type { FieldError } from '../../../shared/types/problem'
 import { RuleError } from '../rule-error'
 import { checkRuleFields, clearUnused } from './rule-check'
+import { writeTransaction } from '../../database/write-retries'
 
 export async function rulesList(db: Knex, filter: { partNumber?: string; kind?: AlertKind }): Promise<AlertRuleList> {
   let productId: number | undefined
@@ -68,7 +69,7 @@ function audited(r: AlertRuleDto) {
 }
 
 export async function createRule(db: Knex, actorId: number, input: AlertRuleInput, now = new Date()): Promise<AlertRuleDto> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const id = await insertRule(trx, await toRow(trx, input, now), actorId)
     const rule = (await findRule(trx, id))!
     await writeAudit(trx, { userId: actorId, action: 'create', entity: 'alert_rule', entityId: id, after: audited(rule) })
@@ -86,7 +87,7 @@ function inputOf(r: AlertRuleDto): AlertRuleInput {
 
 /** Changes the given fields; the rule as changed passes the same checks as a new one. */
 export async function changeRule(db: Knex, actorId: number, id: number, change: AlertRuleChange, now = new Date()): Promise<AlertRuleDto> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     if (!await lockRuleRow(trx, id)) throw new RuleError(404, 'No such alert rule.')
     const before = (await findRule(trx, id))!
     // switching a rule on or off keeps its fields as they are, even where the specification has changed since
@@ -106,7 +107,7 @@ export async function changeRule(db: Knex, actorId: number, id: number, change: 
 
 /** Deletes a rule that never fired; one that did keeps its history and is disabled instead. */
 export async function removeRule(db: Knex, actorId: number, id: number): Promise<void> {
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     if (!await lockRuleRow(trx, id)) throw new RuleError(404, 'No such alert rule.')
     const firings = await countFiringsOf(trx, id)
     if (firings > 0) throw new RuleError(409, `This rule has raised ${firings} alert(s), which keep it as their source: disable it instead of deleting it.`)

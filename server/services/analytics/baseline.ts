@@ -4,6 +4,7 @@ import { writeAudit } from '../../database/repositories/audit'
 import { findLotHeader } from '../../database/repositories/lot-stats'
 import { deleteBaseline, findBaseline, parameterPoints, saveBaseline } from '../../database/repositories/parameter-values'
 import { RuleError } from '../rule-error'
+import { writeTransaction } from '../../database/write-retries'
 
 export const BASELINE_DEFAULT = 25
 
@@ -18,7 +19,7 @@ export async function freezeBaseline(db: Knex, r: BaselineRequest) {
   const pts = await parameterPoints(db, { ...key, firstOnly: true }, { head: r.points })
   const limits = individualsLimits(pts.map((p) => p.value))
   if (!limits || pts.length < r.points || !(limits.sigma > 0)) throw new RuleError(422, `The lot has fewer than ${r.points} usable points of this parameter.`)
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const before = await findBaseline(trx, key)
     const b = { centre: limits.centre, sigma: limits.sigma, n: limits.n, setBy: r.userId }
     await saveBaseline(trx, key, b)
@@ -31,7 +32,7 @@ export async function releaseBaseline(db: Knex, r: Omit<BaselineRequest, 'points
   const lot = await findLotHeader(db, r.code)
   if (!lot) throw new RuleError(404, `No lot ${r.code}.`)
   const key = { lotId: lot.id, step: r.step, name: r.name, qualifier: r.qualifier }
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const before = await findBaseline(trx, key)
     if (!before) throw new RuleError(404, 'No frozen baseline for this parameter.')
     await deleteBaseline(trx, key)

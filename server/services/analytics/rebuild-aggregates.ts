@@ -5,6 +5,7 @@ import { recountStepStats } from '../../database/repositories/step-stats'
 import { rebuildLotBins } from '../ingest/fold-bins'
 import { rebuildUnitStandings } from '../../database/repositories/unit-standing'
 import { rebuildTrendOfLot } from '../ingest/param-trend-fold'
+import { writeTransaction } from '../../database/write-retries'
 
 /**
  * Recomputes a lot's aggregate rows from its stored runs and measurements inside `trx`, whose caller holds the
@@ -26,7 +27,7 @@ export async function rebuildLotAggregatesIn(trx: Knex.Transaction, lotId: numbe
 /** The same in its own transaction, taking the lot's lease first: for bulk loads and repair. */
 export async function rebuildLotAggregates(db: Knex, lotId: number): Promise<void> {
   await ensureFoldLease(db, lotId)
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     if ((await takeFoldLease(trx, lotId, 30)) !== 'taken') throw new Error(`the fold lease of lot ${lotId} could not be taken`)
     await rebuildLotAggregatesIn(trx, lotId)
   })

@@ -16,6 +16,7 @@ import { decodeCertificatePdf } from './certificate-file'
 import { displayFileName } from '../../../shared/utils/upload-text'
 import { openImpactReview } from './impact-open'
 import { rejudgeRuns, runsTouchedByHolding, runsTouchedByRecords, type RejudgeSummary } from './rejudge'
+import { writeTransaction } from '../../database/write-retries'
 
 export type NewInstrument = { assetNumber: string; kind: string; model: string; serial: string; stationId?: number; installedAt?: string }
 export type InstrumentMove = { stationId: number | null; at?: string }
@@ -48,7 +49,7 @@ async function existingStation(trx: Knex, id: number, pointer: string) {
 
 /** The transaction of every history change: the version row first, so runs in flight are committed before we look. */
 async function historyChange<T>(db: Knex, work: (trx: Knex.Transaction) => Promise<T>): Promise<T> {
-  const done = await db.transaction(async (trx) => {
+  const done = await writeTransaction(db, async (trx) => {
     await raiseHistoryVersion(trx)
     return work(trx)
   })

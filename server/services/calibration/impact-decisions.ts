@@ -8,6 +8,7 @@ import { closeImpactRow, countWindow, decisionsOf, setImpactCounts, unitsOfWindo
 import type { FieldError } from '../../../shared/types/problem'
 import { RuleError } from '../rule-error'
 import { lockedImpact } from './impact-review'
+import { writeTransaction } from '../../database/write-retries'
 
 export type DecisionEntry = { partNumber: string; serial: string; decision: ImpactDecision; reason?: string }
 export type DecisionsInput = { decisions: DecisionEntry[] } | { lot: string; decision: ImpactDecision; reason?: string }
@@ -15,7 +16,7 @@ export type DecisionsInput = { decisions: DecisionEntry[] } | { lot: string; dec
 const clean = (r: string | undefined) => (r?.trim() ? r.trim() : null)
 
 export async function recordDecisions(db: Knex, actorId: number, impactId: number, input: DecisionsInput, now = new Date()): Promise<ImpactDecisionsResult> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const impact = await lockedImpact(trx, impactId)
     if (impact.status === 'closed') throw new RuleError(409, 'The review is closed: its decisions stand as recorded.')
     const w = impact
@@ -62,7 +63,7 @@ export async function recordDecisions(db: Knex, actorId: number, impactId: numbe
 
 /** Closes a review once every unit of its window has a decision. */
 export async function closeReview(db: Knex, actorId: number, impactId: number, now = new Date()): Promise<{ id: number; status: 'closed'; closedAt: string }> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const impact = await lockedImpact(trx, impactId)
     if (impact.status === 'closed') throw new RuleError(409, 'The review is already closed.')
     const w = impact

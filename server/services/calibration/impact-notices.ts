@@ -13,9 +13,10 @@ import { calibrationImpact } from '../mail/templates'
 import { RuleError } from '../rule-error'
 import { noticePlan } from './impact-notice-plan'
 import { lockedImpact } from './impact-review'
+import { writeTransaction } from '../../database/write-retries'
 
 export async function sendNotices(db: Knex, actorId: number, impactId: number, o: { resend: boolean; signed: Signature }, now = new Date()): Promise<ImpactNoticesResult> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const impact = await lockedImpact(trx, impactId)
     const plan = await noticePlan(trx, impact)
     const undecided = plan.flatMap((p) => p.units.filter((u) => u.decision === null).map((u) => ({ customer: p.customer.name, partNumber: u.partNumber, serial: u.serial })))

@@ -4,6 +4,7 @@ import type { Knex } from 'knex'
 import { impactWindow } from '../../../shared/utils/calibration-impact'
 import { writeAudit } from '../../database/repositories/audit'
 import { closeImpactRow, countWindow, impactRecordsOf, insertImpact, recordsWithoutReview, setImpactCounts } from '../../database/repositories/calibration-impacts'
+import { writeTransaction } from '../../database/write-retries'
 
 /** Opens the review of one record inside the caller's transaction; null when the record is not out of tolerance or already has one. */
 export async function openImpactReview(trx: Knex, recordId: number, instrumentId: number, actorId: number | null, now = new Date()): Promise<number | null> {
@@ -37,7 +38,7 @@ export async function openImpactReview(trx: Knex, recordId: number, instrumentId
 export async function openMissingReviews(db: Knex, actorId: number | null): Promise<number> {
   let opened = 0
   for (const r of await recordsWithoutReview(db)) {
-    if (await db.transaction((trx) => openImpactReview(trx, r.id, r.instrumentId, actorId)) !== null) opened++
+    if (await writeTransaction(db, (trx) => openImpactReview(trx, r.id, r.instrumentId, actorId)) !== null) opened++
   }
   return opened
 }

@@ -10,6 +10,7 @@ import {
 } from '../../database/repositories/calibration-runs'
 import { restandUnitsOfRuns } from '../../database/repositories/unit-standing'
 import { writeAudit } from '../../database/repositories/audit'
+import { writeTransaction } from '../../database/write-retries'
 
 /** What a history change did to stored runs; kept in its audit row. */
 export type RejudgeSummary = RejudgeSummaryView
@@ -102,7 +103,7 @@ export async function rejudgeRuns(trx: Knex, candidates: readonly CandidateRun[]
 export async function drainRejudgeQueue(db: Knex, limit = 500): Promise<number> {
   const queued = await queuedRejudges(db, limit)
   if (!queued.length) return 0
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     // a shared lock on the version row: no history change can commit while these runs are judged
     await shareLockHistoryVersion(trx)
     const ids = await claimRejudges(trx, queued)

@@ -14,9 +14,9 @@ import { addValue, emptyParamRow, inTimeOrder, type ParamRow, type ParamRowKey }
 import { foldTrendValues, queueStaleGroups, repairQueuedGroups } from './param-trend-fold'
 import { queueRepairsOfRevision } from '../../database/repositories/param-trend'
 import { lotBacklog, rebuildSize, smallRepairsWaiting, type LotBacklog } from './fold-backlog'
+import { writeTransaction } from '../../database/write-retries'
 
 const RUNS_PER_FOLD = 500
-const RETRIES = 4
 // a reader waits this long for a fold of its lot in progress (a slice of 500 runs takes well under a second), then
 // reads the rows as they are and says what they do not include yet
 const READER_WAIT_SECONDS = 5
@@ -36,7 +36,7 @@ type Slice = { folded: number; more: boolean } | 'busy' | 'missing'
  * `maxRepairValues` are left for a later fold (a reader's limit; the background's is unbounded).
  */
 async function foldSlice(db: Knex, lotId: number, waitSeconds: number, maxRepairValues: number, upTo?: number): Promise<Slice> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const lease = await takeFoldLease(trx, lotId, waitSeconds)
     if (lease !== 'taken') return lease
     const runIds = await queuedRunsOfLot(trx, lotId, RUNS_PER_FOLD, upTo)
@@ -84,21 +84,12 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, maxRepair
   })
 }
 
-async function withRetries<T>(work: () => Promise<T>): Promise<T> {
-  for (let tries = 1; ; tries++) {
-    try {
-      return await work()
-    } catch (e: any) {
-      if (!(e?.code === 'ER_LOCK_DEADLOCK' && tries < RETRIES)) throw e
-    }
-  }
-}
-
 /** Folds one lot's queue; a background fold gives way when another fold of the lot is running. */
 async function foldLot(db: Knex, lotId: number, background: boolean, upTo?: number): Promise<number | 'busy'> {
   let total = 0
   for (;;) {
-    const slice = await withRetries(() => foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, background ? Infinity : READER_REPAIR_VALUES, upTo))
+    // two folds of one lot on two cluster nodes conflict at commit; writeTransaction runs the loser again
+    const slice = await foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, background ? Infinity : READER_REPAIR_VALUES, upTo)
     if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
     if (slice === 'busy') return total || 'busy'
     total += slice.folded

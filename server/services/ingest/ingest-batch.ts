@@ -42,13 +42,15 @@ export async function ingestBatch(db: Knex, station: StationRef, items: unknown[
   const toWrite: RunToWrite[] = []
   const indexOf: number[] = []
   const refusedFirst = new Map<number, { e: RunRejected; id: string; hash: string }>()
+  // every run of the batch checks the caches against one counter read made after the batch arrived
+  const at: StationRef = station.seenAt === undefined ? { ...station, seenAt: performance.now() } : station
   for (let i = 0; i < items.length; i++) {
     const v = validateRun(items[i])
     if (!v.ok) { results[i] = { id: idOf(items[i]), status: 400, detail: 'The run does not match the schema.', errors: prefix(i, v.errors) }; continue }
     const run = v.value
     const hash = bodyHash(run)
     try {
-      const item: RunToWrite = { station, run, hash, ctx: await prepare(db, station, run, now) }
+      const item: RunToWrite = { station, run, hash, ctx: await prepare(db, at, run, now) }
       item.receivedAt = options.receivedAt?.(item) ?? null
       toWrite.push(item)
       indexOf.push(i)

@@ -7,6 +7,8 @@ import { createLot, findLot, lotCodeOfSerial } from '../../database/repositories
 import { GroupWriter } from '../../utils/group-writer'
 import { writeRuns, type GroupResult, type RunToWrite } from './write-runs'
 import { lotCache, productCache, specCache } from './caches'
+import { cacheVersions } from '../cache-versions'
+import type { CacheVersions } from '../../database/repositories/cache-versions'
 import { calibrationAt } from '../calibration/in-force'
 import { bodyHash } from './canonical'
 import { judgeRun, RunRejected } from './judge-run'
@@ -18,16 +20,17 @@ export type IngestOutcome =
   | { status: 201 | 200; run: RunView }
   | { status: 409; detail: string }
 
-export type StationRef = { id: number; name: string }
+/** `seenAt`: when the request that carried the run arrived (performance.now()), so its cache check may share the token check's counter read. */
+export type StationRef = { id: number; name: string; seenAt?: number }
 
 const FUTURE_SLACK_MS = 5 * 60_000
 
-function productFor(db: Knex, partNumber: string) {
-  return productCache.get(partNumber, () => findProductByPart(db, partNumber)) as Promise<ProductInfo | undefined>
+function productFor(db: Knex, partNumber: string, v: CacheVersions) {
+  return productCache.get(partNumber, v.catalogue, () => findProductByPart(db, partNumber)) as Promise<ProductInfo | undefined>
 }
 
-function revisionsFor(db: Knex, productId: number) {
-  return specCache.get(productId, () => listEffectiveRevisions(db, productId)) as Promise<RevisionInForce[]>
+function revisionsFor(db: Knex, productId: number, v: CacheVersions) {
+  return specCache.get(productId, v.catalogue, () => listEffectiveRevisions(db, productId)) as Promise<RevisionInForce[]>
 }
 
 /**
@@ -35,9 +38,9 @@ function revisionsFor(db: Knex, productId: number) {
  * behind: the checks that can refuse run before this, and a serial already recorded in another lot (which the write
  * plan would refuse) is refused here first.
  */
-async function lotFor(db: Knex, run: StationRun, product: ProductInfo): Promise<number> {
+async function lotFor(db: Knex, run: StationRun, product: ProductInfo, v: CacheVersions): Promise<number> {
   const code = run.lot
-  const lot = await lotCache.get(code, async () => {
+  const lot = await lotCache.get(code, v.lots, async () => {
     const existing = await findLot(db, code)
     if (existing) return existing
     const elsewhere = await lotCodeOfSerial(db, product.id, run.serial)
@@ -74,17 +77,22 @@ function checkTimes(run: StationRun, now: Date): { startedAt: Date; finishedAt: 
 
 export type Prepared = Awaited<ReturnType<typeof prepare>>
 
-/** Everything decided before the transaction: times, product, revision in force, judgement, lot, calibration. */
+/**
+ * Everything decided before the transaction: times, product, revision in force, judgement, lot, calibration. The
+ * cached product, limits and lot are checked against the counters read after the request arrived (`station.seenAt`),
+ * so a change committed through any instance before then is seen.
+ */
 export async function prepare(db: Knex, station: StationRef, run: StationRun, now: Date) {
   const { startedAt, finishedAt } = checkTimes(run, now)
-  const product = await productFor(db, run.partNumber)
+  const versions = await cacheVersions(db, station.seenAt)
+  const product = await productFor(db, run.partNumber, versions)
   if (!product) throw new RunRejected(`Unknown part number ${run.partNumber}.`, [{ pointer: '/partNumber', message: 'unknown part number' }])
-  const revision = revisionAt(await revisionsFor(db, product.id), startedAt)
+  const revision = revisionAt(await revisionsFor(db, product.id, versions), startedAt)
   if (!revision) throw new RunRejected(`No approved specification of ${product.partNumber} was in force at ${startedAt.toISOString()}.`, [{ pointer: '/startedAt', message: 'no approved specification in force' }])
   const judged = judgeRun(run, product, revision)
   // calibration hook: the instruments in force at the test time and their records (services/calibration/in-force)
   const calibration = await calibrationAt(db, station.id, startedAt, run.instrumentAssets)
-  const lotId = await lotFor(db, run, product)
+  const lotId = await lotFor(db, run, product, versions)
   const calibrationLapsed = calibration.lapsed
   return { startedAt, finishedAt, product, revision, judged, lotId, calibrationLapsed, calibration }
 }
@@ -108,6 +116,8 @@ export type IngestOptions = { touchStation?: boolean; receivedAt?: Date }
 
 // Concurrent posts are written together: 4 groups in flight of up to 32 runs each. On the 2-core box 3 and 4 groups
 // stored the most runs per second (bench:ingest, two runs each); 6 and 12 spent more per run on smaller groups.
+// Per process: with several instances on one database each has its own lanes, so the database sees up to
+// instances × TERCET_WRITE_LANES write transactions at once (set it lower per instance to keep the same total).
 const LANES = Number(process.env.TERCET_WRITE_LANES || 4)
 const MAX_GROUP = Number(process.env.TERCET_WRITE_GROUP || 32)
 const writers = new WeakMap<Knex, GroupWriter<RunToWrite, GroupResult>>()

@@ -3,6 +3,7 @@
 // off them and commit. A run placed before runs stored earlier adds one round trip for that unit's history.
 import type { Knex } from 'knex'
 import { isDatabaseUnavailable } from '../../utils/database-unavailable'
+import { withWriteRetries } from '../../database/write-retries'
 import { sendStatements, withDriverConnection, type SendStatements, type Statement } from '../../database/raw-connection'
 import {
   dropUnitWithoutRuns, firstAttemptFlags, insertedRunIdsCheck, insertedRunRef, lockUnitsWithSteps, productStepsShared, rememberFirstRunId, measurementsInsert, pendingStatsInsert, renumberAttempts, runsInsert, statsRebuildMark,
@@ -149,26 +150,14 @@ export async function writeGroupOnce(db: Knex, items: RunToWrite[], mode: IdMode
   })
 }
 
-/** A concurrent writer took the same unit or id first, or the cluster refused the commit: the group may be tried again. */
-const RETRY = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT', 'ER_DUP_ENTRY'])
-const TRIES = 4
+/**
+ * A concurrent writer took the same unit or id first, or the cluster refused the commit: the group may be tried again
+ * (a deadlock or certification failure as every write transaction; here also a lock wait that ran out and a concurrent
+ * insert of the same run id, which the next attempt finds stored and answers as a replay).
+ */
+const ALSO_RETRY = ['ER_LOCK_WAIT_TIMEOUT', 'ER_DUP_ENTRY'] as const
 
-export function isRetryable(e: unknown): boolean {
-  return RETRY.has((e as { code?: string })?.code ?? '')
-}
-
-const pause = (tries: number) => new Promise((r) => setTimeout(r, 2 + Math.random() * 8 * tries))
-
-async function withRetries<T>(work: () => Promise<T>): Promise<T> {
-  for (let tries = 1; ; tries++) {
-    try {
-      return await work()
-    } catch (e) {
-      if (!isRetryable(e) || tries >= TRIES) throw e
-      await pause(tries)
-    }
-  }
-}
+const withRetries = <T>(work: () => Promise<T>) => withWriteRetries(work, { alsoRetry: ALSO_RETRY })
 
 export type GroupResult = { outcome: WriteOutcome } | { error: unknown }
 

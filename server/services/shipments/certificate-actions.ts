@@ -6,6 +6,7 @@ import { productSteps, stepStatesOf } from '../../database/repositories/shipment
 import { issueCertificates, revokeCertificates } from '../certificates/issue'
 import { RuleError } from '../rule-error'
 import { overallVerdict } from './unit-verdict'
+import { writeTransaction } from '../../database/write-retries'
 
 async function lockCertificate(trx: Knex, number: string) {
   const c = await trx('certificates as c').join('units as u', 'u.id', 'c.unit_id').where('c.number', number).forUpdate()
@@ -15,7 +16,7 @@ async function lockCertificate(trx: Knex, number: string) {
 }
 
 export async function revokeCertificate(db: Knex, actorId: number, number: string, reason: string, signed: Signature, now = new Date()) {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const c = await lockCertificate(trx, number)
     if (c.status === 'revoked') throw new RuleError(409, `Certificate ${number} is already revoked.`)
     await writeAudit(trx, { userId: actorId, action: 'revoke', entity: 'certificate', entityId: number, before: { status: c.status }, after: { status: 'revoked', reason: reason.trim(), signed } })
@@ -30,7 +31,7 @@ export async function revokeCertificate(db: Knex, actorId: number, number: strin
  * scrapped, and must still be in the shipment.
  */
 export async function reissueCertificate(db: Knex, actorId: number, number: string, signed: Signature, now = new Date()) {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const c = await lockCertificate(trx, number)
     if (c.status !== 'valid') throw new RuleError(409, `Certificate ${number} is ${c.status}: only a valid certificate is reissued.`)
     const member = await trx('shipment_units').where({ shipment_id: c.shipment_id, unit_id: c.unit_id }).first('returned_at')

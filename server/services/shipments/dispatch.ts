@@ -3,9 +3,9 @@ import { writeAudit } from '../../database/repositories/audit'
 import { updateLotStatus } from '../../database/repositories/lot-detail'
 import { lockShipment, markDispatched } from '../../database/repositories/shipments'
 import { liveShipmentUnits } from '../../database/repositories/shipment-units'
-import { invalidateLotCache } from '../ingest/caches'
 import { RuleError } from '../rule-error'
 import { lotShipping } from './lot-shipping'
+import { writeTransaction } from '../../database/write-retries'
 
 export type DispatchInput = { carrier: string; trackingRef: string }
 
@@ -14,7 +14,7 @@ export type DispatchInput = { carrier: string; trackingRef: string }
  * of its units becomes shipped once every unit of the lot that passed is in a dispatched shipment.
  */
 export async function dispatchShipment(db: Knex, actorId: number, shipmentId: number, input: DispatchInput, now = new Date()) {
-  const result = await db.transaction(async (trx) => {
+  const result = await writeTransaction(db, async (trx) => {
     const s = await lockShipment(trx, shipmentId)
     if (!s) throw new RuleError(404, 'No such shipment.')
     if (s.status !== 'released') throw new RuleError(409, s.status === 'draft' ? `Shipment ${s.code} must be released before it is dispatched.` : `Shipment ${s.code} is already dispatched.`)
@@ -38,6 +38,5 @@ export async function dispatchShipment(db: Knex, actorId: number, shipmentId: nu
     }
     return { code: s.code, status: 'dispatched' as const, lotsShipped: shipped }
   })
-  if (result.lotsShipped.length) invalidateLotCache()
   return result
 }

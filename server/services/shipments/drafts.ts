@@ -4,6 +4,7 @@ import { findCustomer } from '../../database/repositories/customers'
 import { findProductByPartNumber } from '../../database/repositories/products'
 import { insertShipment, lockShipment, updateShipmentFields } from '../../database/repositories/shipments'
 import { RuleError } from '../rule-error'
+import { writeTransaction } from '../../database/write-retries'
 
 export type ShipmentFields = { customerId: number; partNumber?: string | null; customerPo?: string | null; plannedShipDate?: string | null; notes?: string | null }
 
@@ -24,7 +25,7 @@ async function productId(trx: Knex, partNumber: string | null | undefined): Prom
 }
 
 export async function createShipment(db: Knex, actorId: number, f: ShipmentFields, now = new Date()): Promise<{ id: number; code: string }> {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     await activeCustomer(trx, f.customerId)
     const fields = { customerId: f.customerId, productId: (await productId(trx, f.partNumber)) ?? null, customerPo: text(f.customerPo) ?? null, plannedShipDate: f.plannedShipDate ?? null, notes: text(f.notes) ?? null }
     const created = await insertShipment(trx, { ...fields, createdBy: actorId, year: now.getUTCFullYear() })
@@ -35,7 +36,7 @@ export async function createShipment(db: Knex, actorId: number, f: ShipmentField
 
 /** Header changes while the shipment is a draft; restricting it to a part is refused while it holds units of another. */
 export async function changeShipment(db: Knex, actorId: number, id: number, f: Partial<ShipmentFields>): Promise<void> {
-  await db.transaction(async (trx) => {
+  await writeTransaction(db, async (trx) => {
     const s = await lockShipment(trx, id)
     if (!s) throw new RuleError(404, 'No such shipment.')
     if (s.status !== 'draft') throw new RuleError(409, `Shipment ${s.code} is ${s.status}: only a draft can change.`)

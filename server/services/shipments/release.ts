@@ -10,6 +10,7 @@ import { issueCertificates } from '../certificates/issue'
 import { queueShipmentReleased } from '../mail/shipment-notice'
 import { RuleError } from '../rule-error'
 import { unitProblems } from './unit-checks'
+import { writeTransaction } from '../../database/write-retries'
 
 export type ReleaseInput = { deviation?: string; signed: Signature }
 
@@ -20,7 +21,7 @@ export type ReleaseInput = { deviation?: string; signed: Signature }
  * its audit row and the units' certificates commit together.
  */
 export async function releaseShipment(db: Knex, actorId: number, shipmentId: number, input: ReleaseInput, now = new Date()) {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const s = await lockShipment(trx, shipmentId)
     if (!s) throw new RuleError(404, 'No such shipment.')
     if (s.status !== 'draft') throw new RuleError(409, `Shipment ${s.code} is already ${s.status}.`)

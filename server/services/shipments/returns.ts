@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import { writeAudit } from '../../database/repositories/audit'
 import { lockShipment } from '../../database/repositories/shipments'
 import { RuleError } from '../rule-error'
+import { writeTransaction } from '../../database/write-retries'
 
 export type ReturnInput = { partNumber: string; serial: string; returnNumber: string; reason: string; receivedAt: string }
 
@@ -10,7 +11,7 @@ export type ReturnInput = { partNumber: string; serial: string; returnNumber: st
  * return is recorded, and its certificate stays as issued until shipping again supersedes it.
  */
 export async function recordReturn(db: Knex, actorId: number, shipmentId: number, input: ReturnInput) {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const s = await lockShipment(trx, shipmentId)
     if (!s) throw new RuleError(404, 'No such shipment.')
     if (s.status === 'draft') throw new RuleError(409, `Shipment ${s.code} is a draft: take the unit out instead.`)

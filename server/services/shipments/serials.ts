@@ -10,6 +10,7 @@ import { binaryKind, headBytes, notTextReason } from '../../../shared/utils/uplo
 import { RuleError } from '../rule-error'
 import { classifyLines, countVerdicts, parseSerialLines, type ClassifiedRow, type ListLine, type Standing } from './serial-list'
 import { overallVerdict } from './unit-verdict'
+import { writeTransaction } from '../../database/write-retries'
 
 export const MAX_SHIPMENT_UNITS = 10_000
 export const MAX_LIST_LINES = 10_000
@@ -99,7 +100,7 @@ export async function previewSerials(db: Knex, shipmentId: number, req: SerialRe
 export async function addSerials(db: Knex, actorId: number, shipmentId: number, req: SerialRequest, now = new Date()) {
   exactlyOneSource(req)
   tooMany(req.lines?.length ?? req.serials?.length ?? 0)
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const locked = await lockShipment(trx, shipmentId)
     if (!locked) throw new RuleError(404, 'No such shipment.')
     if (locked.status !== 'draft') throw new RuleError(409, `Shipment ${locked.code} is ${locked.status}: serials change only on a draft.`)
@@ -123,7 +124,7 @@ export async function addSerials(db: Knex, actorId: number, shipmentId: number, 
 export type RemoveRequest = { units: { partNumber: string; serial: string }[] }
 
 export async function removeSerials(db: Knex, actorId: number, shipmentId: number, req: RemoveRequest) {
-  return db.transaction(async (trx) => {
+  return writeTransaction(db, async (trx) => {
     const locked = await lockShipment(trx, shipmentId)
     if (!locked) throw new RuleError(404, 'No such shipment.')
     if (locked.status !== 'draft') throw new RuleError(409, `Shipment ${locked.code} is ${locked.status}: serials change only on a draft.`)

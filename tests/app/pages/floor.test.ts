@@ -21,7 +21,7 @@ class FakeEventSource {
   open() { this.readyState = FakeEventSource.OPEN; this.onopen?.(new Event('open')) }
   /** A dropped connection the browser will retry (CONNECTING), or a refusal that ends the stream (CLOSED). */
   fail(closed: boolean) { this.readyState = closed ? FakeEventSource.CLOSED : FakeEventSource.CONNECTING; this.onerror?.(new Event('error')) }
-  emit(type: string, data: unknown) { for (const fn of this.listeners.get(type) ?? []) fn(new MessageEvent(type, { data: JSON.stringify(data) })) }
+  emit(type: string, data: unknown, lastEventId = '') { for (const fn of this.listeners.get(type) ?? []) fn(new MessageEvent(type, { data: JSON.stringify(data), lastEventId })) }
 }
 
 const snapshot = (): FloorSnapshot => ({
@@ -80,6 +80,23 @@ describe('floor page link badge', () => {
     FakeEventSource.made[1]!.emit('snapshot', snapshot())
     await w.vm.$nextTick()
     expect(badge(w)).toMatch(/^live$/i)
+    w.unmount()
+  })
+
+  it('starts the new stream after the last event it received, so the feed goes on where it stopped on any instance', async () => {
+    const w = await mountSuspended(FloorPage)
+    const first = FakeEventSource.made[0]!
+    first.open()
+    first.emit('snapshot', snapshot(), '1764700000000.41')
+    first.emit('run', {
+      id: 44, serial: 'SN-1', part: 'P', lot: 'L', station: 'BENCH-FLOOR-T1', step: 'final', attempt: 1, verdict: 'pass',
+      startedAt: '2026-12-02T18:26:00.000Z', finishedAt: '2026-12-02T18:26:30.000Z', receivedAt: '2026-12-02T18:26:40.000Z', failed: 0,
+    }, '1764700000500.44')
+    vi.useFakeTimers()
+    first.fail(true)
+    vi.advanceTimersByTime(5_100)
+    expect(FakeEventSource.made).toHaveLength(2)
+    expect(FakeEventSource.made[1]!.url).toBe('/api/floor/stream?after=1764700000500.44')
     w.unmount()
   })
 })

@@ -19,6 +19,10 @@ describe('isDatabaseUnavailable', () => {
     ['a killed connection (MariaDB)', sqlError('ER_CONNECTION_KILLED', 1927, 'Connection was killed')],
     ['too many connections', sqlError('ER_CON_COUNT_ERROR', 1040, 'Too many connections')],
     ['a lock wait timeout', sqlError('ER_LOCK_WAIT_TIMEOUT', 1205, 'Lock wait timeout exceeded; try restarting transaction')],
+    ['a deadlock or a Galera certification failure left after the retries', sqlError('ER_LOCK_DEADLOCK', 1213, 'Deadlock found when trying to get lock; try restarting transaction')],
+    // MariaDB Galera's answer on a node outside the primary component (the MariaDB knowledge base, "WSREP has not yet prepared node")
+    ['a Galera node not ready for clients', sqlError('ER_UNKNOWN_COM_ERROR', 1047, 'WSREP has not yet prepared node for application use')],
+    ['the same carrying only its number', Object.assign(new Error('WSREP has not yet prepared node for application use'), { errno: 1047 })],
     ['a command on a closed connection', new Error("Can't add new command when connection is in closed state")],
     ['the pool timing out', Object.assign(new Error('Knex: Timeout acquiring a connection. The pool is probably full. Are you missing a .transacting(trx) call?'), { name: 'KnexTimeoutError' })],
     ['any fatal driver error', Object.assign(new Error('something new'), { code: 'SOMETHING_NEW', fatal: true })],

@@ -5,7 +5,6 @@ export default defineEventHandler(async (event) => {
   const id = Number(getRouterParam(event, 'id'))
   const issued = Number.isInteger(id) && id > 0 ? await rotateStationToken(useDb(), actor.id, id) : undefined
   if (!issued) throw problem(404, 'No such station.')
-  forgetStationTokens()
   setResponseStatus(event, 201)
   setResponseHeader(event, 'Cache-Control', 'no-store')
   return issued
