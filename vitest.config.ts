@@ -31,6 +31,10 @@ export default defineConfig({
       ...(process.env.TERCET_FAULTS === '1'
         ? [{ test: { name: 'faults', include: ['tests/reliability/faults/**/*.test.ts'], environment: 'node', testTimeout: 900_000, hookTimeout: 600_000, fileParallelism: false } }]
         : []),
+      // the three-node cluster with two app instances behind HAProxy: only `npm run test:cluster` runs them
+      ...(process.env.TERCET_CLUSTER_TESTS === '1'
+        ? [{ test: { name: 'cluster', include: ['tests/cluster/**/*.test.ts'], environment: 'node', testTimeout: 900_000, hookTimeout: 900_000, fileParallelism: false } }]
+        : []),
       // components, composables and pages of app/, mounted in a Nuxt runtime over happy-dom: no server, no database
       await defineVitestProject({
         // Vite refuses the public-file import Nuxt makes of <img src="/favicon.svg"> ("Denied ID virtual:public?…svg")

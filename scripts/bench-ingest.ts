@@ -1,4 +1,4 @@
-// npm run bench:ingest [-- --no-build] — throughput and latency of station ingest on a fresh bench database and the
+// npm run bench:ingest [-- --no-build] [-- --cluster] — throughput and latency of station ingest on a fresh bench database and the
 // built server, loopback only, at the commit durability the database runs with (printed as flushLogAtTrxCommit).
 // Two yardsticks, each written by 32 connections in the same run:
 //   minimal — one run row and its 20 measurement rows in one transaction, nothing else, through mysql2 in one round
@@ -11,14 +11,17 @@
 // starts the server with --cpu-prof into that folder; TERCET_WRITE_LANES and TERCET_WRITE_GROUP override the server's
 // number of write groups in flight and their largest size. The server's own output (one log line per request, as in
 // production) goes to .data/bench-ingest-server.log.
+// --cluster then runs the same single-run and batch stages through HAProxy against two instances over a three-node
+// Galera cluster of the bench's own (scripts/lib/bench-cluster.ts) and prints both topologies' figures and their ratio.
 import type { ChildProcess } from 'node:child_process'
 import { randomUUID } from 'node:crypto'
 import { openSync } from 'node:fs'
 import { loadavg } from 'node:os'
 import { resolve } from 'node:path'
-import autocannon from 'autocannon'
 import mysql from 'mysql2/promise'
 import { dataDir, dbSettings, loadEnv, serverEnv } from './lib/env.mjs'
+import { cannon } from './lib/bench-cannon'
+import { clusterStages } from './lib/bench-cluster'
 import { HOST, builtEntry, cpuTimes, databasePid, freePort, prepareBenchDatabase, startBuiltServer, stopChild, waitHealthy } from './lib/bench-server'
 import { createKnex } from '../server/database/connection'
 import { generateStationToken } from '../server/utils/station-token'
@@ -97,39 +100,6 @@ function makeBodies(count: number, seed: number, product: ProductInfo, revision:
   const out: Prepared[] = new Array(count)
   for (let i = 0; i < count; i++) out[i] = benchRun(i, rand, new Date(start + i * 20), product, revision, tag)
   return out
-}
-
-// ---- HTTP side ---------------------------------------------------------------------------------
-
-type CannonResult = {
-  duration: number; errors: number; timeouts: number; non2xx: number; '2xx': number
-  latency: { p50: number; p99: number }
-}
-
-/** autocannon with one station token per connection and a fresh body for every request. */
-function cannon(port: number, path: string, bodies: Buffer[], tokens: string[], span: { seconds: number } | { amount: number }, onBody?: (status: number, body: string) => void): Promise<CannonResult & { used: number }> {
-  let next = 0
-  let nextToken = 0
-  let instance: any
-  const request = {
-    method: 'POST', path,
-    // autocannon deep-copies the options per connection, so this object is each connection's own
-    conn: {} as { token?: string },
-    setupRequest(req: any) {
-      req.conn.token ??= tokens[nextToken++ % tokens.length]
-      if (next >= bodies.length) { instance?.stop(); next = 0; say('WARNING: bodies ran out; stopping early') }
-      const body = bodies[next++]!
-      return { ...req, body, headers: { 'content-type': 'application/json', authorization: `Bearer ${req.conn.token}` } }
-    },
-    ...(onBody ? { onResponse: (status: number, body: string) => onBody(status, body) } : {}),
-  }
-  return new Promise((done, fail) => {
-    const length = 'amount' in span ? { amount: span.amount } : { duration: span.seconds }
-    instance = autocannon({ url: `http://${HOST}:${port}`, connections: CONNECTIONS, ...length, timeout: 120, requests: [request] }, (err: Error | null, r: CannonResult) => {
-      if (err) fail(err)
-      else done({ ...r, used: next })
-    })
-  })
 }
 
 // ---- yardsticks ----------------------------------------------------------------------------------
@@ -261,6 +231,20 @@ async function drained(knex: Knex): Promise<{ runs: number; seconds: number }> {
   return { runs, seconds: (performance.now() - t0) / 1000 }
 }
 
+/** The bench's lot and its 32 stations with a token each; returns the tokens. */
+async function benchStations(knex: Knex): Promise<string[]> {
+  const product = (await findProductByPart(knex, PART))!
+  await knex('lots').insert({ product_id: product.id, code: LOT, planned_qty: 100_000 })
+  const tokens: string[] = []
+  for (let s = 1; s <= CONNECTIONS; s++) {
+    const [id] = await knex('stations').insert({ name: `BENCH-${String(s).padStart(2, '0')}`, location: 'bench rack' })
+    const t = generateStationToken()
+    await knex('station_tokens').insert({ station_id: id, token_hash: t.hash, hint: t.hint })
+    tokens.push(t.token)
+  }
+  return tokens
+}
+
 // ---- main --------------------------------------------------------------------------------------
 
 async function questions(pool: mysql.Pool): Promise<number> {
@@ -289,16 +273,8 @@ async function main() {
   try {
     const product = (await findProductByPart(knex, PART))!
     const revision = revisionAt(await listEffectiveRevisions(knex, product.id), new Date())!
-    const [lotId] = await knex('lots').insert({ product_id: product.id, code: LOT, planned_qty: 100_000 })
-    const tokens: string[] = []
-    const stationIds: number[] = []
-    for (let s = 1; s <= CONNECTIONS; s++) {
-      const [id] = await knex('stations').insert({ name: `BENCH-${String(s).padStart(2, '0')}`, location: 'bench rack' })
-      const t = generateStationToken()
-      await knex('station_tokens').insert({ station_id: id, token_hash: t.hash, hint: t.hint })
-      tokens.push(t.token)
-      stationIds.push(id!)
-    }
+    const tokens = await benchStations(knex)
+    const lotId = (await knex('lots').where({ code: LOT }).first('id')).id as number
     // the bench stations hold no instruments: every run is judged at the current history version with no links
     const yardstickStations = async (prefix: string) => {
       const ids: number[] = []
@@ -415,6 +391,14 @@ async function main() {
       non2xx: b.non2xx + refused, rawRunsPerSec: round(rawBatch), ratio: round(batchPerSec / rawBatch, 3),
       minimalRawRunsPerSec: round(minimal), minimalRatio: round(batchPerSec / minimal, 3), flushLogAtTrxCommit,
     }) + '\n')
+    if (process.argv.includes('--cluster')) {
+      // the single node's server and pools go first: the cluster's nodes and instances share the same two cores
+      await stopServer()
+      await clusterStages({
+        database: DATABASE, seconds: SECONDS, connections: CONNECTIONS, batch: BATCH, rounds,
+        singleBodies: singleBuffers, batchBodies, stations: benchStations,
+      }, { runsPerSec, batchPerSec })
+    }
   } finally {
     await stopServer()
     await pool.end()

@@ -23,16 +23,32 @@ const free = await new Promise((done) => {
 })
 if (!free) fail(`port ${port} on ${host} is already in use; set PORT to a free port (e.g. PORT=3100 npm start).`)
 
-const db = await prepareDatabase(env, env.TERCET_DB_NAME || 'tercet')
+// TERCET_CLUSTER=1: the three-node Galera cluster and two instances behind HAProxy instead of one of each
+const clustered = env.TERCET_CLUSTER === '1'
+const cluster = clustered ? (await import('./lib/cluster.mjs')).galeraCluster() : undefined
+if (cluster) env.TERCET_DB_PORT = String(cluster.sqlPort)
+const db = await prepareDatabase(env, env.TERCET_DB_NAME || 'tercet', { server: cluster })
 buildIfChanged()
 // without TERCET_SMTP_HOST, mail goes to the local catcher (stopped with this process; see the Outbox page)
 const mail = await startMailFakeIfNeeded(env, env.TERCET_DB_NAME || 'tercet')
 
 const signIns = JSON.parse(readFileSync(resolve(root, 'fixtures/demo-sign-ins.json'), 'utf8'))
-const server = spawnChild(process.execPath, [resolve(root, '.output/server/index.mjs')], {
+const server = clustered ? await startClusterApps() : spawnChild(process.execPath, [resolve(root, '.output/server/index.mjs')], {
   cwd: root,
   env: { ...serverEnv(env, db), ...mail.env, PORT: String(port), HOST: host, NODE_ENV: 'production' },
 })
+
+/** Two instances on the next ports, HAProxy's HTTP address on PORT; the returned handle stops them all. */
+async function startClusterApps() {
+  const { startInstance } = await import('./lib/cluster-apps.mjs')
+  const ports = [port + 1, port + 2]
+  const children = await Promise.all(ports.map((p) => startInstance({ ...serverEnv(env, db), ...mail.env }, p)))
+  cluster.startHaproxy({ http: { host, port, backends: ports } })
+  log(`two instances on ports ${ports.join(' and ')} behind HAProxy; "npm run cluster:down" stops the cluster and HAProxy`)
+  let left = children.length
+  const handle = { kill: (sig) => children.forEach((c) => c.kill(sig)), on: (_e, fn) => children.forEach((c) => c.on('exit', () => { if (--left === 0) fn(0) })) }
+  return handle
+}
 setTimeout(() => {
   log(`Tercet is serving at http://${host}:${port}`)
   log(`demo sign-ins, password "${signIns.password}": ${signIns.accounts.join(', ')}`)
