@@ -199,7 +199,7 @@ export function galeraCluster({ base = resolve(dataDir, 'cluster'), portBase = N
       '  timeout connect 2s',
       '  timeout client 1h',
       '  timeout server 1h',
-      '  timeout check 3s',
+      '  timeout check 6s',
       '',
       'listen mariadb',
       `  bind 127.0.0.1:${sqlPort}`,
@@ -211,7 +211,9 @@ export function galeraCluster({ base = resolve(dataDir, 'cluster'), portBase = N
       // to the next, and stays there after the first comes back
       '  stick-table type integer size 1',
       '  stick on int(1)',
-      '  default-server inter 1s fall 2 rise 2 on-marked-down shutdown-sessions',
+      // a killed node refuses at once and is out within about 3 s; a node merely slow to answer its check under load is
+      // given three chances of up to 6 s before its connections are cut
+      '  default-server inter 1s fall 3 rise 2 on-marked-down shutdown-sessions',
       ...nodes.map((n) => `  server node${n.i} 127.0.0.1:${n.port} check${n.i === 1 ? '' : ' backup'}`),
     ]
     if (http) {
