@@ -24,6 +24,9 @@ const READER_WAIT_SECONDS = 5
 // larger ones are left to the background fold
 const READER_REPAIR_VALUES = 20_000
 const LOTS_PER_PASS = 50
+// repairs of one slice stop after reading this many values (a few groups of a large lot, well under a second), so
+// the background holds a lot's lease only briefly and readers asking meanwhile wait little
+const REPAIR_VALUES_PER_SLICE = 200_000
 
 const keyText = (k: ParamRowKey) => `${k.step}\u0000${k.name}\u0000${k.qualifier}\u0000${k.revisionId}\u0000${k.stationId}`
 
@@ -75,12 +78,12 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, maxRepair
     await rebuildMarkedBins(trx, rebuiltMarks)
     // once the last slice is in (not after every slice), late values' moving ranges and drift sums are taken again
     const last = runIds.length < RUNS_PER_FOLD
-    const repaired = last ? await repairQueuedGroups(trx, lotId, maxRepairValues) : 0
-    if (!runIds.length && !rebuilt && !repaired) return { folded: 0, more: false }
+    const repairs = last ? await repairQueuedGroups(trx, lotId, maxRepairValues, REPAIR_VALUES_PER_SLICE) : { repaired: 0, more: false }
+    if (!runIds.length && !rebuilt && !repairs.repaired) return { folded: 0, more: false }
     // the product's alert rules look at the new results; last, so the product's mark row is held only until commit
     if (runIds.length || rebuilt) await markProductOfLot(trx, lotId)
     await markFolded(trx, lotId)
-    return { folded: runIds.length, more: !last }
+    return { folded: runIds.length, more: !last || repairs.more }
   })
 }
 

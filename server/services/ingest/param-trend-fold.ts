@@ -71,15 +71,22 @@ async function repairGroup(trx: Knex.Transaction, g: TrendGroup): Promise<void> 
   await forgetRepair(trx, g)
 }
 
-/** Repairs the lot's queued groups of at most `maxValues` values each; returns how many it repaired. */
-export async function repairQueuedGroups(trx: Knex.Transaction, lotId: number, maxValues: number): Promise<number> {
+/**
+ * Repairs the lot's queued groups of at most `maxValues` values each, and stops once it has read `budget` values (after
+ * at least one group), so that one transaction, and the lot's lease, is held for a bounded time; returns how many it
+ * repaired and whether repairs it may do are left for the next slice.
+ */
+export async function repairQueuedGroups(trx: Knex.Transaction, lotId: number, maxValues: number, budget: number): Promise<{ repaired: number; more: boolean }> {
   let repaired = 0
+  let read = 0
   for (const g of await queuedRepairs(trx, lotId)) {
     if (g.values > maxValues) continue
+    if (repaired > 0 && read + g.values > budget) return { repaired, more: true }
     await repairGroup(trx, g)
+    read += g.values
     repaired++
   }
-  return repaired
+  return { repaired, more: false }
 }
 
 /**
