@@ -1,5 +1,6 @@
 import type { Knex } from 'knex'
 import type { CalibrationSpan, HoldingSpan } from '../../../shared/utils/calibration-history'
+import { causalRows } from '../causal-read'
 
 export type InstrumentRow = { id: number; assetNumber: string; kind: string; model: string; serial: string; createdAt: Date }
 export type HoldingRow = HoldingSpan & { id: number }
@@ -21,6 +22,12 @@ const span = (r: any): CalibrationSpan => ({ id: r.id, instrumentId: r.instrumen
 export async function readHistoryVersion(db: Knex): Promise<number> {
   const [rows] = await db.raw('SELECT version FROM calibration_history_version WHERE id = 1')
   return Number(rows[0].version)
+}
+
+/** The same as a causal read on a cluster, for the per-process cache of in-force.ts (outside any transaction). */
+export async function readHistoryVersionCausal(db: Knex): Promise<number> {
+  const [row] = await causalRows<{ version: number | string }>(db, 'SELECT version FROM calibration_history_version WHERE id = 1')
+  return Number(row!.version)
 }
 
 /**

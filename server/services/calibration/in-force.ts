@@ -2,7 +2,7 @@
 // per-process cache that the database invalidates.
 import type { Knex } from 'knex'
 import { instrumentsHeldAt, judgeInstruments, type CalibrationDecision, type CalibrationSpan, type HoldingSpan } from '../../../shared/utils/calibration-history'
-import { holdingsOfStations, instrumentsByAsset, readHistoryVersion, spansOfInstruments } from '../../database/repositories/calibration'
+import { holdingsOfStations, instrumentsByAsset, readHistoryVersionCausal, spansOfInstruments } from '../../database/repositories/calibration'
 import { RunRejected } from '../ingest/judge-run'
 
 /** What a run write records: the decision, the history version it was made at, and whether the station named the instruments. */
@@ -67,7 +67,7 @@ let versionRead: { at: number; value: Promise<number> } | undefined
 function historyVersion(db: Knex): Promise<number> {
   const now = Date.now()
   if (versionRead && now - versionRead.at < VERSION_FRESH_MS) return versionRead.value
-  const value = readHistoryVersion(db)
+  const value = readHistoryVersionCausal(db)
   versionRead = { at: now, value }
   value.catch(() => { if (versionRead?.value === value) versionRead = undefined })
   return value
