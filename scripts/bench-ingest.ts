@@ -20,7 +20,7 @@ import { loadavg } from 'node:os'
 import { resolve } from 'node:path'
 import mysql from 'mysql2/promise'
 import { dataDir, dbSettings, loadEnv, serverEnv } from './lib/env.mjs'
-import { cannon } from './lib/bench-cannon'
+import { batchTally, cannon } from './lib/bench-cannon'
 import { clusterStages } from './lib/bench-cluster'
 import { HOST, builtEntry, cpuTimes, databasePid, freePort, prepareBenchDatabase, startBuiltServer, stopChild, waitHealthy } from './lib/bench-server'
 import { createKnex } from '../server/database/connection'
@@ -368,18 +368,12 @@ async function main() {
     }) + '\n')
 
     say(`POST /api/v1/runs/batch: ${BATCH} runs per request, ${CONNECTIONS} connections…`)
-    let stored = 0
-    let refused = 0
+    const tally = batchTally()
     // a batch answers only when all its runs are in, so the length is a number of requests worth
     // about the same time as the single-run stage (at least one per connection) rather than a duration
     const rounds = Math.max(1, Math.min(Math.floor(batchBodies.length / CONNECTIONS), Math.round((runsPerSec * SECONDS) / (BATCH * CONNECTIONS))))
-    const b = await cannon(port, '/api/v1/runs/batch', batchBodies, tokens, { amount: rounds * CONNECTIONS }, (status, body) => {
-      if (status !== 200) return
-      for (const m of body.matchAll(/"status":(\d{3})/g)) {
-        if (m[1] === '201' || m[1] === '200') stored++
-        else refused++
-      }
-    })
+    const b = await cannon(port, '/api/v1/runs/batch', batchBodies, tokens, { amount: rounds * CONNECTIONS }, tally.onBody)
+    const { stored, refused } = tally
     const bDrain = await drained(knex)
     const batchPerSec = stored / (b.duration + bDrain.seconds)
     say(`  ${stored} runs stored in ${b['2xx']} requests (${bDrain.runs} left to fold, in ${round(bDrain.seconds, 2)} s), ${refused} runs refused inside batches`)

@@ -35,3 +35,15 @@ export function cannon(port: number, path: string, bodies: Buffer[], tokens: str
     })
   })
 }
+
+/** Counts the runs a batch answer says were stored (201 new, 200 replayed) and refused; for cannon's onBody. */
+export function batchTally(): { stored: number; refused: number; onBody: (status: number, body: string) => void } {
+  const t = {
+    stored: 0, refused: 0,
+    onBody(status: number, body: string) {
+      if (status !== 200) return
+      for (const m of body.matchAll(/"status":(\d{3})/g)) { if (m[1] === '201' || m[1] === '200') t.stored++; else t.refused++ }
+    },
+  }
+  return t
+}

@@ -9,7 +9,7 @@ import type { Knex } from 'knex'
 import { dataDir, dbSettings, loadEnv, serverEnv } from './env.mjs'
 import { galeraCluster } from './cluster.mjs'
 import { startInstance } from './cluster-apps.mjs'
-import { cannon } from './bench-cannon'
+import { batchTally, cannon } from './bench-cannon'
 import { HOST, cpuTimes, freePort, prepareBenchDatabase, stopChild } from './bench-server'
 import { createKnex } from '../../server/database/connection'
 import { foldPendingStats } from '../../server/services/ingest/fold-param-stats'
@@ -70,13 +70,10 @@ export async function clusterStages(o: ClusterBench, single: SingleNode): Promis
     }) + '\n')
 
     say(`cluster: POST /api/v1/runs/batch, ${o.batch} runs per request…`)
-    let stored = 0
-    let refused = 0
+    const tally = batchTally()
     const b0 = sample()
-    const b = await cannon(httpPort, '/api/v1/runs/batch', o.batchBodies, tokens, { amount: o.rounds * o.connections }, (status, body) => {
-      if (status !== 200) return
-      for (const m of body.matchAll(/"status":(\d{3})/g)) { if (m[1] === '201' || m[1] === '200') stored++; else refused++ }
-    }, o.connections)
+    const b = await cannon(httpPort, '/api/v1/runs/batch', o.batchBodies, tokens, { amount: o.rounds * o.connections }, tally.onBody, o.connections)
+    const { stored, refused } = tally
     const bDrain = await drain()
     const b1 = sample()
     const batchPerSec = stored / (b.duration + bDrain)

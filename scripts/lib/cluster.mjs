@@ -7,7 +7,7 @@ import { spawn, spawnSync } from 'node:child_process'
 import { dataDir, root } from './env.mjs'
 import { ensureDebianFile, ensureDebianPackage } from './deps.mjs'
 import { log, fail as failAndExit } from './run.mjs'
-import { commitSetting } from './mariadb.mjs'
+import { commitSetting, databaseStatements } from './mariadb.mjs'
 
 const PROVIDER = '/usr/lib/galera/libgalera_smm.so'
 export const NODES = 3
@@ -282,20 +282,10 @@ export function galeraCluster({ base = resolve(dataDir, 'cluster'), portBase = N
   }
 
   /** The database and its app user, created through the first synced node (the cluster replicates both). */
-  function ensureDatabase({ database, user, password }, { recreate = false } = {}) {
-    if (!/^[a-z_][a-z0-9_]*$/.test(database)) return fail(`bad identifier ${database}`)
-    const q = (s) => `'${String(s).replace(/\\/g, '\\\\').replace(/'/g, "\\'")}'`
+  function ensureDatabase(settings, { recreate = false } = {}) {
     const n = nodes.find((x) => nodeStatus(x)?.synced)
     if (!n) return fail('no synced node of the cluster answers')
-    sqlOn(n, [
-      recreate ? `DROP DATABASE IF EXISTS \`${database}\`;` : '',
-      `CREATE DATABASE IF NOT EXISTS \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;`,
-      `CREATE USER IF NOT EXISTS ${q(user)}@'127.0.0.1' IDENTIFIED BY ${q(password)};`,
-      `ALTER USER ${q(user)}@'127.0.0.1' IDENTIFIED BY ${q(password)};`,
-      `GRANT ALL PRIVILEGES ON \`${database}\`.* TO ${q(user)}@'127.0.0.1';`,
-      `GRANT ALL PRIVILEGES ON \`${database.split('_')[0]}\\_%\`.* TO ${q(user)}@'127.0.0.1';`,
-      'FLUSH PRIVILEGES;',
-    ].join(' '))
+    sqlOn(n, databaseStatements(settings, { recreate, fail }))
   }
 
   return {

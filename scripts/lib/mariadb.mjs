@@ -29,6 +29,25 @@ const ident = (s, fail) => { if (!/^[a-z_][a-z0-9_]*$/.test(s)) fail(`bad identi
 const quote = (s) => `'${String(s).replace(/\\/g, '\\\\').replace(/'/g, "\\'")}'`
 
 /**
+ * The statements that create (or, with recreate, drop and create) a database and its application user with its
+ * grants; the same for the project's server and for a cluster node.
+ */
+export function databaseStatements({ database, user, password }, { recreate = false, fail = failAndExit } = {}) {
+  const db = ident(database, fail)
+  const u = quote(user)
+  return [
+    recreate ? `DROP DATABASE IF EXISTS \`${db}\`;` : '',
+    `CREATE DATABASE IF NOT EXISTS \`${db}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;`,
+    `CREATE USER IF NOT EXISTS ${u}@'127.0.0.1' IDENTIFIED BY ${quote(password)};`,
+    `ALTER USER ${u}@'127.0.0.1' IDENTIFIED BY ${quote(password)};`,
+    `GRANT ALL PRIVILEGES ON \`${db}\`.* TO ${u}@'127.0.0.1';`,
+    // bench and test databases share the prefix; the app user may create and drop them
+    `GRANT ALL PRIVILEGES ON \`${db.split('_')[0]}\\_%\`.* TO ${u}@'127.0.0.1';`,
+    'FLUSH PRIVILEGES;',
+  ].join(' ')
+}
+
+/**
  * A MariaDB server with its data, socket, pid file and error log under `base` (default .data/mariadb, the one
  * npm start and npm test use). Tests that stop or kill their database run their own under another folder and port.
  * `fail` reports a problem: by default it prints and exits, as the scripts want; a test passes one that throws.
@@ -104,19 +123,8 @@ export function mariadbInstance({ base = resolve(dataDir, 'mariadb'), fail = fai
   }
 
   /** Creates (or, with recreate, drops and creates) a database and grants the application user on it. */
-  function ensureDatabase({ database, user, password }, { recreate = false } = {}) {
-    const db = ident(database, fail)
-    const u = quote(user)
-    sql([
-      recreate ? `DROP DATABASE IF EXISTS \`${db}\`;` : '',
-      `CREATE DATABASE IF NOT EXISTS \`${db}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;`,
-      `CREATE USER IF NOT EXISTS ${u}@'127.0.0.1' IDENTIFIED BY ${quote(password)};`,
-      `ALTER USER ${u}@'127.0.0.1' IDENTIFIED BY ${quote(password)};`,
-      `GRANT ALL PRIVILEGES ON \`${db}\`.* TO ${u}@'127.0.0.1';`,
-      // bench and test databases share the prefix; the app user may create and drop them
-      `GRANT ALL PRIVILEGES ON \`${db.split('_')[0]}\\_%\`.* TO ${u}@'127.0.0.1';`,
-      'FLUSH PRIVILEGES;',
-    ].join(' '))
+  function ensureDatabase(settings, { recreate = false } = {}) {
+    sql(databaseStatements(settings, { recreate, fail }))
   }
 
   return { base, socket, errLog, isRunning, startMariadb, stopMariadb, ensureDatabase, pid, sql }

@@ -7,6 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 // @ts-expect-error plain ES module without types
 import { startInstance } from '../../scripts/lib/cluster-apps.mjs'
 import { freePort } from '../reliability/faults/rig'
+import { outputPowerRun } from '../support/stations'
 import { startClusterRig, type ClusterRig } from './rig'
 
 let rig: ClusterRig
@@ -50,14 +51,6 @@ async function signIn(base: string, email: string, password = signIns.password):
   return r.cookie
 }
 
-function run(part: string, lot: string, at: number, power: number) {
-  return {
-    id: randomUUID(), serial: `${part}-${randomUUID().slice(0, 8)}`, partNumber: part, lot, step: 'final',
-    startedAt: new Date(at).toISOString(), finishedAt: new Date(at + 500).toISOString(),
-    measurements: [{ name: 'output_power', value: power, unit: 'dBm' }],
-  }
-}
-
 describe('two instances on two nodes of the cluster', () => {
   it('refuses through B a station token revoked through A, at the very next request', async () => {
     const admin = await signIn(A, 'admin@tercet.test')
@@ -86,11 +79,11 @@ describe('two instances on two nodes of the cluster', () => {
       return new Date(ok.body.effectiveAt).getTime()
     }
     const first = await approve(8, 12)
-    const before = await call(B, 'POST', '/api/v1/runs', { token, body: run(part, `${part}-L1`, first + 10, 12.5) })
+    const before = await call(B, 'POST', '/api/v1/runs', { token, body: outputPowerRun(part, `${part}-L1`, first + 10, 12.5) })
     expect(before.status, JSON.stringify(before.body)).toBe(201)
     expect([before.body.revision, before.body.verdict]).toEqual([1, 'fail'])
     const second = await approve(10.5, 13)
-    const after = await call(B, 'POST', '/api/v1/runs', { token, body: run(part, `${part}-L1`, second + 10, 12.5) })
+    const after = await call(B, 'POST', '/api/v1/runs', { token, body: outputPowerRun(part, `${part}-L1`, second + 10, 12.5) })
     expect(after.status, JSON.stringify(after.body)).toBe(201)
     expect([after.body.revision, after.body.verdict]).toEqual([2, 'pass'])
   })

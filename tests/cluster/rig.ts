@@ -15,7 +15,7 @@ import { prepareDatabase } from '../../scripts/lib/database.mjs'
 // @ts-expect-error plain ES module without types
 import { startInstance } from '../../scripts/lib/cluster-apps.mjs'
 import { startMailFake } from '../../scripts/lib/mail-fake.mjs'
-import { freePort, sleep } from '../reliability/faults/rig'
+import { freePort, killAndWait, sleep } from '../reliability/faults/rig'
 
 export { sleep }
 
@@ -65,13 +65,7 @@ export async function startClusterRig(): Promise<ClusterRig> {
         child = await startInstance({ ...sEnv, ...mailEnv }, port, { stdio: ['ignore', 'ignore', 'pipe'] })
         child!.stderr!.on('data', (b: Buffer) => err.push(...b.toString('utf8').split('\n').filter(Boolean)))
       },
-      async kill() {
-        const c = child
-        if (!c || c.exitCode !== null || c.signalCode) return
-        const gone = new Promise((r) => c.once('exit', r))
-        c.kill('SIGKILL')
-        await gone
-      },
+      kill: () => killAndWait(child),
     }
     await inst.start()
     instances.push(inst)

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { baseUrl, call, freshAddress, signIn } from '../support/http'
 import { newUser } from '../support/accounts'
 import { startSecondServer } from '../support/second-server'
-import { tripleRun } from '../support/stations'
+import { outputPowerRun, tripleRun } from '../support/stations'
 
 // Two app instances on one database (A: the suite's server, B: a second built server). Each keeps per-process caches
 // of station tokens, products and limits; a change made through A must hold through B at B's very next request,
@@ -28,15 +28,6 @@ async function callB(method: string, path: string, opts: { body?: unknown; token
   const r = await fetch(B.url + path, { method, headers, body: opts.body === undefined ? undefined : JSON.stringify(opts.body) })
   const text = await r.text()
   return { status: r.status, body: text ? JSON.parse(text) : null }
-}
-
-/** A final-step run of a one-step doubler with the given output power, started at `at`. */
-function run(part: string, lot: string, at: number, power: number) {
-  return {
-    id: randomUUID(), serial: `${part}-${randomUUID().slice(0, 8)}`, partNumber: part, lot, step: 'final',
-    startedAt: new Date(at).toISOString(), finishedAt: new Date(at + 500).toISOString(),
-    measurements: [{ name: 'output_power', value: power, unit: 'dBm' }],
-  }
 }
 
 async function approve(part: string, power: { lsl: number; usl: number }, effectiveAt?: string): Promise<{ effectiveAt: number; revision: number }> {
@@ -76,21 +67,21 @@ describe('two app instances on one database', () => {
     const part = `XI${Date.now().toString(36).slice(-5)}`
     const lot = `${part}-L1`
     // B learns that the part does not exist (and may keep that)
-    const unknown = await callB('POST', '/api/v1/runs', { token, body: run(part, lot, Date.now() - 60_000, 10) })
+    const unknown = await callB('POST', '/api/v1/runs', { token, body: outputPowerRun(part, lot, Date.now() - 60_000, 10) })
     expect(unknown.status).toBe(422)
     expect(unknown.body.errors.map((e: { pointer: string }) => e.pointer)).toContain('/partNumber')
     const created = await call('POST', '/api/products', { cookie: engineer, body: { partNumber: part, name: 'Two-instance doubler', multiplier: 2, inputHz: 50e6, steps: ['final'] } })
     expect(created.status, JSON.stringify(created.body)).toBe(201)
     const rev1 = await approve(part, { lsl: 8, usl: 12 })
     // 12.5 dBm fails revision 1 (8–12 dBm): B judges by revision 1 and keeps the limits
-    const before = await callB('POST', '/api/v1/runs', { token, body: run(part, lot, rev1.effectiveAt + 10, 12.5) })
+    const before = await callB('POST', '/api/v1/runs', { token, body: outputPowerRun(part, lot, rev1.effectiveAt + 10, 12.5) })
     expect(before.status, JSON.stringify(before.body)).toBe(201)
     expect(before.body.revision).toBe(1)
     expect(before.body.verdict).toBe('fail')
     // revision 2 (10.5–13 dBm) approved through A, in force from now
     const rev2 = await approve(part, { lsl: 10.5, usl: 13 })
     expect(rev2.revision).toBe(2)
-    const after = await callB('POST', '/api/v1/runs', { token, body: run(part, lot, rev2.effectiveAt + 10, 12.5) })
+    const after = await callB('POST', '/api/v1/runs', { token, body: outputPowerRun(part, lot, rev2.effectiveAt + 10, 12.5) })
     expect(after.status, JSON.stringify(after.body)).toBe(201)
     expect(after.body.revision).toBe(2)
     expect(after.body.verdict).toBe('pass')

@@ -42,3 +42,12 @@ export function tripleRun(overrides: Record<string, unknown> = {}) {
     ...overrides,
   }
 }
+
+/** A final-step run of a one-step part with only its output power, started at `at` (ms), a new serial each time. */
+export function outputPowerRun(part: string, lot: string, at: number, power: number) {
+  return {
+    id: randomUUID(), serial: `${part}-${randomUUID().slice(0, 8)}`, partNumber: part, lot, step: 'final',
+    startedAt: new Date(at).toISOString(), finishedAt: new Date(at + 500).toISOString(),
+    measurements: [{ name: 'output_power', value: power, unit: 'dBm' }],
+  }
+}

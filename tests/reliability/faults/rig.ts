@@ -26,6 +26,14 @@ export function freePort(): Promise<number> {
   })
 }
 
+/** SIGKILL of a child process still running; resolves once it has exited. */
+export async function killAndWait(c: ChildProcess | undefined): Promise<void> {
+  if (!c || c.exitCode !== null || c.signalCode) return
+  const gone = new Promise((r) => c.once('exit', r))
+  c.kill('SIGKILL')
+  await gone
+}
+
 export type App = {
   url: string
   /** every line the server wrote, stdout and stderr apart */
@@ -104,13 +112,7 @@ export async function startRig(appEnv: Record<string, string> = {}): Promise<Rig
       await Promise.race([gone, sleep(15_000)])
       if (c.exitCode === null && !c.signalCode) { c.kill('SIGKILL'); await gone }
     },
-    async kill() {
-      const c = child
-      if (!c || c.exitCode !== null || c.signalCode) return
-      const gone = new Promise((r) => c.once('exit', r))
-      c.kill('SIGKILL')
-      await gone
-    },
+    kill: () => killAndWait(child),
   }
   await app.start()
 
