@@ -38,7 +38,12 @@ rmSync(report, { force: true })
 const r = spawnSync(resolve(root, 'node_modules/.bin/vitest'), ['run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...process.argv.slice(2)], {
   cwd: root,
   stdio: 'inherit',
-  env: { ...serverEnv(env, db), ...mail.env, TERCET_MAIL_BACKOFF_MS: env.TERCET_MAIL_BACKOFF_MS || '1000', TERCET_TEST_TOKENS: tokenFile, NODE_ENV: 'test' },
+  // readers wait for a fold of their lot in progress as long as a busy CI machine may take, so figures read right
+  // after posting are complete; the integration tests of the lease set their own wait
+  env: {
+    ...serverEnv(env, db), ...mail.env, TERCET_MAIL_BACKOFF_MS: env.TERCET_MAIL_BACKOFF_MS || '1000', TERCET_TEST_TOKENS: tokenFile, NODE_ENV: 'test',
+    TERCET_READER_FOLD_WAIT_MS: env.TERCET_READER_FOLD_WAIT_MS || '5000',
+  },
 })
 if (existsSync(report)) {
   const j = JSON.parse(readFileSync(report, 'utf8'))

@@ -17,9 +17,16 @@ import { lotBacklog, rebuildSize, smallRepairsWaiting, type LotBacklog } from '.
 import { writeTransaction } from '../../database/write-retries'
 
 const RUNS_PER_FOLD = 500
-// a reader waits this long for a fold of its lot in progress (a slice of 500 runs takes well under a second), then
-// reads the rows as they are and says what they do not include yet
-const READER_WAIT_SECONDS = 5
+// a reader tries its lot's lease for this long (TERCET_READER_FOLD_WAIT_MS), then reads the rows as they stand and
+// says what they leave out: a view never queues behind a long background slice. The lease is tried without waiting
+// (SKIP LOCKED) every READER_RETRY_MS, because a lock wait can only be set in whole seconds.
+const READER_WAIT_MS = 250
+const READER_RETRY_MS = 20
+// a reader folds at most this many queued runs itself; a longer queue (after a bulk load or an outage) is left to
+// the background, and the view says how many runs its figures leave out
+const READER_MAX_RUNS = 2_000
+// a fold asked for outside a view (tests, tools) waits this long for one in progress
+const ASKED_WAIT_SECONDS = 5
 // a reader rebuilds or repairs a group itself only up to this many values (one index range, some tens of ms);
 // larger ones are left to the background fold
 const READER_REPAIR_VALUES = 20_000
@@ -87,16 +94,39 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, maxRepair
   })
 }
 
-/** Folds one lot's queue; a background fold gives way when another fold of the lot is running. */
-async function foldLot(db: Knex, lotId: number, background: boolean, upTo?: number): Promise<number | 'busy'> {
+/**
+ * Folds one lot's whole queue: a background fold gives way when another fold of the lot is running; a fold asked for
+ * (tests, tools) waits up to ASKED_WAIT_SECONDS for it.
+ */
+async function foldLot(db: Knex, lotId: number, background: boolean): Promise<number | 'busy'> {
   let total = 0
   for (;;) {
     // two folds of one lot on two cluster nodes conflict at commit; writeTransaction runs the loser again
-    const slice = await foldSlice(db, lotId, background ? 0 : READER_WAIT_SECONDS, background ? Infinity : READER_REPAIR_VALUES, upTo)
+    const slice = await foldSlice(db, lotId, background ? 0 : ASKED_WAIT_SECONDS, background ? Infinity : READER_REPAIR_VALUES)
     if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
     if (slice === 'busy') return total || 'busy'
     total += slice.folded
     if (!slice.more) return total
+  }
+}
+
+/**
+ * A reader's fold: runs queued up to `upTo`, and small rebuilds and repairs. It tries the lease until `waitMs` has
+ * passed and stops after READER_MAX_RUNS runs; what it leaves is the background's.
+ */
+async function foldLotForReader(db: Knex, lotId: number, upTo: number, waitMs: number): Promise<void> {
+  const giveUpAt = Date.now() + waitMs
+  let total = 0
+  for (;;) {
+    const slice = await foldSlice(db, lotId, 0, READER_REPAIR_VALUES, upTo)
+    if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
+    if (slice === 'busy') {
+      if (Date.now() >= giveUpAt) return
+      await new Promise((r) => setTimeout(r, READER_RETRY_MS))
+      continue
+    }
+    total += slice.folded
+    if (!slice.more || total >= READER_MAX_RUNS) return
   }
 }
 
@@ -114,24 +144,30 @@ export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; back
   return total
 }
 
+/** How long a reader tries its lot's lease (TERCET_READER_FOLD_WAIT_MS, default READER_WAIT_MS). */
+export function readerWaitMs(): number {
+  const n = Number(process.env.TERCET_READER_FOLD_WAIT_MS)
+  return Number.isFinite(n) && n >= 0 ? n : READER_WAIT_MS
+}
+
 /**
  * Brings the lots' parameter rows up to date before a reader reads them: runs queued so far are folded in, and rows
  * a late run left for a rebuild or a repair are recomputed when small. A reader folds at most what was queued when it
- * asked, waits at most READER_WAIT_SECONDS on a fold in progress, and leaves large rebuilds and repairs to the
- * background: it answers with what its lot's rows do not include yet, so the view can say so.
+ * asked (and at most READER_MAX_RUNS runs), tries its lot's lease for `waitMs` at most, and leaves large rebuilds
+ * and repairs to the background: it answers with what its lot's rows do not include yet, so the view can say so.
  */
-export async function freshenLotStats(db: Knex, lotIds: number[]): Promise<LotBacklog[]> {
+export async function freshenLotStats(db: Knex, lotIds: number[], waitMs = readerWaitMs()): Promise<LotBacklog[]> {
   const asked = new Date()
   const result: LotBacklog[] = []
   for (const lotId of lotIds) {
     const before = await lotBacklog(db, lotId, asked)
-    // nothing queued and nothing small enough for a reader: the background has it, no need to wait on the lease
+    // nothing queued and nothing small enough for a reader: the background has it, no need to try the lease
     if (!before.runs && !(await smallRepairsWaiting(db, lotId, READER_REPAIR_VALUES))) { result.push(before); continue }
     try {
       // what was queued when the reader asked, not what keeps arriving while it folds
-      await foldLot(db, lotId, false, before.upTo ?? 0)
+      await foldLotForReader(db, lotId, before.upTo ?? 0, waitMs)
     } catch (e: any) {
-      // a fold of the lot holds its lease for longer: the rows are read as they are
+      // a row lock other than the lease held past the lock wait: the rows are read as they are
       if (e?.code !== 'ER_LOCK_WAIT_TIMEOUT') throw e
     }
     result.push(await lotBacklog(db, lotId, asked, before.upTo))
