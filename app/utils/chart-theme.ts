@@ -262,15 +262,23 @@ export function niceSpan(values: (number | null | undefined)[], ticks = 6, pad =
 }
 
 /**
- * An axis of units in test order 1…n on round ticks, from 0 to a tick past n, so the first and last points sit
- * inside the plot with air around their markers.
+ * An axis of units in test order `first`…`last` (1-based) on round ticks, from a tick before the first to a tick past
+ * the last, so the end points sit inside the plot with air around their markers. A whole lot starts at 0; the last
+ * units of a large lot get an axis of their own stretch, not one from 0 with them crowded at its far end.
  */
-export function indexSpan(n: number, ticks = 10): { min: number; max: number; tickAmount: number } {
+export function indexSpan(last: number, first = 1, ticks = 10): { min: number; max: number; tickAmount: number } {
   const whole = (raw: number) => Math.max(1, Math.floor(niceStep(raw))) // units are counted: no tick at 2.5
-  const coarse = whole(Math.max(n, 1) / ticks)
+  const coarse = whole(Math.max(last - first + 1, 1) / ticks)
   const fine = whole(coarse / 2.5)
+  const start = (step: number) => Math.floor((first - 0.5) / step) * step
+  const end = (step: number) => Math.ceil((last + 0.5) / step) * step
+  const width = (step: number) => end(step) - start(step)
   // the finer step when the coarse one would leave much of the plot empty past the last point (72 → 75, not 80)
-  const end = (step: number) => Math.ceil((n + 0.5) / step) * step
-  const step = end(fine) < end(coarse) && end(fine) / fine <= 16 ? fine : coarse
-  return { min: 0, max: end(step), tickAmount: Math.round(end(step) / step) }
+  const step = width(fine) < width(coarse) && width(fine) / fine <= 16 ? fine : coarse
+  return { min: start(step), max: end(step), tickAmount: Math.round(width(step) / step) }
+}
+
+/** indexSpan of chart points carrying their 0-based position in the lot's test order. */
+export function indexSpanOf(points: { index: number }[]): { min: number; max: number; tickAmount: number } {
+  return points.length ? indexSpan(points[points.length - 1]!.index + 1, points[0]!.index + 1) : indexSpan(1)
 }

@@ -11,9 +11,15 @@ const CAP_MS = 120_000
 const LOADS = 3
 
 const SUMMARY_DRAWN = () => !!document.querySelector('table[aria-label="Parameters"] tbody tr td')
-// a series path with a drawn outline in both charts: apexcharts writes `d` once the data are laid out
-const CHARTS_DRAWN = () => ['histogram-chart', 'individuals-chart'].every((t) =>
-  [...document.querySelectorAll(`[data-test="${t}"] .apexcharts-series path`)].some((p) => (p.getAttribute('d') ?? '').length > 20))
+// a series path with a drawn outline inside the plot of both charts: apexcharts writes `d` once the data are laid
+// out, and a series laid out on a wrong axis would have one too, off the plot
+const CHARTS_DRAWN = () => ['histogram-chart', 'individuals-chart'].every((t) => {
+  const plot = document.querySelector(`[data-test="${t}"] .apexcharts-grid`)?.getBoundingClientRect()
+  return !!plot && [...document.querySelectorAll(`[data-test="${t}"] .apexcharts-series path`)].some((p) => {
+    const r = p.getBoundingClientRect()
+    return (p.getAttribute('d') ?? '').length > 20 && r.right > plot.left && r.left < plot.right && r.width > plot.width / 4
+  })
+})
 
 const median = (xs: number[]) => { const s = [...xs].sort((a, b) => a - b); return s[Math.floor(s.length / 2)]! }
 

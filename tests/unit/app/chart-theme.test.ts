@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import tailwind from '../../../tailwind.config'
-import { indexSpan, INK, legendOf, limitLegend, MONO, SANS, seriesStyle, themed, yLimits, type Drawn } from '../../../app/utils/chart-theme'
+import { indexSpan, indexSpanOf, INK, legendOf, limitLegend, MONO, SANS, seriesStyle, themed, yLimits, type Drawn } from '../../../app/utils/chart-theme'
 
 const colours = tailwind.theme!.extend!.colors as Record<string, Record<string, string>>
 
@@ -64,5 +64,19 @@ describe('chart theme', () => {
       expect(s.tickAmount).toBeLessThanOrEqual(16)
     }
     expect(indexSpan(72).max).toBe(75)
+  })
+
+  it('gives the last points of a large lot an axis of their own stretch, not one from 0', () => {
+    // the last 2,000 of 374,068 units in test order (0-based positions 372,068 … 374,067)
+    const points = Array.from({ length: 2000 }, (_, i) => ({ index: 372_068 + i }))
+    const s = indexSpanOf(points)
+    const step = (s.max - s.min) / s.tickAmount
+    expect(s.min).toBeGreaterThan(370_000)
+    expect(s.min).toBeLessThan(372_069)
+    expect(s.max).toBeGreaterThan(374_068)
+    expect(s.max - s.min).toBeLessThan(3000)
+    expect(Number.isInteger(step)).toBe(true)
+    expect(s.tickAmount).toBeLessThanOrEqual(16)
+    expect(indexSpanOf(points.slice(0, 0))).toEqual(indexSpan(1))
   })
 })
