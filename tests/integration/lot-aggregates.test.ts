@@ -90,11 +90,11 @@ async function expectSummaryEqualsRecomputation(code: string, population: 'first
 }
 
 /** The drift sums of every parameter and revision, both populations, against a regression on the recomputed values. */
-async function expectDriftSumsEqualRecomputation(code: string) {
+async function expectDriftSumsEqualRecomputation(code: string, trends: Knex = db) {
   const lot = await db('lots').where({ code }).first('id')
   for (const all of [false, true]) {
     const groups = await recompute(!all, code)
-    const rows = await db('lot_param_trend').where({ lot_id: lot.id, all_attempts: all })
+    const rows = await trends('lot_param_trend').where({ lot_id: lot.id, all_attempts: all })
     expect(rows.length).toBe(groups.size)
     for (const r of rows) {
       const values = groups.get(`${r.step}|${r.name}|${r.qualifier}|${r.revision_id}`)!.all
@@ -258,6 +258,43 @@ describe('the queue of runs awaiting the fold', () => {
       return work(hold, lot.id)
     })
   }
+
+  it('puts values a few runs late in their place at fold time, leaving nothing to repair', async () => {
+    // two stations side by side: each posts in its own order, but one's runs arrive after later runs of the other
+    const late = `${code}-T`
+    const stations = await db('stations').whereIn('name', ['ATE-T3-01', 'ATE-T3-02']).orderBy('name').select('id', 'name')
+    const rand = mulberry32(77)
+    const base = Date.now() - 40 * 3_600_000
+    const post = async (u: number, station: { id: number; name: string }) => {
+      const v = validateRun(generateRun({ product: tripler, lot: late, serial: `${late}-${u}`, step: 'final', startedAt: new Date(base + u * 1000), rand, failRate: 0.1, withTrace: false }))
+      if (!v.ok) throw new Error(JSON.stringify(v.errors))
+      await ingestRun(db, station, v.value)
+    }
+    const { queuedRunsOfLot, valuesOfRuns, forgetQueuedRuns } = await import('../../server/database/repositories/param-stats')
+    const { foldTrendValues } = await import('../../server/services/ingest/param-trend-fold')
+    const { inTimeOrder } = await import('../../server/services/ingest/param-stats-merge')
+    // the drift part of two folds, by hand under the lot's lease, then undone: the second's values are all late
+    const undone = new Error('undone')
+    await expect(holdingLease(late, async (hold, lotId) => {
+      const foldDrift = async () => {
+        const ids = await queuedRunsOfLot(hold, lotId, 500)
+        await foldTrendValues(hold, lotId, (await valuesOfRuns(hold, ids)).sort((x, y) => inTimeOrder(x.value, y.value)))
+        await forgetQueuedRuns(hold, ids)
+      }
+      for (let u = 100; u < 140; u += 2) await post(u, stations[0]!)
+      await foldDrift()
+      for (let u = 101; u < 140; u += 2) await post(u, stations[1]!)
+      await foldDrift()
+      expect(await hold('lot_stats_repair').where({ lot_id: lotId }).count({ n: '*' }).first()).toMatchObject({ n: 0 })
+      await expectDriftSumsEqualRecomputation(late, hold)
+      throw undone
+    })).rejects.toBe(undone)
+    // and through the fold itself
+    const lot = await db('lots').where({ code: late }).first('id')
+    await foldPendingStats(db, { lotIds: [lot.id] })
+    await expectDriftSumsEqualRecomputation(late)
+    await expectSummaryEqualsRecomputation(late)
+  })
 
   it('a rebuild leaves queued runs to the fold, which then counts them once', async () => {
     const lotCode = `${code}-R`

@@ -6,32 +6,70 @@ import { movingRangeSum } from '../../../shared/utils/capability'
 import type { ParamRow } from '../../../shared/types/param-stats'
 import type { ValueOfRow } from '../../database/repositories/param-stats'
 import {
-  forgetRepair, forgetTrendOfGroup, forgetTrendOfLot, groupsOfLot, groupValues, queuedRepairs, queueRepairs, trendRowsOfLot, writeStationRanges, writeTrendRows,
+  forgetRepair, forgetTrendOfGroup, forgetTrendOfLot, groupsOfLot, groupValues, groupValuesAfter, queuedRepairs, queueRepairs, trendRowsOfLot, writeStationRanges, writeTrendRows,
   type GroupValue, type StationRanges,
 } from '../../database/repositories/param-trend'
-import { addTrendValue, emptyTrendRow, trendRowFromValues, type TrendGroup, type TrendRow } from './param-trend-merge'
+import { addTrendValue, afterLast, emptyTrendRow, insertTrendValue, trendRowFromValues, type TrendGroup, type TrendRow } from './param-trend-merge'
+import { trendTail, type TrendTail } from './param-trend-tail'
+
+// a late value is put in its place at fold time when at most this many folded values of its group come after the
+// fold's earliest late value (one index range read from there: stations posting side by side deliver values a few
+// seconds out of order all the time); further back, the group is left to a repair of all its values
+const TAIL_VALUES = 20_000
 
 const groupText = (g: TrendGroup) => `${g.step}\u0000${g.name}\u0000${g.qualifier}\u0000${g.revisionId}`
 const groupOf = (r: TrendGroup): TrendGroup => ({ lotId: r.lotId, step: r.step, name: r.name, qualifier: r.qualifier, revisionId: r.revisionId })
 
-/** Adds a fold's values (already in time order) to the lot's drift sums and queues the groups that went stale. */
+/**
+ * Adds a fold's values (already in time order) to the lot's drift sums. A value older than its row's last is put in
+ * its place from the folded values after it when there are few of them; otherwise the row goes stale and its group is
+ * queued for a repair.
+ */
 export async function foldTrendValues(trx: Knex.Transaction, lotId: number, inTimeOrder: ValueOfRow[]): Promise<void> {
   const plausible = inTimeOrder.filter(({ value }) => !value.implausible && Number.isFinite(value.value))
   if (!plausible.length) return
   const rows = new Map<string, TrendRow>()
   for (const r of await trendRowsOfLot(trx, lotId, [...new Set(plausible.map((v) => v.key.step))])) rows.set(`${groupText(r)}\u0000${r.allAttempts}`, r)
+  const tails = await lateTails(trx, plausible, rows)
   const touched = new Set<TrendRow>()
   for (const { key, value } of plausible) {
+    const v = { value: value.value, startedAt: value.startedAt, id: value.id }
     for (const all of value.firstAttempt ? [true, false] : [true]) {
       const k = `${groupText(key)}\u0000${all}`
       let row = rows.get(k)
       if (!row) { row = emptyTrendRow(groupOf(key), all, value.value); rows.set(k, row) }
-      addTrendValue(row, { value: value.value, startedAt: value.startedAt, id: value.id })
+      const tail = tails.get(groupText(key))
+      if (tail && !row.stale && !afterLast(row, v)) insertTrendValue(row, v, tail.after(all, row.shift, v))
+      else addTrendValue(row, v)
       touched.add(row)
     }
   }
   await writeTrendRows(trx, [...touched])
   await queueStaleGroups(trx, [...touched].filter((r) => r.stale))
+}
+
+/**
+ * For each group with a value older than its row's last (rows as they were before this fold; values in time order, so
+ * the first such value is the earliest), the folded values after that one, when there are at most TAIL_VALUES.
+ */
+async function lateTails(trx: Knex.Transaction, inTimeOrder: ValueOfRow[], rows: Map<string, TrendRow>): Promise<Map<string, TrendTail>> {
+  const earliest = new Map<string, { group: TrendGroup; from: { startedAt: number; id: number } }>()
+  for (const { key, value } of inTimeOrder) {
+    const g = groupText(key)
+    if (earliest.has(g)) continue
+    const v = { value: value.value, startedAt: value.startedAt, id: value.id }
+    const late = (value.firstAttempt ? [true, false] : [true]).some((all) => {
+      const row = rows.get(`${g}\u0000${all}`)
+      return row && !row.stale && !afterLast(row, v)
+    })
+    if (late) earliest.set(g, { group: groupOf(key), from: v })
+  }
+  const tails = new Map<string, TrendTail>()
+  for (const [g, { group, from }] of earliest) {
+    const after = await groupValuesAfter(trx, group, from, TAIL_VALUES + 1)
+    if (after.length <= TAIL_VALUES) tails.set(g, trendTail(after))
+  }
+  return tails
 }
 
 /** Queues the groups of parameter rows whose moving range a late value left stale. */

@@ -17,7 +17,7 @@ export function emptyTrendRow(group: TrendGroup, allAttempts: boolean, first: nu
   return { ...group, allAttempts, n: 0, shift: first, sumRd: 0, sumD: 0, sumSqD: 0, lastStartedAt: null, lastId: null, stale: false }
 }
 
-const afterLast = (row: TrendRow, v: TrendValue) =>
+export const afterLast = (row: TrendRow, v: TrendValue) =>
   row.lastStartedAt === null || v.startedAt > row.lastStartedAt || (v.startedAt === row.lastStartedAt && v.id > row.lastId!)
 
 /** Adds one value in place: at or after the last one it takes rank n; before it, the row goes stale (n and Σd, Σd² stay exact). */
@@ -30,6 +30,21 @@ export function addTrendValue(row: TrendRow, v: TrendValue): void {
   } else {
     row.stale = true
   }
+  row.sumD += d
+  row.sumSqD += d * d
+  row.n++
+}
+
+/** The folded values after a late one in test order: how many, and the sum of their d (value − the row's shift). */
+export type ValuesAfter = { count: number; sumD: number }
+
+/**
+ * Adds a value older than the row's last at its place in test order: it takes the rank of the values before it
+ * (n − after.count), and each value after it moves up one rank, so Σ rank·d grows by rank·d + Σd of those.
+ */
+export function insertTrendValue(row: TrendRow, v: TrendValue, after: ValuesAfter): void {
+  const d = v.value - row.shift
+  row.sumRd += (row.n - after.count) * d + after.sumD
   row.sumD += d
   row.sumSqD += d * d
   row.n++
