@@ -2,20 +2,15 @@
 // TERCET_CLUSTER_TEST_PORT_BASE, default 3450), a fresh database migrated and seeded through HAProxy, two instances of
 // the built server and HAProxy's HTTP address over them; and the means to kill and restart a node or an instance.
 import type { ChildProcess } from 'node:child_process'
-import { mkdirSync, readFileSync } from 'node:fs'
 import { resolve } from 'node:path'
 import type { Knex } from 'knex'
-import { connectionFromEnv, createKnex } from '../../server/database/connection'
 // @ts-expect-error plain ES module without types
-import { dataDir, loadEnv, serverEnv } from '../../scripts/lib/env.mjs'
+import { dataDir } from '../../scripts/lib/env.mjs'
 // @ts-expect-error plain ES module without types
 import { galeraCluster } from '../../scripts/lib/cluster.mjs'
 // @ts-expect-error plain ES module without types
-import { prepareDatabase } from '../../scripts/lib/database.mjs'
-// @ts-expect-error plain ES module without types
 import { startInstance } from '../../scripts/lib/cluster-apps.mjs'
-import { startMailFake } from '../../scripts/lib/mail-fake.mjs'
-import { freePort, killAndWait, sleep } from '../reliability/faults/rig'
+import { freePort, killAndWait, rigDatabase, rigMail, sleep } from '../reliability/faults/rig'
 
 export { sleep }
 
@@ -42,17 +37,8 @@ const DATABASE = 'tercet_cluster'
 
 export async function startClusterRig(): Promise<ClusterRig> {
   const cluster = galeraCluster({ base: resolve(dataDir, 'cluster-test'), portBase: PORT_BASE, fail: (m: string) => { throw new Error(m) } })
-  const env = { ...loadEnv(), TERCET_DB_PORT: String(cluster.sqlPort) }
-  const tokenFile = resolve(dataDir, 'cluster-station-tokens.json')
-  const settings = await prepareDatabase(env, DATABASE, { recreate: true, seed: true, tokenFile, server: cluster })
-  const sEnv = serverEnv(env, settings) as Record<string, string>
-  const db = createKnex(connectionFromEnv(sEnv), { min: 0, max: 4 })
-  const tokens = JSON.parse(readFileSync(tokenFile, 'utf8'))
-
-  const mailDir = resolve(dataDir, 'mail', `cluster-${Date.now()}`)
-  mkdirSync(mailDir, { recursive: true })
-  const mail = await startMailFake({ port: await freePort(), dir: mailDir })
-  const mailEnv = { TERCET_SMTP_HOST: '127.0.0.1', TERCET_SMTP_PORT: String(mail.port), TERCET_SMTP_SECURE: 'false', TERCET_MAIL_FAKE_DIR: mailDir }
+  const { sEnv, db, tokens } = await rigDatabase(cluster, cluster.sqlPort, DATABASE, 'cluster')
+  const { mail, mailEnv } = await rigMail('cluster')
 
   const instances: Instance[] = []
   for (let k = 0; k < 2; k++) {

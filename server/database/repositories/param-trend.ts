@@ -75,29 +75,19 @@ export type GroupValue = { stationId: number; firstAttempt: boolean; value: numb
 
 /**
  * The group's plausible values in test order, one range of measurements_series_idx, leaving out runs still queued
- * for the fold (it applies them after).
+ * for the fold (it applies them after). With `after`, only the values after that one, at most `limit`: what a late
+ * value's insertion moves up one rank.
  */
-export async function groupValues(trx: Knex.Transaction, g: TrendGroup): Promise<GroupValue[]> {
+export async function groupValues(trx: Knex.Transaction, g: TrendGroup, after?: { from: { startedAt: number; id: number }; limit: number }): Promise<GroupValue[]> {
+  const at = (ms: number) => new Date(ms).toISOString().replace('T', ' ').replace('Z', '')
+  const range = after ? [at(after.from.startedAt), at(after.from.startedAt), after.from.id] : []
   const [rows] = await trx.raw(`SELECT station_id, first_attempt, value, TIMESTAMPDIFF(MICROSECOND, '1970-01-01 00:00:00', started_at) DIV 1000 AS started_ms, id
     FROM measurements FORCE INDEX (measurements_series_idx)
     WHERE lot_id = ? AND step = ? AND name = ? AND qualifier = ? AND revision_id = ? AND NOT implausible
+      ${after ? 'AND (started_at > ? OR (started_at = ? AND id > ?))' : ''}
       AND run_id NOT IN (SELECT run_id FROM lot_stats_pending WHERE lot_id = ?)
-    ORDER BY started_at, id`, [g.lotId, g.step, g.name, g.qualifier, g.revisionId, g.lotId])
-  return (rows as any[]).map((r) => ({ stationId: Number(r.station_id), firstAttempt: !!r.first_attempt, value: Number(r.value), startedAt: Number(r.started_ms), id: Number(r.id) }))
-}
-
-/**
- * The group's plausible values after `from` in test order, at most `limit`, leaving out runs still queued for the
- * fold: what a late value's insertion moves up one rank. One range of measurements_series_idx from `from` on.
- */
-export async function groupValuesAfter(trx: Knex.Transaction, g: TrendGroup, from: { startedAt: number; id: number }, limit: number): Promise<GroupValue[]> {
-  const at = new Date(from.startedAt).toISOString().replace('T', ' ').replace('Z', '')
-  const [rows] = await trx.raw(`SELECT station_id, first_attempt, value, TIMESTAMPDIFF(MICROSECOND, '1970-01-01 00:00:00', started_at) DIV 1000 AS started_ms, id
-    FROM measurements FORCE INDEX (measurements_series_idx)
-    WHERE lot_id = ? AND step = ? AND name = ? AND qualifier = ? AND revision_id = ? AND NOT implausible
-      AND (started_at > ? OR (started_at = ? AND id > ?))
-      AND run_id NOT IN (SELECT run_id FROM lot_stats_pending WHERE lot_id = ?)
-    ORDER BY started_at, id LIMIT ?`, [g.lotId, g.step, g.name, g.qualifier, g.revisionId, at, at, from.id, g.lotId, limit])
+    ORDER BY started_at, id ${after ? 'LIMIT ?' : ''}`,
+  [g.lotId, g.step, g.name, g.qualifier, g.revisionId, ...range, g.lotId, ...(after ? [after.limit] : [])])
   return (rows as any[]).map((r) => ({ stationId: Number(r.station_id), firstAttempt: !!r.first_attempt, value: Number(r.value), startedAt: Number(r.started_ms), id: Number(r.id) }))
 }
 

@@ -25,7 +25,6 @@ const READER_RETRY_MS = 20
 // a reader folds at most this many queued runs itself; a longer queue (after a bulk load or an outage) is left to
 // the background, and the view says how many runs its figures leave out
 const READER_MAX_RUNS = 2_000
-// a fold asked for outside a view (tests, tools) waits this long for one in progress
 const ASKED_WAIT_SECONDS = 5
 // a reader rebuilds or repairs a group itself only up to this many values (one index range, some tens of ms);
 // larger ones are left to the background fold
@@ -95,38 +94,30 @@ async function foldSlice(db: Knex, lotId: number, waitSeconds: number, maxRepair
 }
 
 /**
- * Folds one lot's whole queue: a background fold gives way when another fold of the lot is running; a fold asked for
- * (tests, tools) waits up to ASKED_WAIT_SECONDS for it.
+ * How a fold of one lot goes: how long it waits on the lease (0: skip a lot another fold holds), until when it tries
+ * the lease again instead of giving way, how large a rebuild or repair it does itself, which queued runs it takes
+ * (up to `upTo`) and after how many runs it leaves the rest.
  */
-async function foldLot(db: Knex, lotId: number, background: boolean): Promise<number | 'busy'> {
+type FoldTerms = { waitSeconds: number; retryUntil?: number; maxRepairValues: number; upTo?: number; maxRuns?: number }
+
+const BACKGROUND: FoldTerms = { waitSeconds: 0, maxRepairValues: Infinity }
+// a fold asked for outside a view (tests, tools) waits for one in progress
+const ASKED: FoldTerms = { waitSeconds: ASKED_WAIT_SECONDS, maxRepairValues: READER_REPAIR_VALUES }
+
+/** Folds one lot's queue by slices on the given terms; 'busy' when another fold held the lease throughout. */
+async function foldLot(db: Knex, lotId: number, terms: FoldTerms): Promise<number | 'busy'> {
   let total = 0
   for (;;) {
     // two folds of one lot on two cluster nodes conflict at commit; writeTransaction runs the loser again
-    const slice = await foldSlice(db, lotId, background ? 0 : ASKED_WAIT_SECONDS, background ? Infinity : READER_REPAIR_VALUES)
-    if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
-    if (slice === 'busy') return total || 'busy'
-    total += slice.folded
-    if (!slice.more) return total
-  }
-}
-
-/**
- * A reader's fold: runs queued up to `upTo`, and small rebuilds and repairs. It tries the lease until `waitMs` has
- * passed and stops after READER_MAX_RUNS runs; what it leaves is the background's.
- */
-async function foldLotForReader(db: Knex, lotId: number, upTo: number, waitMs: number): Promise<void> {
-  const giveUpAt = Date.now() + waitMs
-  let total = 0
-  for (;;) {
-    const slice = await foldSlice(db, lotId, 0, READER_REPAIR_VALUES, upTo)
+    const slice = await foldSlice(db, lotId, terms.waitSeconds, terms.maxRepairValues, terms.upTo)
     if (slice === 'missing') { await ensureFoldLease(db, lotId); continue }
     if (slice === 'busy') {
-      if (Date.now() >= giveUpAt) return
+      if (terms.retryUntil === undefined || Date.now() >= terms.retryUntil) return total || 'busy'
       await new Promise((r) => setTimeout(r, READER_RETRY_MS))
       continue
     }
     total += slice.folded
-    if (!slice.more || total >= READER_MAX_RUNS) return
+    if (!slice.more || total >= (terms.maxRuns ?? Infinity)) return total
   }
 }
 
@@ -138,7 +129,7 @@ export async function foldPendingStats(db: Knex, opts: { lotIds?: number[]; back
   const lots = opts.lotIds ?? await lotsToFold(db, LOTS_PER_PASS)
   let total = 0
   for (const lotId of lots) {
-    const n = await foldLot(db, lotId, !!opts.background)
+    const n = await foldLot(db, lotId, opts.background ? BACKGROUND : ASKED)
     if (n !== 'busy') total += n
   }
   return total
@@ -165,7 +156,7 @@ export async function freshenLotStats(db: Knex, lotIds: number[], waitMs = reade
     if (!before.runs && !(await smallRepairsWaiting(db, lotId, READER_REPAIR_VALUES))) { result.push(before); continue }
     try {
       // what was queued when the reader asked, not what keeps arriving while it folds
-      await foldLotForReader(db, lotId, before.upTo ?? 0, waitMs)
+      await foldLot(db, lotId, { waitSeconds: 0, retryUntil: Date.now() + waitMs, maxRepairValues: READER_REPAIR_VALUES, upTo: before.upTo ?? 0, maxRuns: READER_MAX_RUNS })
     } catch (e: any) {
       // a row lock other than the lease held past the lock wait: the rows are read as they are
       if (e?.code !== 'ER_LOCK_WAIT_TIMEOUT') throw e

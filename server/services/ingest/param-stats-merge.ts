@@ -65,6 +65,6 @@ function addToSample(row: ParamRow, f: SampleFields, m: StoredValue): void {
 }
 
 /** Orders values as the moving range reads them: by start time, then by storage order. */
-export function inTimeOrder(a: StoredValue, b: StoredValue): number {
+export function inTimeOrder(a: Pick<StoredValue, 'startedAt' | 'id'>, b: Pick<StoredValue, 'startedAt' | 'id'>): number {
   return a.startedAt - b.startedAt || a.id - b.id
 }

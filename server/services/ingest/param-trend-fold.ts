@@ -1,15 +1,16 @@
 // The fold's part for the drift sums and the repairs: values in time order take the next rank of their parameter
-// and revision (both populations; first attempts count in both), a value older than the group's last marks it for a
-// repair, and a repair takes the group's moving ranges and drift sums again from one index range.
+// and revision (both populations; first attempts count in both), a value older than the group's last is put in its
+// place from the values after it or, far back, marks the group for a repair, and a repair takes the group's moving
+// ranges and drift sums again from one index range.
 import type { Knex } from 'knex'
 import { movingRangeSum } from '../../../shared/utils/capability'
 import type { ParamRow } from '../../../shared/types/param-stats'
 import type { ValueOfRow } from '../../database/repositories/param-stats'
 import {
-  forgetRepair, forgetTrendOfGroup, forgetTrendOfLot, groupsOfLot, groupValues, groupValuesAfter, queuedRepairs, queueRepairs, trendRowsOfLot, writeStationRanges, writeTrendRows,
+  forgetRepair, forgetTrendOfGroup, forgetTrendOfLot, groupsOfLot, groupValues, queuedRepairs, queueRepairs, trendRowsOfLot, writeStationRanges, writeTrendRows,
   type GroupValue, type StationRanges,
 } from '../../database/repositories/param-trend'
-import { addTrendValue, afterLast, emptyTrendRow, insertTrendValue, trendRowFromValues, type TrendGroup, type TrendRow } from './param-trend-merge'
+import { addTrendValue, afterLast, emptyTrendRow, insertTrendValue, trendRowFromValues, type TrendGroup, type TrendRow, type TrendValue } from './param-trend-merge'
 import { trendTail, type TrendTail } from './param-trend-tail'
 
 // a late value is put in its place at fold time when at most this many folded values of its group come after the
@@ -19,6 +20,11 @@ const TAIL_VALUES = 20_000
 
 const groupText = (g: TrendGroup) => `${g.step}\u0000${g.name}\u0000${g.qualifier}\u0000${g.revisionId}`
 const groupOf = (r: TrendGroup): TrendGroup => ({ lotId: r.lotId, step: r.step, name: r.name, qualifier: r.qualifier, revisionId: r.revisionId })
+const rowText = (g: TrendGroup, allAttempts: boolean) => `${groupText(g)}\u0000${allAttempts}`
+// first attempts count in both populations, retests in the all-attempt one only
+const populationsOf = (v: { firstAttempt: boolean }) => (v.firstAttempt ? [true, false] : [true])
+// a value older than a row's last that can still be put in place (a stale row waits for its repair)
+const isLate = (row: TrendRow, v: TrendValue) => !row.stale && !afterLast(row, v)
 
 /**
  * Adds a fold's values (already in time order) to the lot's drift sums. A value older than its row's last is put in
@@ -29,18 +35,16 @@ export async function foldTrendValues(trx: Knex.Transaction, lotId: number, inTi
   const plausible = inTimeOrder.filter(({ value }) => !value.implausible && Number.isFinite(value.value))
   if (!plausible.length) return
   const rows = new Map<string, TrendRow>()
-  for (const r of await trendRowsOfLot(trx, lotId, [...new Set(plausible.map((v) => v.key.step))])) rows.set(`${groupText(r)}\u0000${r.allAttempts}`, r)
+  for (const r of await trendRowsOfLot(trx, lotId, [...new Set(plausible.map((v) => v.key.step))])) rows.set(rowText(r, r.allAttempts), r)
   const tails = await lateTails(trx, plausible, rows)
   const touched = new Set<TrendRow>()
   for (const { key, value } of plausible) {
-    const v = { value: value.value, startedAt: value.startedAt, id: value.id }
-    for (const all of value.firstAttempt ? [true, false] : [true]) {
-      const k = `${groupText(key)}\u0000${all}`
-      let row = rows.get(k)
-      if (!row) { row = emptyTrendRow(groupOf(key), all, value.value); rows.set(k, row) }
-      const tail = tails.get(groupText(key))
-      if (tail && !row.stale && !afterLast(row, v)) insertTrendValue(row, v, tail.after(all, row.shift, v))
-      else addTrendValue(row, v)
+    const tail = tails.get(groupText(key))
+    for (const all of populationsOf(value)) {
+      let row = rows.get(rowText(key, all))
+      if (!row) { row = emptyTrendRow(groupOf(key), all, value.value); rows.set(rowText(key, all), row) }
+      if (tail && isLate(row, value)) insertTrendValue(row, value, tail.after(all, row.shift, value))
+      else addTrendValue(row, value)
       touched.add(row)
     }
   }
@@ -53,20 +57,15 @@ export async function foldTrendValues(trx: Knex.Transaction, lotId: number, inTi
  * the first such value is the earliest), the folded values after that one, when there are at most TAIL_VALUES.
  */
 async function lateTails(trx: Knex.Transaction, inTimeOrder: ValueOfRow[], rows: Map<string, TrendRow>): Promise<Map<string, TrendTail>> {
-  const earliest = new Map<string, { group: TrendGroup; from: { startedAt: number; id: number } }>()
+  const earliest = new Map<string, { group: TrendGroup; from: TrendValue }>()
   for (const { key, value } of inTimeOrder) {
     const g = groupText(key)
     if (earliest.has(g)) continue
-    const v = { value: value.value, startedAt: value.startedAt, id: value.id }
-    const late = (value.firstAttempt ? [true, false] : [true]).some((all) => {
-      const row = rows.get(`${g}\u0000${all}`)
-      return row && !row.stale && !afterLast(row, v)
-    })
-    if (late) earliest.set(g, { group: groupOf(key), from: v })
+    if (populationsOf(value).some((all) => { const row = rows.get(rowText(key, all)); return !!row && isLate(row, value) })) earliest.set(g, { group: groupOf(key), from: value })
   }
   const tails = new Map<string, TrendTail>()
   for (const [g, { group, from }] of earliest) {
-    const after = await groupValuesAfter(trx, group, from, TAIL_VALUES + 1)
+    const after = await groupValues(trx, group, { from, limit: TAIL_VALUES + 1 })
     if (after.length <= TAIL_VALUES) tails.set(g, trendTail(after))
   }
   return tails

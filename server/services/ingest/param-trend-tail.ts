@@ -1,10 +1,9 @@
 // The folded values of one parameter group after a fold's earliest late value, in test order: for each late value
 // of the fold, how many of them come after it and the sum of their d, by binary search over suffix sums. Pure.
 import type { TrendValue, ValuesAfter } from './param-trend-merge'
+import { inTimeOrder } from './param-stats-merge'
 
 export type TailValue = TrendValue & { firstAttempt: boolean }
-
-const before = (a: TrendValue, b: TrendValue) => a.startedAt < b.startedAt || (a.startedAt === b.startedAt && a.id < b.id)
 
 export function trendTail(inTestOrder: readonly TailValue[]) {
   const cached = new Map<string, { values: readonly TailValue[]; suffix: Float64Array }>()
@@ -29,7 +28,7 @@ export function trendTail(inTestOrder: readonly TailValue[]) {
       let hi = values.length
       while (lo < hi) {
         const mid = (lo + hi) >> 1
-        if (before(v, values[mid]!)) hi = mid; else lo = mid + 1
+        if (inTimeOrder(v, values[mid]!) < 0) hi = mid; else lo = mid + 1
       }
       return { count: values.length - lo, sumD: suffix[lo]! }
     },

@@ -34,6 +34,24 @@ export async function killAndWait(c: ChildProcess | undefined): Promise<void> {
   await gone
 }
 
+/** A fresh database on a rig's own MariaDB (one server or a cluster's SQL address), seeded, a pool to it and the stations' tokens. */
+export async function rigDatabase(server: unknown, dbPort: number, database: string, name: string) {
+  const env = { ...loadEnv(), TERCET_DB_PORT: String(dbPort) }
+  const tokenFile = resolve(dataDir, `${name}-station-tokens.json`)
+  const settings = await prepareDatabase(env, database, { recreate: true, seed: true, tokenFile, server })
+  const sEnv = serverEnv(env, settings) as Record<string, string>
+  return { sEnv, db: createKnex(connectionFromEnv(sEnv), { min: 0, max: 4 }), tokens: JSON.parse(readFileSync(tokenFile, 'utf8')) as Record<string, string> }
+}
+
+/** The mail catcher in a folder of its own, and the environment that points a server at it. */
+export async function rigMail(name: string) {
+  const mailDir = resolve(dataDir, 'mail', `${name}-${Date.now()}`)
+  mkdirSync(mailDir, { recursive: true })
+  const mail = await startMailFake({ port: await freePort(), dir: mailDir })
+  const mailEnv = { TERCET_SMTP_HOST: '127.0.0.1', TERCET_SMTP_PORT: String(mail.port), TERCET_SMTP_SECURE: 'false', TERCET_MAIL_FAKE_DIR: mailDir }
+  return { mail, mailDir, mailEnv }
+}
+
 export type App = {
   url: string
   /** every line the server wrote, stdout and stderr apart */
@@ -65,16 +83,8 @@ function alive(pid: number): boolean {
 export async function startRig(appEnv: Record<string, string> = {}): Promise<Rig> {
   const entry = resolve(process.cwd(), process.env.TERCET_OUTPUT_DIR || '.output', 'server/index.mjs')
   const server = mariadbInstance({ base: resolve(dataDir, 'faults-mariadb'), fail: (m: string) => { throw new Error(m) } })
-  const env = { ...loadEnv(), TERCET_DB_PORT: String(DB_PORT) }
-  const tokenFile = resolve(dataDir, 'faults-station-tokens.json')
-  const settings = await prepareDatabase(env, 'tercet_faults', { recreate: true, seed: true, tokenFile, server })
-  const sEnv = serverEnv(env, settings) as Record<string, string>
-  const db = createKnex(connectionFromEnv(sEnv), { min: 0, max: 4 })
-  const tokens = JSON.parse(readFileSync(tokenFile, 'utf8'))
-
-  const mailDir = resolve(dataDir, 'mail', `faults-${Date.now()}`)
-  mkdirSync(mailDir, { recursive: true })
-  const mail = await startMailFake({ port: await freePort(), dir: mailDir })
+  const { sEnv, db, tokens } = await rigDatabase(server, DB_PORT, 'tercet_faults', 'faults')
+  const { mail, mailDir, mailEnv } = await rigMail('faults')
 
   const port = await freePort()
   const url = `http://127.0.0.1:${port}`
@@ -88,8 +98,7 @@ export async function startRig(appEnv: Record<string, string> = {}): Promise<Rig
       child = spawn(process.execPath, [entry], {
         env: {
           ...sEnv, PORT: String(port), HOST: '127.0.0.1', NODE_ENV: 'production', TERCET_TRUST_PROXY: '1',
-          TERCET_SMTP_HOST: '127.0.0.1', TERCET_SMTP_PORT: String(mail.port), TERCET_SMTP_SECURE: 'false', TERCET_MAIL_FAKE_DIR: mailDir,
-          TERCET_MAIL_BACKOFF_MS: '1000', ...appEnv,
+          ...mailEnv, TERCET_MAIL_BACKOFF_MS: '1000', ...appEnv,
         },
         stdio: ['ignore', 'pipe', 'pipe'],
       })
