@@ -121,6 +121,17 @@ describe('the units list by index', () => {
       const byDate = (await list(`sort=date&dir=${dir}&pageSize=200`)).body.units.map((u: Unit) => u.serial)
       expect(byCursor).toEqual(byDate)
     }
+    // every sort the page offers, filtered or not: pages by number (near pages counted off from the start, far ones
+    // from the end) put together give the whole list in that order
+    for (const sort of ['verdict', 'attempts', 'runs', 'station', 'date', 'step'] as const) {
+      for (const [dir, filter] of [['asc', ''], ['desc', ''], ['asc', '&verdict=pass,incomplete']] as const) {
+        const whole = (await list(`sort=${sort}&dir=${dir}${filter}&pageSize=200`)).body
+        const paged: string[] = []
+        const pageCount = Math.ceil(whole.total / 4)
+        for (let page = 1; page <= pageCount; page++) paged.push(...(await list(`sort=${sort}&dir=${dir}${filter}&pageSize=4&page=${page}`)).body.units.map((u: Unit) => u.serial))
+        expect(paged, `${sort} ${dir}${filter}`).toEqual(whole.units.map((u: Unit) => u.serial))
+      }
+    }
     const bad = await list('sort=date&after=bm90LWEtY3Vyc29y')
     expect(bad.status).toBe(400)
     expect(bad.body.errors.map((e: any) => e.pointer)).toEqual(['/query/after'])

@@ -110,6 +110,17 @@ function stationLookup(q: UnitQuery, stations: { id: number; name: string }[]) {
   return { names: new Map(stations.map((s) => [s.id, s.name])), stationId }
 }
 
+/**
+ * A page `offset` rows into the list: the rows skipped are counted off the sort's index alone (it holds the serial and
+ * the row's id), and only the page's own rows are read in full. Counting off the full rows cost one row read per row
+ * skipped, which grew with the lot.
+ */
+function skipped(db: Knex, lotId: number, q: UnitQuery, stationId: number | null | undefined, dir: 'asc' | 'desc', offset: number, limit: number) {
+  const col = SORT_COLUMN[q.sort]
+  const ids = ordered(filtered(db, lotId, q, stationId).select('u.id'), col, dir, q).limit(limit).offset(offset)
+  return ordered(db('units as u').join(ids.as('k'), 'k.id', 'u.id').select(LIST_COLUMNS), col, dir, q)
+}
+
 /** A count stops here when the counters cannot answer it: past it the list says "more than". */
 export const COUNT_BOUND = 10_000
 
@@ -135,17 +146,17 @@ export async function listLotUnits(db: Knex, lotId: number, q: UnitQuery, page: 
     if (total > COUNT_BOUND) { total = COUNT_BOUND; totalExact = false }
   }
   const col = SORT_COLUMN[q.sort]
-  const t = filtered(db, lotId, q, stationId).select(LIST_COLUMNS)
   let rows: any[]
   if (page.after) {
+    const t = filtered(db, lotId, q, stationId).select(LIST_COLUMNS)
     rows = await ordered(afterCursor(t, col, q.dir, page.after), col, q.dir, q).limit(page.limit)
   } else if (totalExact && page.offset > total / 2) {
     // from the far end: the rows before total - offset, read backwards and turned round
     const end = total - page.offset
     if (end <= 0) rows = []
-    else rows = (await ordered(t, col, flip(q.dir), q).offset(Math.max(0, end - page.limit)).limit(Math.min(page.limit, end))).reverse()
+    else rows = (await skipped(db, lotId, q, stationId, flip(q.dir), Math.max(0, end - page.limit), Math.min(page.limit, end))).reverse()
   } else {
-    rows = await ordered(t, col, q.dir, q).limit(page.limit).offset(page.offset)
+    rows = await skipped(db, lotId, q, stationId, q.dir, page.offset, page.limit)
   }
   const last = rows.at(-1)
   return { total, totalExact, rows: rows.map((r) => toRow(r, names)), next: last && rows.length === page.limit ? cursorOf(last, q.sort) : null }
