@@ -30,3 +30,22 @@ export function columnExtremes<T>(items: readonly T[], x: (t: T) => number, y: (
   if (kept[kept.length - 1] !== items.length - 1) kept.push(items.length - 1)
   return kept.map((i) => items[i]!)
 }
+
+/** Columns of marks a plot has room for without two marks of one kind overlapping (a mark is some 6 px wide). */
+export const MARK_COLUMNS = 120
+
+/**
+ * Marks to draw of `items` (in increasing x): per column of the x span, the one farthest out by `distance`; all of
+ * them when they are no more than the columns. Marks of one kind closer than their own width read as one mark.
+ */
+export function columnPeaks<T>(items: readonly T[], x: (t: T) => number, distance: (t: T) => number, span: { min: number; max: number }, columns = MARK_COLUMNS): T[] {
+  if (items.length <= columns) return [...items]
+  const width = (span.max - span.min) / columns
+  const best = new Map<number, T>()
+  for (const t of items) {
+    const c = width > 0 ? Math.min(columns - 1, Math.max(0, Math.floor((x(t) - span.min) / width))) : 0
+    const held = best.get(c)
+    if (held === undefined || distance(t) > distance(held)) best.set(c, t)
+  }
+  return [...best.entries()].sort((a, b) => a[0] - b[0]).map(([, t]) => t)
+}

@@ -58,6 +58,11 @@ describe('the lot dashboard at 1440 px', () => {
     expect(await page.locator('.apexcharts-legend-series').count()).toBe(0)
 
     // every rule hit's mark is explained: the first rule each listed point breaks has a marker entry of its own
+    // (the list is laid out when opened)
+    const hits = individuals.locator('xpath=ancestor::div[contains(@class,"panel")]//details')
+    expect(await hits.locator('tbody tr').count()).toBe(0)
+    await hits.locator('summary').click()
+    await expect.poll(() => hits.locator('tbody tr').count()).toBeGreaterThan(0)
     const hitRules = await individuals.locator('xpath=ancestor::div[contains(@class,"panel")]//details//tbody//tr/td[5]').allTextContents()
     const firstRules = new Set(hitRules.map((t) => Math.min(...[...t.matchAll(/Rule (\d)/g)].map((m) => Number(m[1])))))
     const markerEntries = await legend.locator('li[data-glyph^="marker-"]').evaluateAll((els) => els.map((e) => ({ text: e.textContent!.trim(), glyph: e.getAttribute('data-glyph') })))

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
-import { columnExtremes } from '../../../app/utils/plot-columns'
+import { columnExtremes, columnPeaks } from '../../../app/utils/plot-columns'
 
 type P = { x: number; y: number }
 const thin = (ps: P[], columns: number) => columnExtremes(ps, (p) => p.x, (p) => p.y, columns)
@@ -42,6 +42,33 @@ describe('a line thinned to the plot columns', () => {
         expect(Math.min(...ys)).toBe(Math.min(...inCol.map((p) => p.y)))
         expect(Math.max(...ys)).toBe(Math.max(...inCol.map((p) => p.y)))
       }
+    }))
+  })
+})
+
+describe('marks thinned to the plot columns', () => {
+  const peaks = (ps: P[], span: { min: number; max: number }, columns: number) => columnPeaks(ps, (p) => p.x, (p) => Math.abs(p.y), span, columns)
+
+  it('keeps few marks whole and, per column, the one farthest out', () => {
+    const few = [{ x: 1, y: 3 }, { x: 2, y: -9 }]
+    expect(peaks(few, { min: 0, max: 10 }, 2)).toEqual(few)
+    // columns of width 5 over 0 … 10: x 0–4.9 and 5–10
+    const ps = [{ x: 1, y: 3 }, { x: 2, y: -9 }, { x: 4, y: 8 }, { x: 6, y: 1 }, { x: 9, y: -2 }]
+    expect(peaks(ps, { min: 0, max: 10 }, 2)).toEqual([{ x: 2, y: -9 }, { x: 9, y: -2 }])
+  })
+
+  it('leaves no column that had marks without one, and takes the farthest of each', () => {
+    fc.assert(fc.property(series, fc.integer({ min: 1, max: 40 }), (ps, columns) => {
+      const span = { min: ps[0]!.x - 1, max: ps[ps.length - 1]!.x + 1 }
+      const kept = peaks(ps, span, columns)
+      for (const p of kept) expect(ps).toContain(p)
+      for (let i = 1; i < kept.length; i++) expect(kept[i]!.x).toBeGreaterThan(kept[i - 1]!.x)
+      if (ps.length <= columns) { expect(kept).toEqual(ps); return }
+      const width = (span.max - span.min) / columns
+      const colOf = (p: P) => Math.min(columns - 1, Math.floor((p.x - span.min) / width))
+      const cols = new Set(ps.map(colOf))
+      expect(kept.map(colOf)).toEqual([...cols].sort((a, b) => a - b))
+      for (const p of kept) expect(Math.abs(p.y)).toBe(Math.max(...ps.filter((q) => colOf(q) === colOf(p)).map((q) => Math.abs(q.y))))
     }))
   })
 })
