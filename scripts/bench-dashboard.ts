@@ -1,8 +1,9 @@
 // npm run bench:dashboard — the lot pages at 1M and then 10M measurements in one lot while stations keep posting.
 // Loads the lot in bulk by SQL (scripts/lib/dash-load.ts: every step of the demo tripler, retests, two revisions,
 // several stations), rebuilds its aggregates, then, with stations posting new units through the station API at a
-// steady rate, times every lot route (capped per route) and the lot page in headless Chromium. Prints JSON lines on
-// stdout (see DEVELOPERS.md, "Benchmarks"); progress goes to stderr and the server's log to .data/bench-dash-server.log.
+// steady rate, times every lot route (capped per route) and the lot page in headless Chromium (the page also before
+// the stations start). Prints JSON lines on stdout (see DEVELOPERS.md, "Benchmarks"); progress goes to stderr and the
+// server's log to .data/bench-dash-server.log.
 // BENCH_SIZES=1000000,10000000 (measurements), BENCH_REUSE=1 measures again on the rows an earlier run loaded,
 // BENCH_INGEST_RATE=30 runs per second, BENCH_DASH_DB=tercet_bench_dash the database. Loopback only; stops by itself.
 import type { ChildProcess } from 'node:child_process'
@@ -107,6 +108,10 @@ async function main() {
       const units = await bulkUnits(db, lot)
       out({ size, measurements: have, bulkUnits: units, loadSeconds, loadAverage: load() })
 
+      // the page on the warm server alone first, then again below with the stations posting
+      say('the lot page in Chromium, no station posting')
+      out({ ...(await timeLotPage(url, LOT, count.now)), stationsPosting: false })
+
       say(`stations posting at ${RATE} runs/s while measuring…`)
       const stations = startStations({ url, part: PART, lot: LOT, tokens: tokens.map((t) => t.token), runsPerSec: RATE, limits, seed: size % 1000 + 7 })
       try {
@@ -139,7 +144,7 @@ async function main() {
         // the page before the naive aggregate: its scan of every measurement pushes the lot's indexes out of the
         // buffer pool, which would time the page on a cold database instead of a warm one
         say('  the lot page in Chromium')
-        out(await timeLotPage(url, LOT, count.now))
+        out({ ...(await timeLotPage(url, LOT, count.now)), stationsPosting: true })
         const summary = figures[1]!
         say('  naive SQL aggregate')
         const naiveMs = await naiveAggregate(db, lot.id)
