@@ -3,6 +3,11 @@
 // line through them reaches every column's extremes, so its outline on screen is the whole series' outline, while the
 // chart lays out a few hundred points instead of thousands (its cost grows with every point it is given).
 
+/** The column (0 … columns − 1) of the span [min, min + width · columns] that x falls in; all in 0 when the span is empty. */
+function columnOf(x: number, min: number, width: number, columns: number): number {
+  return width > 0 ? Math.min(columns - 1, Math.max(0, Math.floor((x - min) / width))) : 0
+}
+
 /** Columns a thinned line keeps two points of: about one per two pixels of a half-page plot. */
 export const PLOT_COLUMNS = 300
 
@@ -20,7 +25,7 @@ export function columnExtremes<T>(items: readonly T[], x: (t: T) => number, y: (
     for (const i of lo === hi ? [lo] : [Math.min(lo, hi), Math.max(lo, hi)]) if (i !== kept[kept.length - 1]) kept.push(i)
   }
   for (let i = 0; i < items.length; i++) {
-    const c = width > 0 ? Math.min(columns - 1, Math.floor((x(items[i]!) - x0) / width)) : 0
+    const c = columnOf(x(items[i]!), x0, width, columns)
     if (c !== col) { close(); col = c; lo = i; hi = i; continue }
     const v = y(items[i]!)
     if (v < y(items[lo]!)) lo = i
@@ -43,7 +48,7 @@ export function columnPeaks<T>(items: readonly T[], x: (t: T) => number, distanc
   const width = (span.max - span.min) / columns
   const best = new Map<number, T>()
   for (const t of items) {
-    const c = width > 0 ? Math.min(columns - 1, Math.max(0, Math.floor((x(t) - span.min) / width))) : 0
+    const c = columnOf(x(t), span.min, width, columns)
     const held = best.get(c)
     if (held === undefined || distance(t) > distance(held)) best.set(c, t)
   }
